@@ -1,0 +1,10 @@
+//! Numbers: exact values of symbols and expressions (`Surd`), the
+//! prime-exponent arithmetic behind them, and fast floating point.
+//! Nothing here depends on simplification or verification.
+
+pub mod exact;
+pub mod primes;
+pub mod racah;
+pub mod surd;
+
+pub use surd::Surd;
