@@ -8,3 +8,5 @@ pub mod racah;
 pub mod surd;
 
 pub use surd::Surd;
+pub mod dd;
+pub mod float;

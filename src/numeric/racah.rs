@@ -9,7 +9,7 @@ use super::primes::{prime_at, PrimeExps};
 use super::surd::Surd;
 use num_bigint::{BigInt, BigUint};
 use num_rational::BigRational;
-use num_traits::{One, Signed, ToPrimitive, Zero};
+use num_traits::{One, Signed, Zero};
 
 /// A factorial `(c + s k)!` with `s = ±1`.
 #[derive(Clone, Copy, Debug)]
