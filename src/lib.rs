@@ -1,4 +1,7 @@
 //! recoup: reduce, verify and evaluate angular-momentum algebra.
 #![warn(missing_docs)]
 
+pub mod expr;
 pub mod numeric;
+pub mod render;
+pub mod syntax;

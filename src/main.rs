@@ -1,3 +1,8 @@
+//! The `recoup` binary: parses the command line and maps failures to exit
+//! codes (see `cli`).
+
+mod cli;
+
 fn main() {
-    println!("Hello, world!");
+    std::process::exit(cli::run());
 }

@@ -9,4 +9,5 @@ pub mod surd;
 
 pub use surd::Surd;
 pub mod dd;
+pub mod eval;
 pub mod float;

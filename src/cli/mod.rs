@@ -1,0 +1,92 @@
+//! The command line: clap definitions and the thin glue from arguments to
+//! library calls and printed output. No mathematics lives here. Errors map
+//! to exit codes: 0 success, 1 a `check` that found the sides different,
+//! 2 bad input (with a one-paragraph message on standard error and nothing
+//! on standard output).
+
+mod eval;
+mod table;
+
+use clap::{Parser, Subcommand};
+use std::io::Read;
+
+/// What went wrong, and with which exit code.
+#[derive(Debug)]
+pub enum Failure {
+    /// bad input: exit 2
+    Input(String),
+}
+
+impl Failure {
+    /// A bad-input failure.
+    pub fn input(msg: impl Into<String>) -> Self {
+        Failure::Input(msg.into())
+    }
+}
+
+/// recoup: reduce, verify and evaluate angular-momentum algebra (3j, 6j,
+/// 9j symbols and Clebsch-Gordan coefficients).
+#[derive(Parser, Debug)]
+#[command(name = "recoup", version, about, long_about = None)]
+pub struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Exact value and float of an expression at given values.
+    ///
+    /// EXPR is one argument in the expression language; `-` reads it from
+    /// standard input. Free variables get values with --at j=1,m=1/2.
+    /// Sums over projections and angular momenta run over all allowed
+    /// values.
+    Eval(eval::EvalArgs),
+    /// Every Clebsch-Gordan coefficient for numeric j1 and j2.
+    ///
+    /// Prints each coupled state |J M> as its expansion in the product
+    /// basis |m1 m2>, grouped by M; --json and --csv give the entries.
+    Table(table::TableArgs),
+    /// LaTeX (amsmath) for an expression, for a paper.
+    Latex {
+        /// the expression (`-` reads standard input)
+        expr: String,
+    },
+}
+
+/// Reads an EXPR argument, `-` meaning standard input.
+pub fn read_arg(s: &str) -> Result<String, Failure> {
+    if s == "-" {
+        let mut buf = String::new();
+        std::io::stdin()
+            .read_to_string(&mut buf)
+            .map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
+        Ok(buf.trim_end().to_string())
+    } else {
+        Ok(s.to_string())
+    }
+}
+
+/// Parses an expression, mapping parse errors to bad input.
+pub fn parse_expr(text: &str) -> Result<recoup::expr::Expr, Failure> {
+    recoup::syntax::parse(text).map_err(|e| Failure::input(format!("parse error at {e}")))
+}
+
+/// Runs the command line; returns the exit code.
+pub fn run() -> i32 {
+    let cli = Cli::parse();
+    let result = match cli.command {
+        Command::Eval(a) => eval::run(a),
+        Command::Table(a) => table::run(a),
+        Command::Latex { expr } => read_arg(&expr)
+            .and_then(|t| parse_expr(&t))
+            .map(|e| println!("{}", recoup::render::latex::expr(&e))),
+    };
+    match result {
+        Ok(()) => 0,
+        Err(Failure::Input(msg)) => {
+            eprintln!("recoup: {msg}");
+            2
+        }
+    }
+}

@@ -1,0 +1,55 @@
+//! `recoup table J1 J2`: the Clebsch–Gordan table for numeric j1, j2.
+
+use super::eval::parse_q;
+use super::Failure;
+use clap::Args;
+use recoup::render::table;
+
+/// Largest j1 or j2 a table is printed for.
+const MAX_TABLE_J: i64 = 40;
+
+#[derive(Args, Debug)]
+pub struct TableArgs {
+    /// j1 (an integer or half-integer, e.g. 3 or 3/2)
+    j1: String,
+    /// j2
+    j2: String,
+    /// print JSON {"j1", "j2", "entries": [...]}
+    #[arg(long, conflicts_with = "csv")]
+    json: bool,
+    /// print CSV with columns j1, j2, m1, m2, J, M, exact, float
+    #[arg(long)]
+    csv: bool,
+}
+
+fn doubled(name: &str, s: &str) -> Result<i64, Failure> {
+    let q = parse_q(s).ok_or_else(|| {
+        Failure::input(format!("{name} must be a number like 1, 3/2; got '{s}'"))
+    })?;
+    let d = q * recoup::expr::Q::from_integer(2);
+    if !d.is_integer() || d < recoup::expr::Q::from_integer(0) {
+        return Err(Failure::input(format!(
+            "{name} = {s} is not a nonnegative multiple of 1/2"
+        )));
+    }
+    let d = d.to_integer();
+    if d > 2 * MAX_TABLE_J {
+        return Err(Failure::input(format!(
+            "{name} = {s} is too large for a table (at most {MAX_TABLE_J}); use eval for single values"
+        )));
+    }
+    Ok(d)
+}
+
+pub fn run(a: TableArgs) -> Result<(), Failure> {
+    let t1 = doubled("j1", &a.j1)?;
+    let t2 = doubled("j2", &a.j2)?;
+    if a.json {
+        println!("{}", table::json(t1, t2));
+    } else if a.csv {
+        print!("{}", table::csv(t1, t2));
+    } else {
+        print!("{}", table::text(t1, t2));
+    }
+    Ok(())
+}

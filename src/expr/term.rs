@@ -1,0 +1,534 @@
+//! Terms and expressions. A `Term` is `coef · sqrt(root) · (-1)^phase ·
+//! Π factors`, summed over its `bound` variables; an `Expr` is a sum of
+//! terms. Construction keeps the light normal form every later stage
+//! relies on: factors sorted, equal power bases merged, constant powers and
+//! constant deltas folded, integer constant phases folded into the sign,
+//! identical terms merged.
+
+use super::factor::{Factor, Kind};
+use super::lin::{Lin, Q};
+use super::name::Name;
+use crate::numeric::Surd;
+use num_bigint::{BigInt, BigUint};
+use num_rational::BigRational;
+use num_traits::{One, Signed, ToPrimitive, Zero};
+use std::collections::{BTreeMap, BTreeSet};
+
+/// `coef · sqrt(root) · (-1)^phase · Π factors`, summed over `bound`.
+#[derive(Clone, PartialEq, Eq, Hash, Debug)]
+pub struct Term {
+    /// rational coefficient
+    pub coef: BigRational,
+    /// square-free radicand of the constant (1 for none)
+    pub root: BigUint,
+    /// the exponent of the phase `(-1)^phase`
+    pub phase: Lin,
+    /// the factors, in canonical order
+    pub factors: Vec<Factor>,
+    /// summed variables, sorted
+    pub bound: Vec<Name>,
+}
+
+/// A sum of terms (the empty sum is 0).
+#[derive(Clone, PartialEq, Eq, Hash, Debug, Default)]
+pub struct Expr {
+    /// the terms, in the order written (like terms merged)
+    pub terms: Vec<Term>,
+}
+
+/// Converts a small rational to a big one.
+pub fn big_q(q: Q) -> BigRational {
+    BigRational::new(BigInt::from(*q.numer()), BigInt::from(*q.denom()))
+}
+
+impl Term {
+    /// The constant 1.
+    pub fn one() -> Term {
+        Term {
+            coef: BigRational::one(),
+            root: BigUint::one(),
+            phase: Lin::zero(),
+            factors: Vec::new(),
+            bound: Vec::new(),
+        }
+    }
+
+    /// A constant term `value` (must be a single `q sqrt(s)` monomial).
+    pub fn constant(value: &Surd) -> Option<Term> {
+        let mut t = Term::one();
+        match value.terms().count() {
+            0 => {
+                t.coef = BigRational::zero();
+                Some(t)
+            }
+            1 => {
+                let (s, q) = value.terms().next().unwrap();
+                t.coef = q.clone();
+                t.root = s.clone();
+                Some(t)
+            }
+            _ => None,
+        }
+    }
+
+    /// A term holding one factor.
+    pub fn factor(f: Factor) -> Term {
+        let mut t = Term::one();
+        t.factors.push(f);
+        t.normalized()
+    }
+
+    /// A phase `(-1)^e`.
+    pub fn phase(e: Lin) -> Term {
+        let mut t = Term::one();
+        t.phase = e;
+        t.normalized()
+    }
+
+    /// True when the coefficient is 0.
+    pub fn is_zero(&self) -> bool {
+        self.coef.is_zero()
+    }
+
+    /// The constant part `coef sqrt(root)` as a value.
+    pub fn scalar(&self) -> Surd {
+        Surd::monomial_squarefree(self.coef.clone(), self.root.clone())
+    }
+
+    /// Sets the constant part from a monomial value.
+    pub fn set_scalar(&mut self, v: &Surd) {
+        match Term::constant(v) {
+            Some(c) => {
+                self.coef = c.coef;
+                self.root = c.root;
+            }
+            None => panic!("scalar must be a monomial"),
+        }
+    }
+
+    /// Multiplies the constant part by a monomial value.
+    pub fn scale(&mut self, v: &Surd) {
+        let s = &self.scalar() * v;
+        self.set_scalar(&s);
+    }
+
+    /// Every variable that occurs (free or bound).
+    pub fn all_vars(&self) -> BTreeSet<Name> {
+        let mut s: BTreeSet<Name> = self.phase.vars().cloned().collect();
+        for f in &self.factors {
+            for l in f.lins() {
+                s.extend(l.vars().cloned());
+            }
+        }
+        s.extend(self.bound.iter().cloned());
+        s
+    }
+
+    /// The free variables.
+    pub fn free_vars(&self) -> BTreeSet<Name> {
+        let mut s = self.all_vars();
+        for b in &self.bound {
+            s.remove(b);
+        }
+        s
+    }
+
+    /// Renames variables (free or bound) by a map.
+    pub fn rename(&self, map: &BTreeMap<Name, Name>) -> Term {
+        let mut t = self.clone();
+        t.phase = t.phase.rename(map);
+        t.factors = t.factors.iter().map(|f| f.rename(map)).collect();
+        t.bound = t
+            .bound
+            .iter()
+            .map(|b| map.get(b).cloned().unwrap_or_else(|| b.clone()))
+            .collect();
+        t.normalized()
+    }
+
+    /// Substitutes a free variable by a linear form.
+    pub fn substitute(&self, v: &Name, by: &Lin) -> Term {
+        let mut t = self.clone();
+        t.phase = t.phase.substitute(v, by);
+        t.factors = t.factors.iter().map(|f| f.substitute(v, by)).collect();
+        t.normalized()
+    }
+
+    /// Renames bound variables so none of them is in `avoid`.
+    pub fn freshen(&self, avoid: &BTreeSet<Name>) -> Term {
+        let mut taken: BTreeSet<Name> = avoid.clone();
+        taken.extend(self.all_vars());
+        let mut map = BTreeMap::new();
+        for b in &self.bound {
+            if avoid.contains(b) {
+                let mut n = b.primed();
+                while taken.contains(&n) {
+                    n = n.primed();
+                }
+                taken.insert(n.clone());
+                map.insert(b.clone(), n);
+            }
+        }
+        if map.is_empty() {
+            self.clone()
+        } else {
+            self.rename(&map)
+        }
+    }
+
+    /// The product of two terms (bound variables renamed apart).
+    pub fn mul(&self, other: &Term) -> Term {
+        let a = self.freshen(&other.all_vars());
+        let b = other.freshen(&a.all_vars());
+        let mut t = a.clone();
+        let s = &a.scalar() * &b.scalar();
+        t.set_scalar(&s);
+        t.phase = &a.phase + &b.phase;
+        t.factors.extend(b.factors.iter().cloned());
+        t.bound.extend(b.bound.iter().cloned());
+        t.normalized()
+    }
+
+    /// Kinds of the variables of this term (bound ones included).
+    pub fn kinds(&self) -> BTreeMap<Name, Kind> {
+        let mut out = BTreeMap::new();
+        for v in self.all_vars() {
+            out.insert(v, Kind::Other);
+        }
+        for f in &self.factors {
+            for l in f.m_slots() {
+                for v in l.vars() {
+                    let e = out.get_mut(v).unwrap();
+                    if *e == Kind::Other {
+                        *e = Kind::Projection;
+                    }
+                }
+            }
+        }
+        for f in &self.factors {
+            for l in f.j_slots() {
+                for v in l.vars() {
+                    out.insert(v.clone(), Kind::AngularMomentum);
+                }
+            }
+        }
+        out
+    }
+
+    /// The light normal form (see the module comment).
+    pub fn normalized(mut self) -> Term {
+        if self.coef.is_zero() {
+            return self.zeroed();
+        }
+        // merge powers with equal primitive bases, fold constants
+        let mut powers: BTreeMap<Lin, Q> = BTreeMap::new();
+        let mut others = Vec::new();
+        let mut scalar = self.scalar();
+        for f in std::mem::take(&mut self.factors) {
+            match f {
+                Factor::Power(base, e) => {
+                    let (k, mut prim) = base.primitive();
+                    let mut sign_flip = false;
+                    if prim.leading_negative() && e.is_integer() {
+                        prim = -&prim;
+                        sign_flip = e.to_integer() % 2 != 0;
+                    }
+                    if base.is_zero() {
+                        others.push(Factor::Power(Lin::zero(), e));
+                        continue;
+                    }
+                    // k^e into the scalar
+                    if k != Q::one() {
+                        match power_of_rational(k, e) {
+                            Some(v) => scalar = &scalar * &v,
+                            None => {
+                                others.push(Factor::Power(base, e));
+                                continue;
+                            }
+                        }
+                    }
+                    if sign_flip {
+                        scalar = -scalar;
+                    }
+                    if prim.is_constant() {
+                        // prim is 1 or -1 here
+                        if prim.constant_part() == Q::one() {
+                            continue;
+                        }
+                        others.push(Factor::Power(prim, e));
+                        continue;
+                    }
+                    *powers.entry(prim).or_insert_with(Q::zero) += e;
+                }
+                Factor::Delta(a, b) => {
+                    let d = &a - &b;
+                    if d.is_constant() {
+                        if d.is_zero() {
+                            continue;
+                        }
+                        return self.zeroed();
+                    }
+                    // canonical orientation of the pair
+                    if a <= b {
+                        others.push(Factor::Delta(a, b));
+                    } else {
+                        others.push(Factor::Delta(b, a));
+                    }
+                }
+                Factor::Tri(t) => {
+                    if t.iter().all(|l| l.is_constant()) {
+                        let v: Option<Vec<i64>> =
+                            t.iter().map(|l| doubled(l.constant_part())).collect();
+                        if let Some(v) = v {
+                            if crate::numeric::exact::triangle2(v[0], v[1], v[2]) {
+                                continue;
+                            }
+                        }
+                        return self.zeroed();
+                    }
+                    others.push(Factor::Tri(t));
+                }
+                other => others.push(other),
+            }
+        }
+        for (base, e) in powers {
+            if !e.is_zero() {
+                others.push(Factor::Power(base, e));
+            }
+        }
+        others.sort();
+        self.factors = others;
+        if scalar.is_zero() {
+            return self.zeroed();
+        }
+        self.set_scalar(&scalar);
+        // phase: constant integer part reduced mod 2; a constant phase folds
+        let c = self.phase.constant_part();
+        if c.is_integer() {
+            let r = c.to_integer().rem_euclid(2);
+            self.phase = self
+                .phase
+                .add_scaled(&Lin::constant(Q::from_integer(r) - c), Q::one());
+            if self.phase.is_constant() && r == 1 {
+                self.coef = -self.coef.clone();
+                self.phase = Lin::zero();
+            }
+        }
+        self.bound.sort();
+        self.bound.dedup();
+        self
+    }
+
+    fn zeroed(mut self) -> Term {
+        self.coef = BigRational::zero();
+        self.root = BigUint::one();
+        self.phase = Lin::zero();
+        self.factors.clear();
+        self.bound.clear();
+        self
+    }
+
+    /// True when two terms differ only in their constant coefficient.
+    pub fn same_shape(&self, other: &Term) -> bool {
+        self.root == other.root
+            && self.phase == other.phase
+            && self.factors == other.factors
+            && self.bound == other.bound
+    }
+}
+
+/// `2q` as an integer, when it is one.
+pub fn doubled(q: Q) -> Option<i64> {
+    let d = q * Q::from_integer(2);
+    if d.is_integer() {
+        Some(d.to_integer())
+    } else {
+        None
+    }
+}
+
+/// `k^e` for a positive rational `k` and an exponent with denominator 1 or
+/// 2, as an exact monomial; `None` otherwise.
+pub fn power_of_rational(k: Q, e: Q) -> Option<Surd> {
+    if k <= Q::zero() && !e.is_integer() {
+        return None;
+    }
+    let twice = e * Q::from_integer(2);
+    if !twice.is_integer() {
+        return None;
+    }
+    let n = twice.to_integer();
+    let kb = big_q(k);
+    if n.unsigned_abs() > 4096 {
+        return None;
+    }
+    // k^(n/2) = (k^|n|)^(1/2) inverted if negative
+    let mut p = BigRational::one();
+    for _ in 0..n.unsigned_abs() {
+        p *= &kb;
+    }
+    if n < 0 {
+        if p.is_zero() {
+            return None;
+        }
+        p = p.recip();
+    }
+    if n % 2 == 0 {
+        // integer power: p is k^(2|e|); we need k^e = sqrt(p) exactly = k^(n/2)
+        let mut q = BigRational::one();
+        for _ in 0..(n.unsigned_abs() / 2) {
+            q *= &kb;
+        }
+        if n < 0 {
+            q = q.recip();
+        }
+        return Some(Surd::from_rational(q));
+    }
+    Surd::signed_sqrt(false, &p).ok()
+}
+
+impl Expr {
+    /// 0.
+    pub fn zero() -> Expr {
+        Expr::default()
+    }
+
+    /// A one-term expression.
+    pub fn from_term(t: Term) -> Expr {
+        let mut e = Expr::zero();
+        e.push(t);
+        e
+    }
+
+    /// A constant.
+    pub fn constant(v: &Surd) -> Expr {
+        let mut e = Expr::zero();
+        for (s, q) in v.terms() {
+            e.push(Term::constant(&Surd::monomial_squarefree(q.clone(), s.clone())).unwrap());
+        }
+        e
+    }
+
+    /// Adds a term, merging it into a like term when there is one.
+    pub fn push(&mut self, t: Term) {
+        if t.is_zero() {
+            return;
+        }
+        if let Some(pos) = self.terms.iter().position(|u| u.same_shape(&t)) {
+            let c = &self.terms[pos].coef + &t.coef;
+            if c.is_zero() {
+                self.terms.remove(pos);
+            } else {
+                self.terms[pos].coef = c;
+            }
+        } else {
+            self.terms.push(t);
+        }
+    }
+
+    /// The sum of two expressions.
+    pub fn add(&self, other: &Expr) -> Expr {
+        let mut e = self.clone();
+        for t in &other.terms {
+            e.push(t.clone());
+        }
+        e
+    }
+
+    /// The negation.
+    pub fn neg(&self) -> Expr {
+        let mut e = self.clone();
+        for t in &mut e.terms {
+            t.coef = -t.coef.clone();
+        }
+        e
+    }
+
+    /// The product (expanded).
+    pub fn mul(&self, other: &Expr) -> Expr {
+        let mut e = Expr::zero();
+        for a in &self.terms {
+            for b in &other.terms {
+                e.push(a.mul(b));
+            }
+        }
+        e
+    }
+
+    /// True for 0.
+    pub fn is_zero(&self) -> bool {
+        self.terms.is_empty()
+    }
+
+    /// The free variables of all terms.
+    pub fn free_vars(&self) -> BTreeSet<Name> {
+        let mut s = BTreeSet::new();
+        for t in &self.terms {
+            s.extend(t.free_vars());
+        }
+        s
+    }
+
+    /// Kinds of the free variables (angular momentum wins over projection).
+    pub fn kinds(&self) -> BTreeMap<Name, Kind> {
+        let free = self.free_vars();
+        let mut out: BTreeMap<Name, Kind> = BTreeMap::new();
+        for t in &self.terms {
+            for (v, k) in t.kinds() {
+                if !free.contains(&v) || t.bound.contains(&v) {
+                    continue;
+                }
+                let e = out.entry(v).or_insert(Kind::Other);
+                if k < *e {
+                    *e = k;
+                }
+            }
+        }
+        out
+    }
+
+    /// Applies a substitution of a free variable.
+    pub fn substitute(&self, v: &Name, by: &Lin) -> Expr {
+        let mut e = Expr::zero();
+        for t in &self.terms {
+            let t = t.freshen(&by.vars().cloned().collect());
+            e.push(t.substitute(v, by));
+        }
+        e
+    }
+
+    /// Renames free variables.
+    pub fn rename(&self, map: &BTreeMap<Name, Name>) -> Expr {
+        let mut e = Expr::zero();
+        for t in &self.terms {
+            let avoid: BTreeSet<Name> = map.values().cloned().collect();
+            let t = t.freshen(&avoid);
+            e.push(t.rename(map));
+        }
+        e
+    }
+
+    /// The number of terms.
+    pub fn len(&self) -> usize {
+        self.terms.len()
+    }
+
+    /// True for no terms.
+    pub fn is_empty(&self) -> bool {
+        self.terms.is_empty()
+    }
+}
+
+/// The value of an integer-valued `BigRational` as i64, if it fits.
+pub fn rational_to_i64(q: &BigRational) -> Option<i64> {
+    if q.is_integer() {
+        q.numer().to_i64()
+    } else {
+        None
+    }
+}
+
+/// True when the rational is negative.
+pub fn is_negative(q: &BigRational) -> bool {
+    q.is_negative()
+}

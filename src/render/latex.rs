@@ -1,0 +1,275 @@
+//! LaTeX for expressions (amsmath): `pmatrix` for 3j symbols, `Bmatrix`
+//! for 6j and 9j, `\langle … | … \rangle` for Clebsch–Gordan coefficients,
+//! `\sum_{m_1 m_2}` for sums, subscripts from trailing digits (`j12` →
+//! `j_{12}`), primes kept, Greek names as Greek letters.
+
+use crate::expr::factor::is_hat_base;
+use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{One, Signed, Zero};
+use std::collections::BTreeSet;
+
+const GREEK: &[&str] = &[
+    "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "iota", "kappa",
+    "lambda", "mu", "nu", "xi", "pi", "rho", "sigma", "tau", "upsilon", "phi", "chi", "psi",
+    "omega", "Gamma", "Delta", "Theta", "Lambda", "Xi", "Pi", "Sigma", "Phi", "Psi", "Omega",
+];
+
+/// A variable name in LaTeX.
+pub fn name(n: &Name) -> String {
+    let s = n.as_str();
+    let base_end = s.find('\'').unwrap_or(s.len());
+    let (body, primes) = s.split_at(base_end);
+    let (head, sub) = if let Some((h, t)) = body.split_once('_') {
+        (h.to_string(), t.replace('_', ","))
+    } else {
+        let alpha_end = body
+            .find(|c: char| c.is_ascii_digit())
+            .unwrap_or(body.len());
+        let alpha = &body[..alpha_end];
+        let digits = &body[alpha_end..];
+        if GREEK.contains(&alpha) || alpha.len() == 1 {
+            (alpha.to_string(), digits.to_string())
+        } else {
+            // m_a style: first letter, the rest as a subscript
+            (alpha[..1].to_string(), body[1..].to_string())
+        }
+    };
+    let head = if GREEK.contains(&head.as_str()) {
+        format!("\\{head}")
+    } else if head.len() > 1 {
+        format!("\\mathit{{{head}}}")
+    } else {
+        head
+    };
+    let mut out = head;
+    if !sub.is_empty() {
+        if sub.len() == 1 {
+            out.push('_');
+            out.push_str(&sub);
+        } else {
+            out.push_str(&format!("_{{{sub}}}"));
+        }
+    }
+    out.push_str(primes);
+    out
+}
+
+fn frac(q: &Q) -> String {
+    if q.is_integer() {
+        q.numer().to_string()
+    } else {
+        format!("\\tfrac{{{}}}{{{}}}", q.numer(), q.denom())
+    }
+}
+
+/// A linear form: `j_1+j_2-j_3`, `2x+1`, `j+\tfrac{1}{2}`.
+pub fn lin(l: &Lin) -> String {
+    let mut s = String::new();
+    let mut first = true;
+    for (v, c) in l.terms() {
+        let a = c.abs();
+        if c.is_negative() {
+            s.push('-');
+        } else if !first {
+            s.push('+');
+        }
+        if !a.is_one() {
+            s.push_str(&frac(&a));
+        }
+        s.push_str(&name(v));
+        first = false;
+    }
+    let c0 = l.constant_part();
+    if !c0.is_zero() || first {
+        if c0.is_negative() {
+            s.push('-');
+        } else if !first {
+            s.push('+');
+        }
+        s.push_str(&frac(&c0.abs()));
+    }
+    s
+}
+
+fn row(ls: &[Lin]) -> String {
+    ls.iter().map(lin).collect::<Vec<_>>().join(" & ")
+}
+
+fn power(base: &Lin, e: Q) -> String {
+    let twice = (e * Q::from_integer(2)).to_integer();
+    if twice % 2 != 0 {
+        let r = if is_hat_base(base) {
+            let l = base.add_scaled(&Lin::int(-1), Q::one()).scale(Q::new(1, 2));
+            match l.as_var() {
+                Some(v) => {
+                    let n = name(v);
+                    // \hat{j}_{12}: put the hat on the head only
+                    match n.find(['_', '\'']) {
+                        Some(i) => format!("\\hat{{{}}}{}", &n[..i], &n[i..]),
+                        None => format!("\\hat{{{n}}}"),
+                    }
+                }
+                None => format!("\\sqrt{{{}}}", lin(base)),
+            }
+        } else {
+            format!("\\sqrt{{{}}}", lin(base))
+        };
+        if twice == 1 {
+            r
+        } else {
+            format!("{r}^{{{twice}}}")
+        }
+    } else {
+        let n = twice / 2;
+        let b = if base.as_var().is_some() {
+            lin(base)
+        } else {
+            format!("({})", lin(base))
+        };
+        if n == 1 {
+            b
+        } else {
+            format!("{b}^{{{n}}}")
+        }
+    }
+}
+
+/// One factor in LaTeX (negative powers as their positive counterpart).
+pub fn factor(f: &Factor) -> String {
+    match f {
+        Factor::Delta(a, b) => format!("\\delta_{{{},{}}}", lin(a), lin(b)),
+        Factor::Tri([a, b, c]) => format!("\\{{{}\\,{}\\,{}\\}}", lin(a), lin(b), lin(c)),
+        Factor::Power(b, e) => power(b, e.abs()),
+        Factor::ThreeJ(a) => format!(
+            "\\begin{{pmatrix}} {} \\\\ {} \\end{{pmatrix}}",
+            row(&a[..3]),
+            row(&a[3..])
+        ),
+        Factor::Cg(a) => format!(
+            "\\langle {}\\, {},\\, {}\\, {} | {}\\, {} \\rangle",
+            lin(&a[0]),
+            lin(&a[1]),
+            lin(&a[2]),
+            lin(&a[3]),
+            lin(&a[4]),
+            lin(&a[5])
+        ),
+        Factor::SixJ(a) => format!(
+            "\\begin{{Bmatrix}} {} \\\\ {} \\end{{Bmatrix}}",
+            row(&a[..3]),
+            row(&a[3..])
+        ),
+        Factor::NineJ(a) => format!(
+            "\\begin{{Bmatrix}} {} \\\\ {} \\\\ {} \\end{{Bmatrix}}",
+            row(&a[..3]),
+            row(&a[3..6]),
+            row(&a[6..])
+        ),
+    }
+}
+
+fn product(coef: &BigRational, root: &num_bigint::BigUint, phase: Option<&Lin>, fs: &[&Factor]) -> String {
+    let neg = coef.is_negative();
+    let a = coef.abs();
+    let mut num: Vec<String> = Vec::new();
+    let mut den: Vec<String> = Vec::new();
+    if !root.is_one() {
+        let sq = &a * &a * BigRational::from_integer(BigInt::from(root.clone()));
+        if sq.is_integer() {
+            num.push(format!("\\sqrt{{{}}}", sq.numer()));
+        } else {
+            num.push(format!("\\sqrt{{\\frac{{{}}}{{{}}}}}", sq.numer(), sq.denom()));
+        }
+    } else {
+        if !a.numer().is_one() {
+            num.push(a.numer().to_string());
+        }
+        if !a.denom().is_one() {
+            den.push(a.denom().to_string());
+        }
+    }
+    if let Some(p) = phase {
+        if !p.is_zero() {
+            num.push(format!("(-1)^{{{}}}", lin(p)));
+        }
+    }
+    for f in fs {
+        let s = factor(f);
+        if matches!(f, Factor::Power(_, e) if e.is_negative()) {
+            den.push(s);
+        } else {
+            num.push(s);
+        }
+    }
+    let n = if num.is_empty() {
+        "1".to_string()
+    } else {
+        num.join(" ")
+    };
+    let body = if den.is_empty() {
+        n
+    } else {
+        format!("\\frac{{{}}}{{{}}}", n, den.join(" "))
+    };
+    if neg {
+        format!("-{body}")
+    } else {
+        body
+    }
+}
+
+/// One term in LaTeX.
+pub fn term(t: &Term) -> String {
+    if t.bound.is_empty() {
+        let fs: Vec<&Factor> = t.factors.iter().collect();
+        return product(&t.coef, &t.root, Some(&t.phase), &fs);
+    }
+    let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+    let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = t
+        .factors
+        .iter()
+        .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
+    let inside_phase = t.phase.has_any(&bound);
+    let out = product(
+        &t.coef,
+        &t.root,
+        if inside_phase { None } else { Some(&t.phase) },
+        &outer,
+    );
+    let ins = product(
+        &BigRational::one(),
+        &num_bigint::BigUint::one(),
+        if inside_phase { Some(&t.phase) } else { None },
+        &inner,
+    );
+    let names: Vec<String> = t.bound.iter().map(name).collect();
+    let sum = format!("\\sum_{{{}}} {}", names.join(" "), ins);
+    match out.as_str() {
+        "1" => sum,
+        "-1" => format!("-{sum}"),
+        o => format!("{o} {sum}"),
+    }
+}
+
+/// A whole expression in LaTeX (math mode content, no delimiters).
+pub fn expr(e: &Expr) -> String {
+    if e.is_zero() {
+        return "0".into();
+    }
+    let mut s = String::new();
+    for (i, t) in e.terms.iter().enumerate() {
+        let x = term(t);
+        if i == 0 {
+            s.push_str(&x);
+        } else if let Some(r) = x.strip_prefix('-') {
+            s.push_str(" - ");
+            s.push_str(r);
+        } else {
+            s.push_str(" + ");
+            s.push_str(&x);
+        }
+    }
+    s
+}

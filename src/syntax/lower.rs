@@ -1,0 +1,715 @@
+//! Lowering of pest pairs to the data model. Linear subexpressions stay
+//! linear forms (so `(2*j+1)` is one factor and `j1+1/2` a symbol
+//! argument); everything else becomes an expanded `Expr`. Semantic errors
+//! (a nonlinear symbol argument, a wrong symbol shape, division by a
+//! symbol) point at the offending span.
+
+use super::error::ParseError;
+use super::Rule;
+use crate::expr::term::big_q;
+use crate::expr::{CouplingTree, Expr, Factor, Lin, Name, Term, Q};
+use crate::numeric::Surd;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{One, Signed, ToPrimitive, Zero};
+use pest::iterators::Pair;
+use pest::pratt_parser::{Assoc, Op, PrattParser};
+use std::collections::BTreeMap;
+use std::sync::OnceLock;
+
+/// Most terms an expansion may produce before the input is refused.
+pub const MAX_TERMS: usize = 20_000;
+/// Largest magnitude of a numerator or denominator in a linear form.
+const LIN_LIMIT: i64 = 1 << 40;
+
+fn pratt() -> &'static PrattParser<Rule> {
+    static P: OnceLock<PrattParser<Rule>> = OnceLock::new();
+    P.get_or_init(|| {
+        PrattParser::new()
+            .op(Op::infix(Rule::add, Assoc::Left) | Op::infix(Rule::sub, Assoc::Left))
+            .op(Op::infix(Rule::mul, Assoc::Left)
+                | Op::infix(Rule::div, Assoc::Left)
+                | Op::infix(Rule::juxtapose, Assoc::Left))
+            .op(Op::prefix(Rule::neg))
+            .op(Op::postfix(Rule::power))
+    })
+}
+
+/// A linear form with big rational coefficients (before range checks).
+#[derive(Clone, Debug, Default)]
+struct BigLin {
+    c0: BigRational,
+    coeffs: BTreeMap<Name, BigRational>,
+}
+
+impl BigLin {
+    fn constant(q: BigRational) -> Self {
+        BigLin {
+            c0: q,
+            coeffs: BTreeMap::new(),
+        }
+    }
+    fn var(n: Name) -> Self {
+        let mut coeffs = BTreeMap::new();
+        coeffs.insert(n, BigRational::one());
+        BigLin {
+            c0: BigRational::zero(),
+            coeffs,
+        }
+    }
+    fn is_constant(&self) -> bool {
+        self.coeffs.is_empty()
+    }
+    fn add(&self, o: &BigLin, k: &BigRational) -> BigLin {
+        let mut out = self.clone();
+        out.c0 += &o.c0 * k;
+        for (v, c) in &o.coeffs {
+            let e = out.coeffs.entry(v.clone()).or_insert_with(BigRational::zero);
+            *e += c * k;
+            if e.is_zero() {
+                out.coeffs.remove(v);
+            }
+        }
+        out
+    }
+    fn scale(&self, k: &BigRational) -> BigLin {
+        BigLin::default().add(self, k)
+    }
+    fn from_lin(l: &Lin) -> BigLin {
+        let mut out = BigLin::constant(big_q(l.constant_part()));
+        for (v, c) in l.terms() {
+            out.coeffs.insert(v.clone(), big_q(*c));
+        }
+        out
+    }
+}
+
+fn small_q(q: &BigRational) -> Option<Q> {
+    let n = q.numer().to_i64()?;
+    let d = q.denom().to_i64()?;
+    if n.abs() > LIN_LIMIT || d > LIN_LIMIT {
+        return None;
+    }
+    Some(Q::new(n, d))
+}
+
+/// The value of a subexpression during lowering.
+#[derive(Clone, Debug)]
+enum Value {
+    Lin(BigLin),
+    Expr(Expr),
+}
+
+struct Ctx<'a> {
+    input: &'a str,
+}
+
+type R<T> = Result<T, ParseError>;
+
+impl Ctx<'_> {
+    fn err(&self, pos: usize, msg: impl Into<String>) -> ParseError {
+        ParseError::at(self.input, pos, msg)
+    }
+
+    fn to_lin(&self, b: &BigLin, pos: usize) -> R<Lin> {
+        let too_big = || self.err(pos, "a number in this linear form is too large");
+        let mut l = Lin::constant(small_q(&b.c0).ok_or_else(too_big)?);
+        for (v, c) in &b.coeffs {
+            let q = small_q(c).ok_or_else(too_big)?;
+            l = l.add_scaled(&Lin::var(v.clone()), q);
+        }
+        Ok(l)
+    }
+
+    fn into_expr(&self, v: Value, pos: usize) -> R<Expr> {
+        match v {
+            Value::Expr(e) => Ok(e),
+            Value::Lin(b) => {
+                if b.is_constant() {
+                    Ok(Expr::constant(&Surd::from_rational(b.c0)))
+                } else {
+                    let l = self.to_lin(&b, pos)?;
+                    Ok(Expr::from_term(Term::factor(Factor::Power(l, Q::one()))))
+                }
+            }
+        }
+    }
+
+    /// A value that must be linear (symbol arguments, phase exponents).
+    fn as_lin(&self, v: Value, pos: usize, what: &str) -> R<Lin> {
+        match v {
+            Value::Lin(b) => self.to_lin(&b, pos),
+            Value::Expr(e) => match expr_as_lin(&e) {
+                Some(l) => Ok(l),
+                None => Err(self.err(
+                    pos,
+                    format!("{what} must be a linear combination of names and numbers"),
+                )),
+            },
+        }
+    }
+
+    fn lower(&self, pair: Pair<Rule>) -> R<Value> {
+        let pos = pair.as_span().start();
+        debug_assert_eq!(pair.as_rule(), Rule::expr);
+        pratt()
+            .map_primary(|p| self.primary(p))
+            .map_prefix(|op, rhs| {
+                let rhs = rhs?;
+                let _ = op;
+                Ok(neg(rhs))
+            })
+            .map_postfix(|lhs, op| {
+                let lhs = lhs?;
+                let at = op.as_span().start();
+                let ex = op.into_inner().next().unwrap();
+                let txt: String = ex.as_str().chars().filter(|c| *c != '(' && *c != ')').collect();
+                let n: i64 = txt
+                    .trim()
+                    .parse()
+                    .map_err(|_| self.err(at, "this exponent is too large"))?;
+                self.power(lhs, n, at)
+            })
+            .map_infix(|lhs, op, rhs| {
+                let lhs = lhs?;
+                let rhs = rhs?;
+                let at = op.as_span().start();
+                match op.as_rule() {
+                    Rule::add => self.add(lhs, rhs, false, at),
+                    Rule::sub => self.add(lhs, rhs, true, at),
+                    Rule::mul | Rule::juxtapose => self.mul(lhs, rhs, at),
+                    Rule::div => self.div(lhs, rhs, at),
+                    _ => unreachable!("operator rule"),
+                }
+            })
+            .parse(pair.into_inner())
+            .map_err(|e: ParseError| {
+                let _ = pos;
+                e
+            })
+    }
+
+    fn add(&self, a: Value, b: Value, sub: bool, at: usize) -> R<Value> {
+        let k = if sub {
+            -BigRational::one()
+        } else {
+            BigRational::one()
+        };
+        match (a, b) {
+            (Value::Lin(x), Value::Lin(y)) => Ok(Value::Lin(x.add(&y, &k))),
+            (a, b) => {
+                let x = self.into_expr(a, at)?;
+                let y = self.into_expr(b, at)?;
+                let y = if sub { y.neg() } else { y };
+                let e = x.add(&y);
+                self.check_size(&e, at)?;
+                Ok(Value::Expr(e))
+            }
+        }
+    }
+
+    fn check_size(&self, e: &Expr, at: usize) -> R<()> {
+        if e.len() > MAX_TERMS {
+            return Err(self.err(
+                at,
+                format!("the expansion has more than {MAX_TERMS} terms; refusing to go on"),
+            ));
+        }
+        Ok(())
+    }
+
+    fn mul(&self, a: Value, b: Value, at: usize) -> R<Value> {
+        match (&a, &b) {
+            (Value::Lin(x), Value::Lin(y)) if x.is_constant() => Ok(Value::Lin(y.scale(&x.c0))),
+            (Value::Lin(x), Value::Lin(y)) if y.is_constant() => Ok(Value::Lin(x.scale(&y.c0))),
+            _ => {
+                let x = self.into_expr(a, at)?;
+                let y = self.into_expr(b, at)?;
+                if x.len().saturating_mul(y.len()) > MAX_TERMS {
+                    return Err(self.err(
+                        at,
+                        format!(
+                            "the expansion has more than {MAX_TERMS} terms; refusing to go on"
+                        ),
+                    ));
+                }
+                Ok(Value::Expr(x.mul(&y)))
+            }
+        }
+    }
+
+    fn div(&self, a: Value, b: Value, at: usize) -> R<Value> {
+        if let Value::Lin(y) = &b {
+            if y.is_constant() {
+                if y.c0.is_zero() {
+                    return Err(self.err(at, "division by zero"));
+                }
+                let inv = y.c0.recip();
+                return match a {
+                    Value::Lin(x) => Ok(Value::Lin(x.scale(&inv))),
+                    Value::Expr(e) => {
+                        Ok(Value::Expr(e.mul(&Expr::constant(&Surd::from_rational(inv)))))
+                    }
+                };
+            }
+        }
+        let inv = self.invert(b, at)?;
+        let x = self.into_expr(a, at)?;
+        Ok(Value::Expr(x.mul(&Expr::from_term(inv))))
+    }
+
+    /// `1/b` for a single term made of a constant, a phase and powers.
+    fn invert(&self, b: Value, at: usize) -> R<Term> {
+        let e = self.into_expr(b, at)?;
+        if e.len() != 1 {
+            return Err(self.err(
+                at,
+                "only a product of numbers, powers, hats and phases can be divided by",
+            ));
+        }
+        let t = &e.terms[0];
+        if !t.bound.is_empty() {
+            return Err(self.err(at, "a sum cannot be divided by"));
+        }
+        let mut out = Term::one();
+        out.set_scalar(&t.scalar().recip().expect("nonzero monomial"));
+        out.phase = -&t.phase;
+        for f in &t.factors {
+            match f {
+                Factor::Power(base, ex) => out.factors.push(Factor::Power(base.clone(), -*ex)),
+                other => {
+                    return Err(self.err(
+                        at,
+                        format!("cannot divide by a {}: it may be zero", other.kind_name()),
+                    ))
+                }
+            }
+        }
+        Ok(out.normalized())
+    }
+
+    fn power(&self, base: Value, n: i64, at: usize) -> R<Value> {
+        if n.abs() > 64 {
+            return Err(self.err(at, "powers are limited to |n| <= 64"));
+        }
+        match base {
+            Value::Lin(b) if b.is_constant() => {
+                if b.c0.is_zero() && n < 0 {
+                    return Err(self.err(at, "division by zero"));
+                }
+                let mut p = BigRational::one();
+                for _ in 0..n.abs() {
+                    p *= &b.c0;
+                }
+                if n < 0 {
+                    p = p.recip();
+                }
+                Ok(Value::Lin(BigLin::constant(p)))
+            }
+            Value::Lin(b) => {
+                let l = self.to_lin(&b, at)?;
+                if n == 0 {
+                    return Ok(Value::Lin(BigLin::constant(BigRational::one())));
+                }
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Power(
+                    l,
+                    Q::from_integer(n),
+                )))))
+            }
+            Value::Expr(e) => {
+                let (base, k) = if n < 0 {
+                    (Expr::from_term(self.invert(Value::Expr(e), at)?), -n)
+                } else {
+                    (e, n)
+                };
+                let mut acc = Expr::constant(&Surd::one());
+                for _ in 0..k {
+                    if acc.len().saturating_mul(base.len()) > MAX_TERMS {
+                        return Err(self.err(
+                            at,
+                            format!(
+                                "the expansion has more than {MAX_TERMS} terms; refusing to go on"
+                            ),
+                        ));
+                    }
+                    acc = acc.mul(&base);
+                }
+                Ok(Value::Expr(acc))
+            }
+        }
+    }
+
+    fn row(&self, pair: Pair<Rule>, what: &str) -> R<Vec<Lin>> {
+        let mut out = Vec::new();
+        for e in pair.into_inner() {
+            let at = e.as_span().start();
+            let v = self.lower(e)?;
+            out.push(self.as_lin(v, at, what)?);
+        }
+        Ok(out)
+    }
+
+    fn primary(&self, p: Pair<Rule>) -> R<Value> {
+        let at = p.as_span().start();
+        match p.as_rule() {
+            Rule::number => {
+                let n: BigInt = p.as_str().parse().unwrap();
+                Ok(Value::Lin(BigLin::constant(BigRational::from_integer(n))))
+            }
+            Rule::ident => Ok(Value::Lin(BigLin::var(Name::new(p.as_str())))),
+            Rule::paren => {
+                let inner = p.into_inner().next().unwrap();
+                self.lower(inner)
+            }
+            Rule::phase => {
+                let ex = p.into_inner().next().unwrap();
+                let inner = ex.into_inner().next().unwrap();
+                let eat = inner.as_span().start();
+                let v = self.primary(inner)?;
+                let l = self.as_lin(v, eat, "the exponent of a phase")?;
+                Ok(Value::Expr(Expr::from_term(Term::phase(l))))
+            }
+            Rule::three_j => {
+                let mut rows = p.into_inner();
+                let r1 = self.row(rows.next().unwrap(), "an argument of a 3j symbol")?;
+                let r2 = self.row(rows.next().unwrap(), "an argument of a 3j symbol")?;
+                if r1.len() != 3 || r2.len() != 3 {
+                    return Err(self.err(
+                        at,
+                        format!(
+                            "a 3j symbol has two rows of three entries, (j1, j2, j3; m1, m2, m3); this one has {} and {}",
+                            r1.len(),
+                            r2.len()
+                        ),
+                    ));
+                }
+                let a: Vec<Lin> = r1.into_iter().chain(r2).collect();
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::ThreeJ(
+                    a.try_into().unwrap(),
+                )))))
+            }
+            Rule::braces => {
+                let mut rows = Vec::new();
+                for r in p.into_inner() {
+                    rows.push(self.row(r, "an entry of a 6j or 9j symbol")?);
+                }
+                let shape: Vec<usize> = rows.iter().map(|r| r.len()).collect();
+                let all: Vec<Lin> = rows.into_iter().flatten().collect();
+                let f = match shape.as_slice() {
+                    [3, 3] => Factor::SixJ(all.try_into().unwrap()),
+                    [3, 3, 3] => Factor::NineJ(all.try_into().unwrap()),
+                    _ => {
+                        return Err(self.err(
+                            at,
+                            format!(
+                                "braces hold a 6j symbol (two rows of three) or a 9j symbol (three rows of three); these rows have {} entries",
+                                shape.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ")
+                            ),
+                        ))
+                    }
+                };
+                Ok(Value::Expr(Expr::from_term(Term::factor(f))))
+            }
+            Rule::clebsch_gordan => {
+                let mut a = Vec::new();
+                for e in p.into_inner() {
+                    let eat = e.as_span().start();
+                    let v = self.lower(e)?;
+                    a.push(self.as_lin(
+                        v,
+                        eat,
+                        "an argument of a Clebsch-Gordan coefficient",
+                    )?);
+                }
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Cg(
+                    a.try_into().unwrap(),
+                )))))
+            }
+            Rule::sum => self.sum(p),
+            Rule::call => self.call(p),
+            r => unreachable!("primary rule {r:?}"),
+        }
+    }
+
+    fn sum(&self, p: Pair<Rule>) -> R<Value> {
+        let mut names = Vec::new();
+        let mut body = None;
+        for q in p.into_inner() {
+            match q.as_rule() {
+                Rule::ident => {
+                    let n = Name::new(q.as_str());
+                    if names.contains(&n) {
+                        return Err(self.err(
+                            q.as_span().start(),
+                            format!("{n} is listed twice in this sum"),
+                        ));
+                    }
+                    names.push(n);
+                }
+                Rule::expr => body = Some(q),
+                _ => unreachable!(),
+            }
+        }
+        let body = body.unwrap();
+        let bat = body.as_span().start();
+        let v = self.lower(body)?;
+        let e = self.into_expr(v, bat)?;
+        let mut out = Expr::zero();
+        for t in e.terms {
+            let mut t = t;
+            for n in &names {
+                if t.bound.contains(n) {
+                    // an inner sum over the same name: rename the inner one
+                    t = t.freshen(&[n.clone()].into_iter().collect());
+                }
+            }
+            t.bound.extend(names.iter().cloned());
+            out.push(t.normalized());
+        }
+        Ok(Value::Expr(out))
+    }
+
+    fn call(&self, p: Pair<Rule>) -> R<Value> {
+        let at = p.as_span().start();
+        let mut it = p.into_inner();
+        let fname = it.next().unwrap().as_str().to_string();
+        let args: Vec<Pair<Rule>> = it.collect();
+        let want = match fname.as_str() {
+            "hat" | "sqrt" => 1,
+            "delta" => 2,
+            "tri" => 3,
+            _ => unreachable!(),
+        };
+        if args.len() != want {
+            return Err(self.err(
+                at,
+                format!(
+                    "{fname} takes {want} argument{}, not {}",
+                    if want == 1 { "" } else { "s" },
+                    args.len()
+                ),
+            ));
+        }
+        let mut vals = Vec::new();
+        for a in args {
+            let aat = a.as_span().start();
+            vals.push((self.lower(a)?, aat));
+        }
+        match fname.as_str() {
+            "hat" => {
+                let (v, aat) = vals.pop().unwrap();
+                let l = self.as_lin(v, aat, "the argument of hat")?;
+                let base = l.scale(Q::from_integer(2)).add_scaled(&Lin::int(1), Q::one());
+                if base.is_constant() {
+                    let c = big_q(base.constant_part());
+                    if c.is_negative() {
+                        return Err(self.err(aat, "hat(j) needs j >= -1/2"));
+                    }
+                    return self.sqrt_constant(c, aat);
+                }
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Power(
+                    base,
+                    Q::new(1, 2),
+                )))))
+            }
+            "sqrt" => {
+                let (v, aat) = vals.pop().unwrap();
+                self.sqrt(v, aat)
+            }
+            "delta" => {
+                let mut ls = Vec::new();
+                for (v, aat) in vals {
+                    ls.push(self.as_lin(v, aat, "an argument of delta")?);
+                }
+                let b = ls.pop().unwrap();
+                let a = ls.pop().unwrap();
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Delta(a, b)))))
+            }
+            "tri" => {
+                let mut ls = Vec::new();
+                for (v, aat) in vals {
+                    ls.push(self.as_lin(v, aat, "an argument of tri")?);
+                }
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Tri(
+                    ls.try_into().unwrap(),
+                )))))
+            }
+            _ => unreachable!(),
+        }
+    }
+
+    fn sqrt_constant(&self, c: BigRational, at: usize) -> R<Value> {
+        let s = Surd::signed_sqrt(false, &c).map_err(|e| self.err(at, e.to_string()))?;
+        match s.as_rational() {
+            Some(r) => Ok(Value::Lin(BigLin::constant(r))),
+            None => Ok(Value::Expr(Expr::constant(&s))),
+        }
+    }
+
+    fn sqrt(&self, v: Value, at: usize) -> R<Value> {
+        match v {
+            Value::Lin(b) if b.is_constant() => {
+                if b.c0.is_negative() {
+                    return Err(self.err(at, "square root of a negative number"));
+                }
+                self.sqrt_constant(b.c0, at)
+            }
+            Value::Lin(b) => {
+                let l = self.to_lin(&b, at)?;
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Power(
+                    l,
+                    Q::new(1, 2),
+                )))))
+            }
+            Value::Expr(e) => {
+                let bad = || {
+                    self.err(
+                        at,
+                        "sqrt takes a number or a product of powers of linear forms (a sum of such terms has no exact root here)",
+                    )
+                };
+                if e.len() != 1 {
+                    return Err(bad());
+                }
+                let t = &e.terms[0];
+                if !t.bound.is_empty() || !t.phase.is_zero() {
+                    return Err(bad());
+                }
+                let mut out = Term::one();
+                let (neg, sq) = t.scalar().as_signed_square().unwrap();
+                if neg {
+                    return Err(self.err(at, "square root of a negative number"));
+                }
+                // sqrt(q sqrt(s)) needs s = 1
+                if !t.root.is_one() {
+                    return Err(bad());
+                }
+                let _ = sq;
+                let r = Surd::signed_sqrt(false, &t.coef).map_err(|e| self.err(at, e.to_string()))?;
+                out.set_scalar(&r);
+                for f in &t.factors {
+                    match f {
+                        Factor::Power(b, ex) => {
+                            out.factors.push(Factor::Power(b.clone(), *ex / Q::from_integer(2)))
+                        }
+                        _ => return Err(bad()),
+                    }
+                }
+                Ok(Value::Expr(Expr::from_term(out.normalized())))
+            }
+        }
+    }
+}
+
+fn neg(v: Value) -> Value {
+    match v {
+        Value::Lin(b) => Value::Lin(b.scale(&-BigRational::one())),
+        Value::Expr(e) => Value::Expr(e.neg()),
+    }
+}
+
+/// An expression that is a linear form written as terms `c·(L)`.
+pub fn expr_as_lin(e: &Expr) -> Option<Lin> {
+    let mut acc = BigLin::default();
+    for t in &e.terms {
+        if !t.bound.is_empty() || !t.phase.is_zero() || !t.root.is_one() {
+            return None;
+        }
+        match t.factors.as_slice() {
+            [] => acc.c0 += &t.coef,
+            [Factor::Power(l, ex)] if *ex == Q::one() => {
+                acc = acc.add(&BigLin::from_lin(l), &t.coef);
+            }
+            _ => return None,
+        }
+    }
+    let mut l = Lin::constant(small_q(&acc.c0)?);
+    for (v, c) in &acc.coeffs {
+        l = l.add_scaled(&Lin::var(v.clone()), small_q(c)?);
+    }
+    Some(l)
+}
+
+/// Lowers the `expr` pair of a whole input.
+pub(super) fn lower_expr(input: &str, pair: Pair<Rule>) -> R<Expr> {
+    let ctx = Ctx { input };
+    let at = pair.as_span().start();
+    let v = ctx.lower(pair)?;
+    ctx.into_expr(v, at)
+}
+
+fn parse_fraction(ctx: &Ctx, p: &Pair<Rule>) -> R<Lin> {
+    let s = p.as_str();
+    let at = p.as_span().start();
+    let (n, d) = match s.split_once('/') {
+        Some((n, d)) => (n, d),
+        None => (s, "1"),
+    };
+    let n: i64 = n
+        .parse()
+        .map_err(|_| ctx.err(at, "this number is too large"))?;
+    let d: i64 = d
+        .parse()
+        .map_err(|_| ctx.err(at, "this number is too large"))?;
+    if d == 0 {
+        return Err(ctx.err(at, "division by zero"));
+    }
+    if n > LIN_LIMIT || d > LIN_LIMIT {
+        return Err(ctx.err(at, "this number is too large"));
+    }
+    Ok(Lin::constant(Q::new(n, d)))
+}
+
+fn lower_leaf(ctx: &Ctx, p: Pair<Rule>) -> R<Lin> {
+    let inner = p.into_inner().next().unwrap();
+    match inner.as_rule() {
+        Rule::ident => Ok(Lin::var(Name::new(inner.as_str()))),
+        Rule::fraction => parse_fraction(ctx, &inner),
+        _ => unreachable!(),
+    }
+}
+
+/// Lowers a `coupled` pair; every node must be binary and labelled.
+pub(super) fn lower_tree(input: &str, pair: Pair<Rule>, _root: bool) -> R<CouplingTree> {
+    let ctx = Ctx { input };
+    tree_node(&ctx, pair)
+}
+
+fn tree_node(ctx: &Ctx, pair: Pair<Rule>) -> R<CouplingTree> {
+    let at = pair.as_span().start();
+    let mut children = Vec::new();
+    let mut label = None;
+    for q in pair.into_inner() {
+        match q.as_rule() {
+            Rule::tree_child => {
+                let c = q.into_inner().next().unwrap();
+                match c.as_rule() {
+                    Rule::coupled => children.push(tree_node(ctx, c)?),
+                    Rule::tree_leaf => children.push(CouplingTree::Leaf(lower_leaf(ctx, c)?)),
+                    _ => unreachable!(),
+                }
+            }
+            Rule::tree_label => label = Some(lower_leaf(ctx, q)?),
+            _ => unreachable!(),
+        }
+    }
+    if children.len() != 2 {
+        return Err(ctx.err(
+            at,
+            format!(
+                "a coupling joins exactly two angular momenta, (a, b) c; this one joins {}",
+                children.len()
+            ),
+        ));
+    }
+    let Some(label) = label else {
+        let end = at + 1;
+        return Err(ctx.err(
+            end.min(ctx.input.len()),
+            "this coupling needs the name of its resultant after the closing parenthesis, as in (j1, j2) j12",
+        ));
+    };
+    let b = children.pop().unwrap();
+    let a = children.pop().unwrap();
+    Ok(CouplingTree::Node(Box::new(a), Box::new(b), label))
+}

@@ -1,0 +1,210 @@
+//! Plain-text printing of the data model. The output parses back to the
+//! same `Expr` (a property test checks it); factors that do not involve a
+//! summed variable are printed outside the `sum(...)`.
+
+use crate::expr::factor::is_hat_base;
+use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
+use crate::numeric::surd::fmt_rational;
+use num_bigint::BigInt;
+use num_rational::BigRational;
+use num_traits::{One, Signed, Zero};
+use std::collections::BTreeSet;
+use std::fmt;
+
+fn row(ls: &[Lin]) -> String {
+    ls.iter().map(|l| l.to_string()).collect::<Vec<_>>().join(", ")
+}
+
+/// A power `base^e` with `e > 0`, written with `hat`, `sqrt` or `^`.
+fn print_power(base: &Lin, e: Q) -> String {
+    let twice = (e * Q::from_integer(2)).to_integer();
+    if twice % 2 != 0 {
+        let root = if is_hat_base(base) {
+            let l = base
+                .add_scaled(&Lin::int(-1), Q::one())
+                .scale(Q::new(1, 2));
+            format!("hat({l})")
+        } else {
+            format!("sqrt({base})")
+        };
+        if twice == 1 {
+            root
+        } else {
+            format!("{root}^{twice}")
+        }
+    } else {
+        let n = twice / 2;
+        let b = if base.as_var().is_some() {
+            base.to_string()
+        } else {
+            format!("({base})")
+        };
+        if n == 1 {
+            b
+        } else {
+            format!("{b}^{n}")
+        }
+    }
+}
+
+/// One factor in plain text (a power with a negative exponent prints as
+/// its positive counterpart; the caller puts it in a denominator).
+pub fn print_factor(f: &Factor) -> String {
+    match f {
+        Factor::Delta(a, b) => format!("delta({a}, {b})"),
+        Factor::Tri([a, b, c]) => format!("tri({a}, {b}, {c})"),
+        Factor::Power(b, e) => print_power(b, e.abs()),
+        Factor::ThreeJ(a) => format!("({}; {})", row(&a[..3]), row(&a[3..])),
+        Factor::Cg(a) => format!(
+            "<{}, {}; {}, {} | {}, {}>",
+            a[0], a[1], a[2], a[3], a[4], a[5]
+        ),
+        Factor::SixJ(a) => format!("{{{}; {}}}", row(&a[..3]), row(&a[3..])),
+        Factor::NineJ(a) => format!(
+            "{{{}; {}; {}}}",
+            row(&a[..3]),
+            row(&a[3..6]),
+            row(&a[6..])
+        ),
+    }
+}
+
+fn print_phase(p: &Lin) -> String {
+    let simple = p.as_var().is_some()
+        || (p.is_constant() && p.constant_part() >= Q::zero() && p.constant_part().is_integer());
+    if simple {
+        format!("(-1)^{p}")
+    } else {
+        format!("(-1)^({p})")
+    }
+}
+
+fn is_negative_power(f: &Factor) -> bool {
+    matches!(f, Factor::Power(_, e) if *e < Q::zero())
+}
+
+/// Prints `coef sqrt(root) phase factors` (no sum), with a leading `-`
+/// for negative values.
+fn print_product(
+    coef: &BigRational,
+    root: &num_bigint::BigUint,
+    phase: Option<&Lin>,
+    factors: &[&Factor],
+) -> String {
+    let negative = coef.is_negative();
+    let a = coef.abs();
+    let mut num: Vec<String> = Vec::new();
+    let mut den: Vec<String> = Vec::new();
+    if !root.is_one() {
+        // sqrt(a^2 root) as one radical
+        let sq = &a * &a * BigRational::from_integer(BigInt::from(root.clone()));
+        num.push(format!("sqrt({})", fmt_rational(&sq)));
+    } else {
+        if !a.numer().is_one() {
+            num.push(a.numer().to_string());
+        }
+        if !a.denom().is_one() {
+            den.push(a.denom().to_string());
+        }
+    }
+    if let Some(p) = phase {
+        if !p.is_zero() {
+            num.push(print_phase(p));
+        }
+    }
+    for f in factors {
+        if is_negative_power(f) {
+            den.push(print_factor(f));
+        } else {
+            num.push(print_factor(f));
+        }
+    }
+    let digits = |x: &String| x.chars().all(|c| c.is_ascii_digit());
+    let body = if num.is_empty() {
+        "1".to_string()
+    } else {
+        num.join(" ")
+    };
+    let body = match den.len() {
+        0 => body,
+        1 if num.len() <= 1 && digits(&body) && digits(&den[0]) => format!("{body}/{}", den[0]),
+        1 => format!("{body} / {}", den[0]),
+        _ => format!("{body} / ({})", den.join(" ")),
+    };
+    if negative {
+        format!("-{body}")
+    } else {
+        body
+    }
+}
+
+/// One term in plain text.
+pub fn print_term(t: &Term) -> String {
+    // a lone linear form prints as one: 5*x-1/2
+    if t.bound.is_empty() && t.phase.is_zero() && t.root.is_one() {
+        if let [Factor::Power(l, e)] = t.factors.as_slice() {
+            if *e == Q::one() {
+                if let (Ok(n), Ok(d)) = (
+                    i64::try_from(t.coef.numer().clone()),
+                    i64::try_from(t.coef.denom().clone()),
+                ) {
+                    return l.scale(Q::new(n, d)).to_string();
+                }
+            }
+        }
+    }
+    if t.bound.is_empty() {
+        let fs: Vec<&Factor> = t.factors.iter().collect();
+        return print_product(&t.coef, &t.root, Some(&t.phase), &fs);
+    }
+    let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+    let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = t
+        .factors
+        .iter()
+        .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
+    let phase_inside = t.phase.has_any(&bound);
+    let outside = print_product(
+        &t.coef,
+        &t.root,
+        if phase_inside { None } else { Some(&t.phase) },
+        &outer,
+    );
+    let inside = print_product(
+        &BigRational::one(),
+        &num_bigint::BigUint::one(),
+        if phase_inside { Some(&t.phase) } else { None },
+        &inner,
+    );
+    let names: Vec<String> = t.bound.iter().map(|n| n.to_string()).collect();
+    let sum = format!("sum({}: {})", names.join(", "), inside);
+    match outside.as_str() {
+        "1" => sum,
+        "-1" => format!("-{sum}"),
+        o => format!("{o} {sum}"),
+    }
+}
+
+impl fmt::Display for Term {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(&print_term(self))
+    }
+}
+
+impl fmt::Display for Expr {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if self.terms.is_empty() {
+            return f.write_str("0");
+        }
+        for (i, t) in self.terms.iter().enumerate() {
+            let s = print_term(t);
+            if i == 0 {
+                f.write_str(&s)?;
+            } else if let Some(rest) = s.strip_prefix('-') {
+                write!(f, " - {rest}")?;
+            } else {
+                write!(f, " + {s}")?;
+            }
+        }
+        Ok(())
+    }
+}
