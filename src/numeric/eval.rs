@@ -6,10 +6,11 @@
 //! admissibility first.
 
 use super::exact::{projection_ok2, triangle2};
+use crate::algebra::selection::{range_of, Constraints, Range};
 use super::{exact, float, Surd};
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
-use num_traits::{One, Signed, Zero};
+use num_traits::{Signed, Zero};
 use std::cell::RefCell;
 use std::collections::{BTreeMap, HashMap};
 
@@ -415,149 +416,31 @@ impl<F: Field> Evaluator<F> {
     }
 }
 
-/// Linear inequalities `form >= 0` and equalities `form = 0` a term imposes.
-fn constraints(t: &Term) -> (Vec<Lin>, Vec<Lin>) {
-    let mut ge = Vec::new();
-    let mut eq = Vec::new();
-    for f in &t.factors {
-        for l in f.j_slots() {
-            if matches!(f, Factor::Power(..)) {
-                continue;
-            }
-            ge.push(l.clone());
-        }
-        for [a, b, c] in f.triads() {
-            ge.push(&(a + b) - c);
-            ge.push(&(a + c) - b);
-            ge.push(&(b + c) - a);
-        }
-        for (j, m) in f.columns() {
-            ge.push(j - m);
-            ge.push(j + m);
-        }
-        if let Some(c) = f.conservation() {
-            eq.push(c);
-        }
-        if let Factor::Delta(a, b) = f {
-            eq.push(a - b);
-        }
-    }
-    (ge, eq)
-}
-
-/// Lines of the term that fix the parity of `v` (`v + rest` integer).
-fn parity_forms(t: &Term) -> Vec<Lin> {
-    let mut out = Vec::new();
-    for f in &t.factors {
-        for [a, b, c] in f.triads() {
-            out.push(&(a + b) + c);
-        }
-        for (j, m) in f.columns() {
-            out.push(j - m);
-        }
-    }
-    out
-}
-
-fn ceil_half(q: Q) -> Q {
-    // smallest multiple of 1/2 >= q
-    let d = q * Q::from_integer(2);
-    Q::new(d.ceil().to_integer(), 2)
-}
-
-fn floor_half(q: Q) -> Q {
-    let d = q * Q::from_integer(2);
-    Q::new(d.floor().to_integer(), 2)
-}
-
-/// Picks the next summed variable to enumerate and its values.
+/// Picks the next summed variable to enumerate (a fixed one first, else
+/// the one with the fewest values) and its values.
 fn choose_next(t: &Term, env: &Assignment, todo: &[Name]) -> Result<(usize, Vec<Q>), EvalError> {
-    let (ge, eq) = constraints(t);
-    let get = |n: &Name| env.get(n).copied();
-    let mut best: Option<(usize, Vec<Q>)> = None;
+    let c = Constraints::of(&t.factors);
+    let mut best: Option<(usize, u64, Range)> = None;
     for (i, v) in todo.iter().enumerate() {
-        // all other variables of a form known?
-        let known_except_v = |l: &Lin| l.vars().all(|x| x == v || env.contains_key(x));
-        let split = |l: &Lin| -> Option<(Q, Q)> {
-            // l = a v + b
-            let a = l.coeff(v);
-            if a.is_zero() || !known_except_v(l) {
-                return None;
-            }
-            let rest = l.substitute(v, &Lin::zero());
-            Some((a, rest.eval(&get)?))
-        };
-        let mut fixed: Option<Q> = None;
-        for l in &eq {
-            if let Some((a, b)) = split(l) {
-                fixed = Some(-b / a);
-                break;
-            }
-        }
-        let mut lo: Option<Q> = None;
-        let mut hi: Option<Q> = None;
-        for l in &ge {
-            if let Some((a, b)) = split(l) {
-                let bound = -b / a;
-                if a.is_positive() {
-                    lo = Some(lo.map_or(bound, |x: Q| x.max(bound)));
-                } else {
-                    hi = Some(hi.map_or(bound, |x: Q| x.min(bound)));
-                }
-            }
-        }
-        let values: Vec<Q> = if let Some(x) = fixed {
-            let inside = lo.is_none_or(|l| x >= l) && hi.is_none_or(|h| x <= h);
-            if inside {
-                vec![x]
-            } else {
-                vec![]
-            }
-        } else if let (Some(l), Some(h)) = (lo, hi) {
-            // parity from a form v + rest with rest known
-            let mut start = ceil_half(l);
-            let mut step = Q::new(1, 2);
-            for p in parity_forms(t) {
-                if let Some((a, b)) = split(&p) {
-                    if a.abs() == Q::one() {
-                        // a v + b integer: v ≡ -b/a (mod 1)
-                        let target = -b / a;
-                        let frac = target - target.floor();
-                        let sfrac = start - start.floor();
-                        if sfrac != frac {
-                            start += Q::new(1, 2);
-                        }
-                        step = Q::one();
-                        break;
-                    }
-                }
-            }
-            let hi_half = floor_half(h);
-            let mut out = Vec::new();
-            let mut x = start;
-            while x <= hi_half {
-                out.push(x);
-                x += step;
-                if out.len() > 10_000_000 {
-                    return Err(EvalError::TooLarge);
-                }
-            }
-            out
-        } else {
+        let r = range_of(v, &c, env, None, None);
+        let Some(n) = r.count() else {
             continue;
         };
-        let better = match &best {
-            None => true,
-            Some((_, b)) => values.len() < b.len(),
-        };
-        if better {
-            best = Some((i, values));
-            if fixed.is_some() {
+        if n > 10_000_000 {
+            return Err(EvalError::TooLarge);
+        }
+        if best.as_ref().is_none_or(|b| n < b.1) {
+            let done = n <= 1;
+            best = Some((i, n, r));
+            if done {
                 break;
             }
         }
     }
-    best.ok_or_else(|| EvalError::Unbounded(todo[0].clone()))
+    match best {
+        Some((i, _, r)) => Ok((i, r.values().unwrap())),
+        None => Err(EvalError::Unbounded(todo[0].clone())),
+    }
 }
 
 /// Exact value of an expression at a user assignment (checked).

@@ -576,18 +576,42 @@ impl Ctx<'_> {
                     return Err(bad());
                 }
                 let mut out = Term::one();
-                let (neg, sq) = t.scalar().as_signed_square().unwrap();
+                let (neg, _) = t.scalar().as_signed_square().unwrap();
+                let mut factors = t.factors.clone();
+                let mut coef = t.coef.clone();
                 if neg {
-                    return Err(self.err(at, "square root of a negative number"));
+                    // the light normal form moved a sign out of some linear
+                    // factor (b+c-a became -(a-b-c)); put it back into the
+                    // one that reads as a triangle-type form
+                    let score = |l: &Lin| {
+                        l.terms().map(|(_, c)| if *c > Q::zero() { -1 } else { 1 }).sum::<i32>()
+                    };
+                    let pick = factors
+                        .iter()
+                        .enumerate()
+                        .filter(|(_, f)| matches!(f, Factor::Power(_, e) if e.is_integer() && e.to_integer() % 2 != 0))
+                        .max_by_key(|(_, f)| match f {
+                            Factor::Power(b, _) => score(b),
+                            _ => i32::MIN,
+                        })
+                        .map(|(i, _)| i);
+                    match pick {
+                        Some(i) => {
+                            if let Factor::Power(b, e) = &factors[i] {
+                                factors[i] = Factor::Power(-b, *e);
+                            }
+                            coef = -coef;
+                        }
+                        None => return Err(self.err(at, "square root of a negative number")),
+                    }
                 }
                 // sqrt(q sqrt(s)) needs s = 1
                 if !t.root.is_one() {
                     return Err(bad());
                 }
-                let _ = sq;
-                let r = Surd::signed_sqrt(false, &t.coef).map_err(|e| self.err(at, e.to_string()))?;
+                let r = Surd::signed_sqrt(false, &coef).map_err(|e| self.err(at, e.to_string()))?;
                 out.set_scalar(&r);
-                for f in &t.factors {
+                for f in &factors {
                     match f {
                         Factor::Power(b, ex) => {
                             out.factors.push(Factor::Power(b.clone(), *ex / Q::from_integer(2)))

@@ -1,0 +1,5 @@
+//! Algebra on the data model that needs no numbers: selection rules as
+//! linear constraints (and, later, phases modulo integrality and symmetry
+//! canonical forms).
+
+pub mod selection;

@@ -1,0 +1,6 @@
+//! Verification: admissible assignments (random and exhaustive) and
+//! spot-evaluation of two expressions against each other.
+
+pub mod rng;
+pub mod sample;
+pub mod spot;
