@@ -3,7 +3,9 @@
 //! double-double arithmetic with extended exponents (no overflow), while
 //! the sum of absolute values is tracked; when cancellation could cost more
 //! than the margin (|Σ|t|| / |Σ t| > 2^45, leaving at least ~55 good bits),
-//! the value is computed exactly and rounded instead. Results are
+//! the sum is redone in big-integer fixed point with as many bits as the
+//! cancellation needs (doubled until a rigorous error bound is below 2^-60
+//! of the value), and only past 2^22 bits computed exactly and rounded. Results are
 //! correctly signed, with relative error about 1e-16 (the f64 rounding).
 //! Values below the f64 range underflow to 0 or a subnormal.
 
@@ -89,9 +91,19 @@ impl FloatRacah<'_> {
                 acc = acc + term;
                 abs_acc = abs_acc + term.abs();
             }
-            if acc.is_zero() || abs_acc.ilog() - acc.ilog() > MAX_CANCELLATION_LOG2 {
-                return None;
-            }
+            let cancel = if acc.is_zero() {
+                i64::MAX
+            } else {
+                abs_acc.ilog() - acc.ilog()
+            };
+            let acc = if cancel > MAX_CANCELLATION_LOG2 {
+                // too much cancellation for 106 bits: fixed point with
+                // enough bits, doubled until the error bound is tiny
+                let start = if cancel == i64::MAX { 256 } else { cancel + 96 };
+                fixed_point_sum(s, start.max(128) as u64)?
+            } else {
+                acc
+            };
             let mut v = pref * t0 * acc;
             if (s.kmin & 1 == 1) != self.negative {
                 v = -v;
@@ -99,6 +111,74 @@ impl FloatRacah<'_> {
             Some(v)
         })
     }
+}
+
+/// The Racah sum relative to its first term, in fixed point with `bits`
+/// fractional bits: `T_{k+1} = -T_k n_k / d_k` with truncating division.
+/// Each truncation adds at most one unit, so the relative error of `T_k` is
+/// at most `Σ_{i<=k} 1/|T_i|`; the result is accepted when the bound on
+/// the sum's error is below 2^-60 of its value, else the precision is
+/// doubled (giving up, `None`, past 2^22 bits: the exact path takes over).
+fn fixed_point_sum(s: &RacahSum, bits: u64) -> Option<Xf> {
+    use num_bigint::BigInt;
+    use num_traits::Zero;
+    let mut bits = bits;
+    while bits <= (1 << 22) {
+        let mut t = BigInt::from(1u8) << bits;
+        let mut sum = t.clone();
+        // rel = Σ 1/|T_i|; err_log2 = log2 Σ rel_k |T_k| (units 2^-bits)
+        let tf = big_int_f64_log2(&t);
+        let mut rel = (-tf).exp2();
+        let mut err_log2 = rel.log2() + tf;
+        let mut overflowed = false;
+        for k in s.kmin..s.kmax {
+            let (n, d) = ratio(s, k);
+            t = -(t * BigInt::from(n)) / BigInt::from(d);
+            if t.is_zero() {
+                overflowed = true;
+                break;
+            }
+            sum += &t;
+            let lt = big_int_f64_log2(&t);
+            rel += (-lt).exp2();
+            // log2(rel |T|) accumulated as a log-sum
+            let term_log = rel.log2() + lt;
+            err_log2 = log2_add(err_log2, term_log);
+        }
+        if !overflowed && !sum.is_zero() {
+            let sum_log = big_int_f64_log2(&sum);
+            if sum_log - err_log2 > 60.0 {
+                let (neg, mag) = (sum.sign() == num_bigint::Sign::Minus, sum.magnitude().clone());
+                let x = big_to_xf(&mag);
+                let x = Xf {
+                    m: x.m,
+                    e: x.e - bits as i64,
+                };
+                return Some(if neg { -x } else { x });
+            }
+        }
+        bits *= 2;
+    }
+    None
+}
+
+/// log2 of |n| (approximate, from the leading 64 bits).
+fn big_int_f64_log2(n: &num_bigint::BigInt) -> f64 {
+    let (m, e) = super::surd::biguint_to_mantissa_exp(n.magnitude());
+    if m == 0.0 {
+        f64::NEG_INFINITY
+    } else {
+        m.log2() + e as f64
+    }
+}
+
+/// log2(2^a + 2^b).
+fn log2_add(a: f64, b: f64) -> f64 {
+    let (hi, lo) = if a > b { (a, b) } else { (b, a) };
+    if lo == f64::NEG_INFINITY {
+        return hi;
+    }
+    hi + (1.0 + (lo - hi).exp2()).log2()
 }
 
 fn ratio(s: &RacahSum, k: i64) -> (u128, u128) {
