@@ -208,6 +208,10 @@ fn product(coef: &BigRational, root: &num_bigint::BigUint, phase: Option<&Lin>, 
     } else {
         num.join(" ")
     };
+    // a lone parenthesised linear form needs no parentheses in a fraction
+    if den.len() == 1 && den[0].starts_with('(') && den[0].ends_with(')') && !den[0].contains(")^") {
+        den[0] = den[0][1..den[0].len() - 1].to_string();
+    }
     let body = if den.is_empty() {
         n
     } else {

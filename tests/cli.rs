@@ -1,0 +1,135 @@
+//! The command line as a user meets it: exit codes, standard output and
+//! standard error, on the malformed-input corpus and on good inputs.
+
+use std::io::Write;
+use std::process::{Command, Stdio};
+
+fn run(args: &[&str], stdin: Option<&str>) -> (i32, String, String) {
+    let mut cmd = Command::new(env!("CARGO_BIN_EXE_recoup"));
+    cmd.args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped());
+    let mut child = cmd.spawn().expect("run recoup");
+    if let Some(s) = stdin {
+        child.stdin.take().unwrap().write_all(s.as_bytes()).unwrap();
+    } else {
+        drop(child.stdin.take());
+    }
+    let out = child.wait_with_output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8(out.stdout).unwrap(),
+        String::from_utf8(out.stderr).unwrap(),
+    )
+}
+
+#[test]
+fn every_malformed_input_exits_2_with_a_message_and_no_output() {
+    let text = include_str!("data/malformed.txt");
+    let mut n = 0;
+    for line in text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty()) {
+        let (expr, at) = line.split_once(" @@").unwrap();
+        let at = at.trim();
+        let mut args = vec!["eval", expr];
+        if !at.is_empty() {
+            args.push("--at");
+            args.push(at);
+        }
+        let (code, out, err) = run(&args, None);
+        assert_eq!(code, 2, "{line}: exit {code}, stderr {err}");
+        assert!(out.is_empty(), "{line}: printed {out}");
+        assert!(err.starts_with("recoup: "), "{line}: stderr {err}");
+        assert!(!err.contains("panicked"), "{line}: {err}");
+        assert!(!err.contains("Rule::"), "{line}: {err}");
+        n += 1;
+    }
+    assert!(n >= 20);
+}
+
+#[test]
+fn parse_errors_point_at_line_and_column_with_a_caret() {
+    let (code, out, err) = run(&["eval", "(j1, j2, j3; m1, m2, m3"], None);
+    assert_eq!(code, 2);
+    assert!(out.is_empty());
+    insta::assert_snapshot!(err, @r"
+    recoup: parse error at line 1, column 24: expected a closing parenthesis, a comma or an operator; found the end of the input
+      (j1, j2, j3; m1, m2, m3
+                             ^
+    ");
+}
+
+#[test]
+fn eval_prints_exact_and_float() {
+    // IDENTITIES.md table values (Condon–Shortley, from memory)
+    let (code, out, _) = run(&["eval", "<1, 1; 1/2, -1/2 | 3/2, 1/2>"], None);
+    assert_eq!(code, 0);
+    assert_eq!(out, "sqrt(1/3)\t0.5773502691896257\n");
+    let (code, out, _) = run(&["eval", "<1, 0; 1, 0 | 0, 0>", "--json"], None);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["exact"], "-sqrt(1/3)");
+    assert!((v["float"].as_f64().unwrap() + (1.0f64 / 3.0).sqrt()).abs() < 1e-15);
+    let (code, out, _) = run(&["eval", "-", "--at", "j=3/2,m=1/2"], Some("(j, j, 0; m, -m, 0)\n"));
+    assert_eq!(code, 0);
+    assert_eq!(out, "-1/2\t-0.5\n");
+}
+
+#[test]
+fn batch_answers_every_line_and_reports_bad_ones_by_number() {
+    let input = "{1, 1, 1; 1, 1, 1}\n(1, 1; 0)\n<1/2, 1/2; 1/2, -1/2 | 0, 0>\n";
+    let (code, out, err) = run(&["eval", "--batch"], Some(input));
+    assert_eq!(code, 2);
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines.len(), 3);
+    assert_eq!(lines[0], "1/6\t0.16666666666666666");
+    assert!(lines[1].starts_with("error\tline 2:"));
+    assert_eq!(lines[2], "sqrt(1/2)\t0.7071067811865476");
+    assert!(err.contains("line 2"));
+    let (code, out, _) = run(&["eval", "--batch", "--json"], Some("{1, 1, 1; 1, 1, 1}\n"));
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["exact"], "1/6");
+}
+
+#[test]
+fn table_text_json_and_csv() {
+    let (code, out, _) = run(&["table", "3", "3"], None);
+    assert_eq!(code, 0);
+    insta::assert_snapshot!("table_3_3", out);
+    let (code, out, _) = run(&["table", "1", "1/2"], None);
+    assert_eq!(code, 0);
+    insta::assert_snapshot!("table_1_half", out);
+    let (_, out, _) = run(&["table", "1/2", "1/2", "--json"], None);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["j1"], "1/2");
+    let e = &v["entries"];
+    // <1/2 1/2; 1/2 -1/2 | 1 0> = sqrt(1/2) (IDENTITIES.md table values)
+    let hit = e
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|x| x["m1"] == "1/2" && x["m2"] == "-1/2" && x["J"] == "1" && x["M"] == "0")
+        .unwrap();
+    assert_eq!(hit["exact"], "sqrt(1/2)");
+    let (_, out, _) = run(&["table", "1", "1", "--csv"], None);
+    let mut lines = out.lines();
+    assert_eq!(lines.next().unwrap(), "j1,j2,m1,m2,J,M,exact,float");
+    assert!(out.contains("\n1,1,1,-1,2,0,sqrt(1/6),"));
+    assert!(out.contains("\n1,1,0,0,0,0,-sqrt(1/3),"));
+    let (code, _, err) = run(&["table", "1", "1/3"], None);
+    assert_eq!(code, 2);
+    assert!(err.contains("multiple of 1/2"));
+}
+
+#[test]
+fn latex_of_the_standard_shapes() {
+    let (_, out, _) = run(
+        &[
+            "latex",
+            "sum(m1, m2: (-1)^(j1-j2+M) hat(j12) <j1, m1; j2, m2 | j12, M> (j1, j2, j12; m1, m2, -M) {j1, j2, j12; j3, J, j23} {a, b, c; d, e, f; g, h, i'}) / (2*J+1)",
+        ],
+        None,
+    );
+    insta::assert_snapshot!("latex_shapes", out);
+}
