@@ -227,16 +227,14 @@ impl Term {
         for f in std::mem::take(&mut self.factors) {
             match f {
                 Factor::Power(base, e) => {
-                    let (k, mut prim) = base.primitive();
-                    let mut sign_flip = false;
-                    if prim.leading_negative() && e.is_integer() {
-                        prim = -&prim;
-                        sign_flip = e.to_integer() % 2 != 0;
-                    }
                     if base.is_zero() {
+                        if e > Q::zero() {
+                            return self.zeroed();
+                        }
                         others.push(Factor::Power(Lin::zero(), e));
                         continue;
                     }
+                    let (k, prim) = base.primitive();
                     // k^e into the scalar
                     if k != Q::one() {
                         match power_of_rational(k, e) {
@@ -247,12 +245,15 @@ impl Term {
                             }
                         }
                     }
-                    if sign_flip {
-                        scalar = -scalar;
-                    }
                     if prim.is_constant() {
                         // prim is 1 or -1 here
                         if prim.constant_part() == Q::one() {
+                            continue;
+                        }
+                        if e.is_integer() {
+                            if e.to_integer() % 2 != 0 {
+                                scalar = -scalar;
+                            }
                             continue;
                         }
                         others.push(Factor::Power(prim, e));
@@ -291,7 +292,41 @@ impl Term {
                 other => others.push(other),
             }
         }
+        // an integer power of a base with a negative leading coefficient
+        // takes its sign out: (b-a)^1 = -(a-b)^1
+        let mut merged: BTreeMap<Lin, Q> = BTreeMap::new();
         for (base, e) in powers {
+            if e.is_zero() {
+                continue;
+            }
+            if e.is_integer() && base.leading_negative() {
+                if e.to_integer() % 2 != 0 {
+                    scalar = -scalar;
+                }
+                *merged.entry(-&base).or_insert_with(Q::zero) += e;
+            } else {
+                *merged.entry(base).or_insert_with(Q::zero) += e;
+            }
+        }
+        // B^n next to (-B)^(k/2): B^n = (-1)^n (-B)^n joins the root
+        let negatives: Vec<Lin> = merged
+            .iter()
+            .filter(|(b, e)| b.leading_negative() && !e.is_integer())
+            .map(|(b, _)| b.clone())
+            .collect();
+        for nb in negatives {
+            let pb = -&nb;
+            if let Some(n) = merged.get(&pb).copied() {
+                if n.is_integer() {
+                    merged.remove(&pb);
+                    if n.to_integer() % 2 != 0 {
+                        scalar = -scalar;
+                    }
+                    *merged.get_mut(&nb).unwrap() += n;
+                }
+            }
+        }
+        for (base, e) in merged {
             if !e.is_zero() {
                 others.push(Factor::Power(base, e));
             }
