@@ -16,17 +16,26 @@ fn main() {
             let ma = -a + 2 * (rng.below(a as u64 + 1) as i64);
             let mb = -b + 2 * (rng.below(b as u64 + 1) as i64);
             let mc = -ma - mb;
-            if mc.abs() > c { continue; }
+            if mc.abs() > c {
+                continue;
+            }
             let e = exact::three_j([a, b, c], [ma, mb, mc]);
             let t1 = Instant::now();
             let f = float::three_j_f64([a, b, c], [ma, mb, mc]);
             tf += t1.elapsed().as_secs_f64();
             let ev = e.to_f64();
-            let rel = if ev == 0.0 { f.abs() } else { ((f - ev) / ev).abs() };
+            let rel = if ev == 0.0 {
+                f.abs()
+            } else {
+                ((f - ev) / ev).abs()
+            };
             worst = worst.max(rel);
             n += 1;
             println!("  3j j~{jmax}: {ev:e} rel {rel:e}");
         }
-        println!("3j j~{jmax}: worst rel {worst:e}, total {:?}, float {tf}", t0.elapsed());
+        println!(
+            "3j j~{jmax}: worst rel {worst:e}, total {:?}, float {tf}",
+            t0.elapsed()
+        );
     }
 }

@@ -28,7 +28,10 @@ fn run(args: &[&str], stdin: Option<&str>) -> (i32, String, String) {
 fn every_malformed_input_exits_2_with_a_message_and_no_output() {
     let text = include_str!("data/malformed.txt");
     let mut n = 0;
-    for line in text.lines().filter(|l| !l.starts_with('#') && !l.trim().is_empty()) {
+    for line in text
+        .lines()
+        .filter(|l| !l.starts_with('#') && !l.trim().is_empty())
+    {
         let (expr, at) = line.split_once(" @@").unwrap();
         let at = at.trim();
         let mut args = vec!["eval", expr];
@@ -70,7 +73,10 @@ fn eval_prints_exact_and_float() {
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(v["exact"], "-sqrt(1/3)");
     assert!((v["float"].as_f64().unwrap() + (1.0f64 / 3.0).sqrt()).abs() < 1e-15);
-    let (code, out, _) = run(&["eval", "-", "--at", "j=3/2,m=1/2"], Some("(j, j, 0; m, -m, 0)\n"));
+    let (code, out, _) = run(
+        &["eval", "-", "--at", "j=3/2,m=1/2"],
+        Some("(j, j, 0; m, -m, 0)\n"),
+    );
     assert_eq!(code, 0);
     assert_eq!(out, "-1/2\t-0.5\n");
 }

@@ -52,7 +52,8 @@ fn every_identity_holds_at_random_admissible_points() {
         let rhs = parse(&c.rhs).unwrap_or_else(|e| panic!("{}: {e}", c.name));
         let heavy = c.lhs.matches('(').count() > 14;
         let s = SpotSettings {
-            max_j: Q::from_integer(if heavy { 3 } else { 4 }) / Q::from_integer(2) * Q::from_integer(2),
+            max_j: Q::from_integer(if heavy { 3 } else { 4 }) / Q::from_integer(2)
+                * Q::from_integer(2),
             samples: if heavy { 12 } else { 40 },
             exhaustive: false,
             seed: 7,

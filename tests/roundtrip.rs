@@ -13,7 +13,14 @@ const VARS: &[&str] = &["a", "b", "j1", "j12", "J'", "m", "m_a", "x"];
 
 fn lin() -> impl Strategy<Value = Lin> {
     (
-        proptest::collection::vec((0..VARS.len(), -3i64..=3, prop::sample::select(vec![1i64, 2])), 0..3),
+        proptest::collection::vec(
+            (
+                0..VARS.len(),
+                -3i64..=3,
+                prop::sample::select(vec![1i64, 2]),
+            ),
+            0..3,
+        ),
         -4i64..=4,
         prop::sample::select(vec![1i64, 2]),
     )
@@ -30,7 +37,17 @@ fn factor() -> impl Strategy<Value = Factor> {
     prop_oneof![
         (lin(), lin()).prop_map(|(a, b)| Factor::Delta(a, b)),
         (lin(), lin(), lin()).prop_map(|(a, b, c)| Factor::Tri([a, b, c])),
-        (lin(), prop::sample::select(vec![Q::new(1, 2), Q::new(-1, 2), Q::from_integer(1), Q::from_integer(-1), Q::new(3, 2), Q::from_integer(2)]))
+        (
+            lin(),
+            prop::sample::select(vec![
+                Q::new(1, 2),
+                Q::new(-1, 2),
+                Q::from_integer(1),
+                Q::from_integer(-1),
+                Q::new(3, 2),
+                Q::from_integer(2)
+            ])
+        )
             .prop_filter("a power of a constant is folded", |(b, _)| !b.is_constant())
             .prop_map(|(b, e)| Factor::Power(b, e)),
         proptest::collection::vec(lin(), 6).prop_map(|v| Factor::ThreeJ(v.try_into().unwrap())),

@@ -21,7 +21,8 @@ pub struct EvalArgs {
     #[arg(long)]
     float: bool,
     /// read one closed expression per line from standard input; answer
-    /// one line each (exact<TAB>float, or JSON lines)
+    /// one line each (exact<TAB>float, or JSON lines); blank lines and
+    /// lines starting with # are skipped
     #[arg(long)]
     batch: bool,
 }
@@ -41,7 +42,9 @@ pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
                 .chars()
                 .all(|c| c.is_ascii_alphanumeric() || c == '_');
         if !valid_name {
-            return Err(Failure::input(format!("--at: '{k}' is not a variable name")));
+            return Err(Failure::input(format!(
+                "--at: '{k}' is not a variable name"
+            )));
         }
         let q = parse_q(v.trim()).ok_or_else(|| {
             Failure::input(format!(
@@ -68,13 +71,21 @@ pub fn parse_q(s: &str) -> Option<Q> {
     Some(Q::new(n, d))
 }
 
-fn answer(e: &recoup::expr::Expr, at: &Assignment, float_only: bool) -> Result<(Option<Surd>, f64), String> {
+fn answer(
+    e: &recoup::expr::Expr,
+    at: &Assignment,
+    float_only: bool,
+) -> Result<(Option<Surd>, f64), String> {
     check_assignment(e, at).map_err(|e| e.to_string())?;
     if float_only {
-        let v = Evaluator::<f64>::new().eval(e, at).map_err(|e| e.to_string())?;
+        let v = Evaluator::<f64>::new()
+            .eval(e, at)
+            .map_err(|e| e.to_string())?;
         Ok((None, v))
     } else {
-        let v = Evaluator::<Surd>::new().eval(e, at).map_err(|e| e.to_string())?;
+        let v = Evaluator::<Surd>::new()
+            .eval(e, at)
+            .map_err(|e| e.to_string())?;
         let f = v.to_f64();
         Ok((Some(v), f))
     }
@@ -90,8 +101,8 @@ fn json_line(exact: &Option<Surd>, f: f64) -> String {
 
 fn text_line(exact: &Option<Surd>, f: f64) -> String {
     match exact {
-        Some(v) => format!("{v}\t{f}"),
-        None => format!("{f}"),
+        Some(v) => format!("{v}\t{}", recoup::render::fmt_float(f)),
+        None => recoup::render::fmt_float(f),
     }
 }
 
@@ -102,7 +113,9 @@ pub fn run(a: EvalArgs) -> Result<(), Failure> {
     };
     if a.batch {
         if a.expr.is_some() {
-            return Err(Failure::input("--batch reads expressions from standard input; give no EXPR"));
+            return Err(Failure::input(
+                "--batch reads expressions from standard input; give no EXPR",
+            ));
         }
         return batch(&a, &at);
     }
@@ -128,6 +141,9 @@ fn batch(a: &EvalArgs, at: &Assignment) -> Result<(), Failure> {
     for (i, line) in stdin.lock().lines().enumerate() {
         let line = line.map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
         let n = i + 1;
+        if line.trim().is_empty() || line.trim_start().starts_with('#') {
+            continue;
+        }
         let res = recoup::syntax::parse(&line)
             .map_err(|e| format!("parse error at {e}"))
             .and_then(|e| answer(&e, at, a.float));
@@ -144,12 +160,7 @@ fn batch(a: &EvalArgs, at: &Assignment) -> Result<(), Failure> {
                 failed += 1;
                 let one_line = msg.lines().next().unwrap_or("").to_string();
                 if a.json {
-                    writeln!(
-                        out,
-                        "{}",
-                        serde_json::json!({"line": n, "error": one_line})
-                    )
-                    .ok();
+                    writeln!(out, "{}", serde_json::json!({"line": n, "error": one_line})).ok();
                 } else {
                     writeln!(out, "error\tline {n}: {one_line}").ok();
                 }

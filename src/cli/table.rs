@@ -23,9 +23,8 @@ pub struct TableArgs {
 }
 
 fn doubled(name: &str, s: &str) -> Result<i64, Failure> {
-    let q = parse_q(s).ok_or_else(|| {
-        Failure::input(format!("{name} must be a number like 1, 3/2; got '{s}'"))
-    })?;
+    let q = parse_q(s)
+        .ok_or_else(|| Failure::input(format!("{name} must be a number like 1, 3/2; got '{s}'")))?;
     let d = q * recoup::expr::Q::from_integer(2);
     if !d.is_integer() || d < recoup::expr::Q::from_integer(0) {
         return Err(Failure::input(format!(

@@ -174,7 +174,8 @@ impl Factor {
 /// coefficients even integers, odd integer constant).
 pub fn is_hat_base(b: &Lin) -> bool {
     !b.is_constant()
-        && b.terms().all(|(_, c)| c.is_integer() && c.to_integer() % 2 == 0)
+        && b.terms()
+            .all(|(_, c)| c.is_integer() && c.to_integer() % 2 == 0)
         && b.constant_part().is_integer()
         && b.constant_part().to_integer() % 2 != 0
 }

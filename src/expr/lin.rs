@@ -134,7 +134,11 @@ impl Lin {
             return Lin::zero();
         }
         Lin {
-            coeffs: self.coeffs.iter().map(|(v, c)| (v.clone(), *c * k)).collect(),
+            coeffs: self
+                .coeffs
+                .iter()
+                .map(|(v, c)| (v.clone(), *c * k))
+                .collect(),
             c0: self.c0 * k,
         }
     }
@@ -278,7 +282,9 @@ mod tests {
     fn prints_compactly() {
         let l = &(&Lin::var("j1") + &Lin::var("j2")) - &Lin::var("j3");
         assert_eq!(l.to_string(), "j1+j2-j3");
-        let h = Lin::var("x").scale(Q::from_integer(2)).add_scaled(&Lin::int(1), Q::one());
+        let h = Lin::var("x")
+            .scale(Q::from_integer(2))
+            .add_scaled(&Lin::int(1), Q::one());
         assert_eq!(h.to_string(), "2*x+1");
         assert_eq!((-&Lin::var("m")).to_string(), "-m");
         assert_eq!(Lin::var("x").scale(Q::new(1, 2)).to_string(), "x/2");
@@ -288,7 +294,9 @@ mod tests {
 
     #[test]
     fn primitive_part_pulls_out_the_content() {
-        let l = Lin::var("x").scale(Q::new(1, 2)).add_scaled(&Lin::int(1), Q::new(1, 4));
+        let l = Lin::var("x")
+            .scale(Q::new(1, 2))
+            .add_scaled(&Lin::int(1), Q::new(1, 4));
         let (k, p) = l.primitive();
         assert_eq!(k, Q::new(1, 4));
         assert_eq!(p.to_string(), "2*x+1");

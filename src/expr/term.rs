@@ -363,6 +363,39 @@ impl Term {
         self
     }
 
+    /// The term as a linear form, when it is `c` or `c·(L)` with rational
+    /// `c` (and the product fits the small rationals of `Lin`).
+    pub fn as_linear(&self) -> Option<Lin> {
+        if !self.bound.is_empty() || !self.phase.is_zero() || !self.root.is_one() {
+            return None;
+        }
+        let c = Q::new(
+            self.coef.numer().to_i64()?,
+            self.coef.denom().to_i64()?,
+        );
+        if c.numer().abs() > (1 << 40) || *c.denom() > (1 << 40) {
+            return None;
+        }
+        match self.factors.as_slice() {
+            [] => Some(Lin::constant(c)),
+            [Factor::Power(l, e)] if *e == Q::one() => Some(l.scale(c)),
+            _ => None,
+        }
+    }
+
+    /// The term of a linear form (`None` for 0).
+    pub fn linear(l: &Lin) -> Option<Term> {
+        if l.is_zero() {
+            return None;
+        }
+        if l.is_constant() {
+            let mut t = Term::one();
+            t.coef = big_q(l.constant_part());
+            return Some(t);
+        }
+        Some(Term::factor(Factor::Power(l.clone(), Q::one())))
+    }
+
     /// True when two terms differ only in their constant coefficient.
     pub fn same_shape(&self, other: &Term) -> bool {
         self.root == other.root
@@ -444,10 +477,24 @@ impl Expr {
         e
     }
 
-    /// Adds a term, merging it into a like term when there is one.
+    /// Adds a term, merging it into a like term when there is one (all
+    /// purely linear terms, `c` and `c·(L)`, merge into one linear form).
     pub fn push(&mut self, t: Term) {
         if t.is_zero() {
             return;
+        }
+        if let Some(l) = t.as_linear() {
+            if let Some(pos) = self.terms.iter().position(|u| u.as_linear().is_some()) {
+                let sum = &self.terms[pos].as_linear().unwrap() + &l;
+                let merged = Term::linear(&sum);
+                match merged {
+                    Some(m) => self.terms[pos] = m,
+                    None => {
+                        self.terms.remove(pos);
+                    }
+                }
+                return;
+            }
         }
         if let Some(pos) = self.terms.iter().position(|u| u.same_shape(&t)) {
             let c = &self.terms[pos].coef + &t.coef;

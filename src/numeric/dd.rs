@@ -77,6 +77,24 @@ impl Dd {
         Dd { hi, lo }
     }
 
+    /// Product with an f64.
+    #[inline]
+    pub fn mul_f64(self, b: f64) -> Dd {
+        let (p, e) = two_prod(self.hi, b);
+        let (hi, lo) = quick_two_sum(p, e + self.lo * b);
+        Dd { hi, lo }
+    }
+
+    /// Quotient by an f64.
+    #[inline]
+    pub fn div_f64(self, b: f64) -> Dd {
+        let q1 = self.hi / b;
+        let (p, e) = two_prod(q1, b);
+        let r = ((self.hi - p) - e + self.lo) / b;
+        let (hi, lo) = quick_two_sum(q1, r);
+        Dd { hi, lo }
+    }
+
     /// Multiplies by an exact power of two.
     pub fn ldexp(self, e: i32) -> Dd {
         let s = pow2(e);
@@ -335,7 +353,10 @@ mod tests {
         let two = Dd::from_f64(2.0).sqrt();
         assert!((two * two - Dd::from_f64(2.0)).to_f64().abs() < 1e-31);
         let big = Dd::from_u128((1u128 << 100) + 12345);
-        assert_eq!(big.hi as u128 as i128 + big.lo as i128, (1i128 << 100) + 12345);
+        assert_eq!(
+            big.hi as u128 as i128 + big.lo as i128,
+            (1i128 << 100) + 12345
+        );
     }
 
     #[test]

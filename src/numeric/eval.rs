@@ -6,8 +6,8 @@
 //! admissibility first.
 
 use super::exact::{projection_ok2, triangle2};
-use crate::algebra::selection::{range_of, Constraints, Range};
 use super::{exact, float, Surd};
+use crate::algebra::selection::{range_of, Constraints, Range};
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
 use num_traits::{Signed, Zero};
@@ -274,7 +274,12 @@ impl<F: Field> Evaluator<F> {
         Ok(scalar.mul(&v))
     }
 
-    fn sum_over(&self, t: &Term, env: &mut Assignment, todo: &mut Vec<Name>) -> Result<F, EvalError> {
+    fn sum_over(
+        &self,
+        t: &Term,
+        env: &mut Assignment,
+        todo: &mut Vec<Name>,
+    ) -> Result<F, EvalError> {
         if todo.is_empty() {
             {
                 let mut p = self.points.borrow_mut();
@@ -318,14 +323,12 @@ impl<F: Field> Evaluator<F> {
         // cheap factors first, so a zero skips the symbols
         for f in &t.factors {
             match f {
-                Factor::Delta(a, b) => {
-                    if val(a)? != val(b)? {
-                        return Ok(F::zero());
-                    }
-                }
+                Factor::Delta(a, b) if val(a)? != val(b)? => return Ok(F::zero()),
                 Factor::Tri([a, b, c]) => {
-                    let d: Vec<Option<i64>> =
-                        [val(a)?, val(b)?, val(c)?].iter().map(|q| doubled(*q)).collect();
+                    let d: Vec<Option<i64>> = [val(a)?, val(b)?, val(c)?]
+                        .iter()
+                        .map(|q| doubled(*q))
+                        .collect();
                     match (d[0], d[1], d[2]) {
                         (Some(x), Some(y), Some(z)) if triangle2(x, y, z) => {}
                         _ => return Ok(F::zero()),
@@ -458,4 +461,3 @@ pub fn eval_f64(e: &Expr, at: &Assignment) -> Result<f64, EvalError> {
 pub fn q_to_big(q: Q) -> num_rational::BigRational {
     big_q(q)
 }
-

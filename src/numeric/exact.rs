@@ -5,8 +5,7 @@
 //! whose arguments break a triangle rule, a projection range or an
 //! integrality condition is exactly 0.
 
-use super::primes::PrimeExps;
-use super::racah::{canonical, sum_raw, FactArg, RacahSum, RawValue};
+use super::racah::{canonical, six_j_formula, sum_raw, three_j_formula, RawValue};
 use super::surd::Surd;
 use num_bigint::BigInt;
 
@@ -21,49 +20,12 @@ pub fn projection_ok2(j: i64, m: i64) -> bool {
     j >= 0 && m.abs() <= j && (j - m) % 2 == 0
 }
 
-/// Δ(abc) = (a+b-c)!(a-b+c)!(-a+b+c)!/(a+b+c+1)! as exponents (doubled args).
-fn add_delta(e: &mut PrimeExps, a: i64, b: i64, c: i64) {
-    e.add_factorial(((a + b - c) / 2) as u64, 1);
-    e.add_factorial(((a - b + c) / 2) as u64, 1);
-    e.add_factorial(((-a + b + c) / 2) as u64, 1);
-    e.add_factorial(((a + b + c) / 2 + 1) as u64, -1);
-}
-
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)` as an unreduced raw value.
 pub fn three_j_raw(tj: [i64; 3], tm: [i64; 3]) -> RawValue {
-    let [a, b, c] = tj;
-    let [ma, mb, mc] = tm;
-    if ma + mb + mc != 0
-        || !projection_ok2(a, ma)
-        || !projection_ok2(b, mb)
-        || !projection_ok2(c, mc)
-        || !triangle2(a, b, c)
-    {
-        return RawValue::zero();
+    match three_j_formula(tj, tm) {
+        Some(f) => f.exact_raw(),
+        None => RawValue::zero(),
     }
-    let h = |x: i64| x / 2; // exact: callers pass sums with even parity
-    let mut e = PrimeExps::one();
-    add_delta(&mut e, a, b, c);
-    for (j, m) in [(a, ma), (b, mb), (c, mc)] {
-        e.add_factorial(h(j + m) as u64, 1);
-        e.add_factorial(h(j - m) as u64, 1);
-    }
-    let sum = RacahSum {
-        num: vec![],
-        den: vec![
-            FactArg::up(0),
-            FactArg::up(h(c - b + ma)),
-            FactArg::up(h(c - a - mb)),
-            FactArg::down(h(a + b - c)),
-            FactArg::down(h(a - ma)),
-            FactArg::down(h(b + mb)),
-        ],
-        kmin: 0.max(h(b - c - ma)).max(h(a - c + mb)),
-        kmax: h(a + b - c).min(h(a - ma)).min(h(b + mb)),
-    };
-    // (-1)^(j1 - j2 - m3)
-    let negative = h(a - b - mc).rem_euclid(2) == 1;
-    sum.evaluate(negative, e)
 }
 
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)`, doubled arguments.
@@ -87,36 +49,10 @@ pub fn clebsch_gordan(tj1: i64, tm1: i64, tj2: i64, tm2: i64, tjj: i64, tmm: i64
 
 /// The 6j symbol `{j1 j2 j3; j4 j5 j6}` as an unreduced raw value.
 pub fn six_j_raw(t: [i64; 6]) -> RawValue {
-    let [j1, j2, j3, j4, j5, j6] = t;
-    let triads = [(j1, j2, j3), (j1, j5, j6), (j4, j2, j6), (j4, j5, j3)];
-    if triads.iter().any(|&(a, b, c)| !triangle2(a, b, c)) {
-        return RawValue::zero();
+    match six_j_formula(t) {
+        Some(f) => f.exact_raw(),
+        None => RawValue::zero(),
     }
-    let mut e = PrimeExps::one();
-    for &(a, b, c) in &triads {
-        add_delta(&mut e, a, b, c);
-    }
-    let asum: Vec<i64> = triads.iter().map(|&(a, b, c)| (a + b + c) / 2).collect();
-    let bsum = [
-        (j1 + j2 + j4 + j5) / 2,
-        (j2 + j3 + j5 + j6) / 2,
-        (j3 + j1 + j6 + j4) / 2,
-    ];
-    let sum = RacahSum {
-        num: vec![FactArg::up(1)],
-        den: vec![
-            FactArg::up(-asum[0]),
-            FactArg::up(-asum[1]),
-            FactArg::up(-asum[2]),
-            FactArg::up(-asum[3]),
-            FactArg::down(bsum[0]),
-            FactArg::down(bsum[1]),
-            FactArg::down(bsum[2]),
-        ],
-        kmin: *asum.iter().max().unwrap(),
-        kmax: *bsum.iter().min().unwrap(),
-    };
-    sum.evaluate(false, e)
 }
 
 /// The 6j symbol `{j1 j2 j3; j4 j5 j6}`, doubled arguments.

@@ -10,8 +10,8 @@
 //! Values below the f64 range underflow to 0 or a subnormal.
 
 use super::dd::{Dd, Xf};
-use super::exact::{nine_j_triads_ok, nine_j_x_range, projection_ok2, triangle2};
-use super::racah::{FactArg, RacahSum};
+use super::exact::{nine_j_triads_ok, nine_j_x_range};
+use super::racah::{six_j_formula, three_j_formula, RacahFormula, RacahSum};
 use super::{exact, Surd};
 use num_traits::Signed;
 use std::cell::RefCell;
@@ -19,98 +19,246 @@ use std::cell::RefCell;
 /// Cancellation beyond which the double-double sum is not trusted.
 const MAX_CANCELLATION_LOG2: i64 = 45;
 
+/// Factorials kept in a shared read-only table up to this argument.
+const STATIC_FACTORIALS: usize = 4096;
+
+fn static_factorials() -> &'static [Xf] {
+    static T: std::sync::OnceLock<Vec<Xf>> = std::sync::OnceLock::new();
+    T.get_or_init(|| build_factorials(STATIC_FACTORIALS))
+}
+
+fn build_factorials(n: usize) -> Vec<Xf> {
+    let mut t = vec![Xf::ONE];
+    for k in 1..=n {
+        let prev = t[k - 1];
+        t.push(prev * Xf::from_dd(Dd::from_u128(k as u128)));
+    }
+    t
+}
+
 thread_local! {
-    static FACTORIALS: RefCell<Vec<Xf>> = RefCell::new(vec![Xf::ONE]);
+    static FACTORIALS: RefCell<Vec<Xf>> = const { RefCell::new(Vec::new()) };
 }
 
 /// Runs `f` with a table of `n!` reaching at least `n`.
 fn with_factorials<R>(n: usize, f: impl FnOnce(&[Xf]) -> R) -> R {
+    if n <= STATIC_FACTORIALS {
+        return f(static_factorials());
+    }
     FACTORIALS.with(|t| {
         {
             let mut t = t.borrow_mut();
-            while t.len() <= n {
-                let k = t.len();
-                let prev = t[k - 1];
-                t.push(prev * Xf::from_dd(Dd::from_u128(k as u128)));
+            if t.len() <= n {
+                *t = build_factorials(n.max(2 * t.len()));
             }
         }
         f(&t.borrow())
     })
 }
 
-/// A Racah sum with its root prefactor `sqrt(Π num! / Π den!)`.
-struct FloatRacah<'a> {
-    sum: &'a RacahSum,
-    root_num: &'a [i64],
-    root_den: &'a [i64],
-    negative: bool,
+/// `n!` as `m 2^e` with `m` in [1, 2), in plain f64, for the fast path.
+fn f64_factorials() -> &'static [(f64, i64)] {
+    static T: std::sync::OnceLock<Vec<(f64, i64)>> = std::sync::OnceLock::new();
+    T.get_or_init(|| {
+        static_factorials()
+            .iter()
+            .map(|x| {
+                let v = x.m.to_f64();
+                let ex = super::dd::exponent(v);
+                (v * super::dd::pow2(-ex), x.e + ex as i64)
+            })
+            .collect()
+    })
 }
 
-impl FloatRacah<'_> {
-    fn max_arg(&self) -> i64 {
-        let mut m = 1;
-        for &a in self.root_num.iter().chain(self.root_den) {
-            m = m.max(a);
-        }
-        for f in self.sum.num.iter().chain(&self.sum.den) {
-            m = m.max(f.c + f.s * self.sum.kmin).max(f.c + f.s * self.sum.kmax);
-        }
-        m
+/// The fast path for arguments up to 4096: the sum relative to its first
+/// term is exact in `i128` (or plain f64 under a rigorous error bound of
+/// 2^-50), and the prefactor is a product of at most 22 correctly rounded
+/// f64 factorials, so the result carries at most ~26 roundings (relative
+/// error below 4e-15; measured below 1e-15).
+fn evaluate_fast(f: &RacahFormula) -> Option<f64> {
+    let s = &f.sum;
+    if s.kmin > s.kmax {
+        return Some(0.0);
     }
+    let table = f64_factorials();
+    let ratio = match s.horner_ratio_i128() {
+        Some((0, _)) => return Some(0.0),
+        Some((a, p)) => a as f64 / p as f64,
+        None => f64_sum_with_bound(s).or_else(|| dd_sum_plain(s))?,
+    };
+    let get = |n: i64| table.get(n as usize).copied();
+    let (mut rm, mut re) = (1.0f64, 0i64);
+    for &x in &f.root_num {
+        let (m, e) = get(x)?;
+        rm *= m;
+        re += e;
+    }
+    for &x in &f.root_den {
+        let (m, e) = get(x)?;
+        rm /= m;
+        re -= e;
+    }
+    if re % 2 != 0 {
+        rm *= 2.0;
+        re -= 1;
+    }
+    let (mut tm, mut te) = (rm.sqrt(), re / 2);
+    for x in &s.num {
+        let (m, e) = get(x.c + x.s * s.kmin)?;
+        tm *= m;
+        te += e;
+    }
+    for x in &s.den {
+        let (m, e) = get(x.c + x.s * s.kmin)?;
+        tm /= m;
+        te -= e;
+    }
+    let mut v = super::surd::ldexp(tm * ratio, te);
+    if (s.kmin & 1 == 1) != f.negative {
+        v = -v;
+    }
+    Some(v)
+}
 
-    /// The value, or `None` when cancellation leaves too few bits.
-    fn evaluate(&self) -> Option<Xf> {
-        let s = self.sum;
-        if s.kmin > s.kmax {
-            return Some(Xf::ZERO);
+/// The sum relative to its first term in plain f64, with a running
+/// rounding-error bound: term k carries at most 2k+1 roundings, the
+/// additions one each. Accepted only when the bound is below 2^-50 of the
+/// sum (relative error under 1e-15); otherwise `None`.
+fn f64_sum_with_bound(s: &RacahSum) -> Option<f64> {
+    let u = f64::EPSILON / 2.0;
+    let mut t = 1.0f64;
+    let mut sum = 1.0f64;
+    let mut abs = 1.0f64;
+    let mut weighted = 1.0f64;
+    let mut steps = 0u32;
+    for k in s.kmin..s.kmax {
+        let (n, d) = s.ratio(k);
+        if n >= (1u128 << 53) || d >= (1u128 << 53) {
+            return None;
         }
-        let n = self.max_arg() as usize;
-        with_factorials(n + 1, |fact| {
-            let mut pref = Xf::ONE;
-            for &a in self.root_num {
-                pref = pref * fact[a as usize];
-            }
-            for &a in self.root_den {
-                pref = pref / fact[a as usize];
-            }
-            let pref = pref.sqrt();
-            let mut t0 = Xf::ONE;
-            for f in &s.num {
-                t0 = t0 * fact[(f.c + f.s * s.kmin) as usize];
-            }
-            for f in &s.den {
-                t0 = t0 / fact[(f.c + f.s * s.kmin) as usize];
-            }
-            // terms relative to t0
-            let mut term = Xf::ONE;
-            let mut acc = Xf::ONE;
-            let mut abs_acc = Xf::ONE;
-            for k in s.kmin..s.kmax {
-                let (num, den) = ratio(s, k);
-                term = -(term * Xf::from_dd(Dd::from_u128(num) / Dd::from_u128(den)));
-                acc = acc + term;
-                abs_acc = abs_acc + term.abs();
-            }
-            let cancel = if acc.is_zero() {
-                i64::MAX
-            } else {
-                abs_acc.ilog() - acc.ilog()
-            };
-            let acc = if cancel > MAX_CANCELLATION_LOG2 {
-                // too much cancellation for 106 bits: fixed point with
-                // enough bits, doubled until the error bound is tiny
-                let start = if cancel == i64::MAX { 256 } else { cancel + 96 };
-                fixed_point_sum(s, start.max(128) as u64)?
-            } else {
-                acc
-            };
-            let mut v = pref * t0 * acc;
-            if (s.kmin & 1 == 1) != self.negative {
-                v = -v;
-            }
-            Some(v)
-        })
+        t = -t * (n as f64 / d as f64);
+        steps += 1;
+        sum += t;
+        abs += t.abs();
+        weighted += t.abs() * (2 * steps + 1) as f64;
     }
+    if !abs.is_finite() {
+        return None;
+    }
+    let bound = u * (weighted + (steps as f64 + 1.0) * abs);
+    if bound <= sum.abs() * 2f64.powi(-50) {
+        Some(sum)
+    } else {
+        None
+    }
+}
+
+/// The sum relative to its first term in double-double without extended
+/// exponents (`None` if a term leaves 2^±900, or if cancellation exceeds
+/// 2^45, which would leave fewer than ~55 good bits).
+fn dd_sum_plain(s: &RacahSum) -> Option<f64> {
+    let mut t = Dd::ONE;
+    let mut sum = Dd::ONE;
+    let mut abs = 1.0f64;
+    for k in s.kmin..s.kmax {
+        let (n, d) = s.ratio(k);
+        if n >= (1u128 << 53) || d >= (1u128 << 53) {
+            return None;
+        }
+        t = -(t.mul_f64(n as f64).div_f64(d as f64));
+        sum = sum + t;
+        abs += t.hi.abs();
+        if abs.is_nan() || abs >= 1e270 {
+            return None;
+        }
+    }
+    let v = sum.to_f64();
+    if v == 0.0 || abs / v.abs() > 2f64.powi(MAX_CANCELLATION_LOG2 as i32) {
+        return None;
+    }
+    Some(v)
+}
+
+/// Evaluates a Racah formula in extended double-double, or `None` when
+/// even the fixed-point fallback cannot settle it (the exact path then).
+fn evaluate(f: &RacahFormula) -> Option<Xf> {
+    let s = &f.sum;
+    if s.kmin > s.kmax {
+        return Some(Xf::ZERO);
+    }
+    let mut n = 1i64;
+    for &a in f.root_num.iter().chain(&f.root_den) {
+        n = n.max(a);
+    }
+    for a in s.num.iter().chain(&s.den) {
+        n = n.max(a.c + a.s * s.kmin).max(a.c + a.s * s.kmax);
+    }
+    with_factorials(n as usize + 1, |fact| {
+        // pref * t0 = sqrt(Π root_num! / Π root_den!) Π num(kmin)! / Π den(kmin)!
+        let mut rn = Xf::ONE;
+        for &a in &f.root_num {
+            rn = rn * fact[a as usize];
+        }
+        let mut rd = Xf::ONE;
+        for &a in &f.root_den {
+            rd = rd * fact[a as usize];
+        }
+        let pref = (rn / rd).sqrt();
+        let mut tn = Xf::ONE;
+        for a in &s.num {
+            tn = tn * fact[(a.c + a.s * s.kmin) as usize];
+        }
+        let mut td = Xf::ONE;
+        for a in &s.den {
+            td = td * fact[(a.c + a.s * s.kmin) as usize];
+        }
+        let t0 = tn / td;
+        // the sum relative to t0: exactly in i128 when it fits
+        let acc = match s.horner_ratio_i128() {
+            Some((a, p)) => {
+                if a == 0 {
+                    return Some(Xf::ZERO);
+                }
+                let x = Xf::from_dd(Dd::from_u128(a.unsigned_abs()))
+                    / Xf::from_dd(Dd::from_u128(p.unsigned_abs()));
+                if (a < 0) != (p < 0) {
+                    -x
+                } else {
+                    x
+                }
+            }
+            None => {
+                let mut term = Xf::ONE;
+                let mut acc = Xf::ONE;
+                let mut abs_acc = Xf::ONE;
+                for k in s.kmin..s.kmax {
+                    let (num, den) = s.ratio(k);
+                    term = -(term * Xf::from_dd(Dd::from_u128(num) / Dd::from_u128(den)));
+                    acc = acc + term;
+                    abs_acc = abs_acc + term.abs();
+                }
+                let cancel = if acc.is_zero() {
+                    i64::MAX
+                } else {
+                    abs_acc.ilog() - acc.ilog()
+                };
+                if cancel > MAX_CANCELLATION_LOG2 {
+                    // too much cancellation for 106 bits: fixed point with
+                    // enough bits, doubled until the error bound is tiny
+                    let start = if cancel == i64::MAX { 256 } else { cancel + 96 };
+                    fixed_point_sum(s, start.max(128) as u64)?
+                } else {
+                    acc
+                }
+            }
+        };
+        let mut v = pref * t0 * acc;
+        if (s.kmin & 1 == 1) != f.negative {
+            v = -v;
+        }
+        Some(v)
+    })
 }
 
 /// The Racah sum relative to its first term, in fixed point with `bits`
@@ -123,7 +271,8 @@ fn fixed_point_sum(s: &RacahSum, bits: u64) -> Option<Xf> {
     use num_bigint::BigInt;
     use num_traits::Zero;
     let mut bits = bits;
-    while bits <= (1 << 22) {
+    let last = (bits * 16).max(1 << 14);
+    while bits <= last {
         let mut t = BigInt::from(1u8) << bits;
         let mut sum = t.clone();
         // rel = Σ 1/|T_i|; err_log2 = log2 Σ rel_k |T_k| (units 2^-bits)
@@ -132,7 +281,7 @@ fn fixed_point_sum(s: &RacahSum, bits: u64) -> Option<Xf> {
         let mut err_log2 = rel.log2() + tf;
         let mut overflowed = false;
         for k in s.kmin..s.kmax {
-            let (n, d) = ratio(s, k);
+            let (n, d) = s.ratio(k);
             t = -(t * BigInt::from(n)) / BigInt::from(d);
             if t.is_zero() {
                 overflowed = true;
@@ -148,7 +297,10 @@ fn fixed_point_sum(s: &RacahSum, bits: u64) -> Option<Xf> {
         if !overflowed && !sum.is_zero() {
             let sum_log = big_int_f64_log2(&sum);
             if sum_log - err_log2 > 60.0 {
-                let (neg, mag) = (sum.sign() == num_bigint::Sign::Minus, sum.magnitude().clone());
+                let (neg, mag) = (
+                    sum.sign() == num_bigint::Sign::Minus,
+                    sum.magnitude().clone(),
+                );
                 let x = big_to_xf(&mag);
                 let x = Xf {
                     m: x.m,
@@ -181,26 +333,6 @@ fn log2_add(a: f64, b: f64) -> f64 {
     hi + (1.0 + (lo - hi).exp2()).log2()
 }
 
-fn ratio(s: &RacahSum, k: i64) -> (u128, u128) {
-    let mut n: u128 = 1;
-    let mut d: u128 = 1;
-    for f in &s.num {
-        if f.s > 0 {
-            n *= (f.c + k + 1) as u128;
-        } else {
-            d *= (f.c - k) as u128;
-        }
-    }
-    for f in &s.den {
-        if f.s > 0 {
-            d *= (f.c + k + 1) as u128;
-        } else {
-            n *= (f.c - k) as u128;
-        }
-    }
-    (n, d)
-}
-
 /// An exact value as an extended double-double (for the rare fallback).
 fn surd_to_xf(v: &Surd) -> Xf {
     let mut acc = Xf::ZERO;
@@ -231,60 +363,24 @@ fn big_to_xf(n: &num_bigint::BigUint) -> Xf {
     }
 }
 
-fn h(x: i64) -> i64 {
-    x / 2
-}
-
 /// 3j symbol as an extended double-double; doubled arguments.
 fn three_j_xf(tj: [i64; 3], tm: [i64; 3]) -> Xf {
-    let [a, b, c] = tj;
-    let [ma, mb, mc] = tm;
-    if ma + mb + mc != 0
-        || !projection_ok2(a, ma)
-        || !projection_ok2(b, mb)
-        || !projection_ok2(c, mc)
-        || !triangle2(a, b, c)
-    {
-        return Xf::ZERO;
+    match three_j_formula(tj, tm) {
+        None => Xf::ZERO,
+        Some(f) => evaluate(&f).unwrap_or_else(|| surd_to_xf(&exact::three_j(tj, tm))),
     }
-    let sum = RacahSum {
-        num: vec![],
-        den: vec![
-            FactArg::up(0),
-            FactArg::up(h(c - b + ma)),
-            FactArg::up(h(c - a - mb)),
-            FactArg::down(h(a + b - c)),
-            FactArg::down(h(a - ma)),
-            FactArg::down(h(b + mb)),
-        ],
-        kmin: 0.max(h(b - c - ma)).max(h(a - c + mb)),
-        kmax: h(a + b - c).min(h(a - ma)).min(h(b + mb)),
-    };
-    let root_num = [
-        h(a + b - c),
-        h(a - b + c),
-        h(-a + b + c),
-        h(a + ma),
-        h(a - ma),
-        h(b + mb),
-        h(b - mb),
-        h(c + mc),
-        h(c - mc),
-    ];
-    let root_den = [h(a + b + c) + 1];
-    let fr = FloatRacah {
-        sum: &sum,
-        root_num: &root_num,
-        root_den: &root_den,
-        negative: h(a - b - mc).rem_euclid(2) == 1,
-    };
-    fr.evaluate()
-        .unwrap_or_else(|| surd_to_xf(&exact::three_j(tj, tm)))
 }
 
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)` in f64; doubled arguments.
 pub fn three_j_f64(tj: [i64; 3], tm: [i64; 3]) -> f64 {
-    three_j_xf(tj, tm).to_f64()
+    match three_j_formula(tj, tm) {
+        None => 0.0,
+        Some(f) => evaluate_fast(&f).unwrap_or_else(|| {
+            evaluate(&f)
+                .unwrap_or_else(|| surd_to_xf(&exact::three_j(tj, tm)))
+                .to_f64()
+        }),
+    }
 }
 
 /// The Clebsch–Gordan coefficient `<j1 m1; j2 m2 | J M>` in f64; doubled.
@@ -304,51 +400,22 @@ pub fn clebsch_gordan_f64(tj1: i64, tm1: i64, tj2: i64, tm2: i64, tjj: i64, tmm:
 
 /// 6j symbol as an extended double-double; doubled arguments.
 fn six_j_xf(t: [i64; 6]) -> Xf {
-    let [j1, j2, j3, j4, j5, j6] = t;
-    let triads = [(j1, j2, j3), (j1, j5, j6), (j4, j2, j6), (j4, j5, j3)];
-    if triads.iter().any(|&(a, b, c)| !triangle2(a, b, c)) {
-        return Xf::ZERO;
+    match six_j_formula(t) {
+        None => Xf::ZERO,
+        Some(f) => evaluate(&f).unwrap_or_else(|| surd_to_xf(&exact::six_j(t))),
     }
-    let mut root_num = [0i64; 12];
-    let mut root_den = [0i64; 4];
-    for (i, &(a, b, c)) in triads.iter().enumerate() {
-        root_num[3 * i] = h(a + b - c);
-        root_num[3 * i + 1] = h(a - b + c);
-        root_num[3 * i + 2] = h(-a + b + c);
-        root_den[i] = h(a + b + c) + 1;
-    }
-    let asum: Vec<i64> = triads.iter().map(|&(a, b, c)| h(a + b + c)).collect();
-    let bsum = [
-        h(j1 + j2 + j4 + j5),
-        h(j2 + j3 + j5 + j6),
-        h(j3 + j1 + j6 + j4),
-    ];
-    let sum = RacahSum {
-        num: vec![FactArg::up(1)],
-        den: vec![
-            FactArg::up(-asum[0]),
-            FactArg::up(-asum[1]),
-            FactArg::up(-asum[2]),
-            FactArg::up(-asum[3]),
-            FactArg::down(bsum[0]),
-            FactArg::down(bsum[1]),
-            FactArg::down(bsum[2]),
-        ],
-        kmin: *asum.iter().max().unwrap(),
-        kmax: *bsum.iter().min().unwrap(),
-    };
-    let fr = FloatRacah {
-        sum: &sum,
-        root_num: &root_num,
-        root_den: &root_den,
-        negative: false,
-    };
-    fr.evaluate().unwrap_or_else(|| surd_to_xf(&exact::six_j(t)))
 }
 
 /// The 6j symbol `{j1 j2 j3; j4 j5 j6}` in f64; doubled arguments.
 pub fn six_j_f64(t: [i64; 6]) -> f64 {
-    six_j_xf(t).to_f64()
+    match six_j_formula(t) {
+        None => 0.0,
+        Some(f) => evaluate_fast(&f).unwrap_or_else(|| {
+            evaluate(&f)
+                .unwrap_or_else(|| surd_to_xf(&exact::six_j(t)))
+                .to_f64()
+        }),
+    }
 }
 
 /// The 9j symbol in f64; doubled arguments. The sum over x of products of

@@ -72,6 +72,37 @@ pub fn prime_at(i: usize) -> u64 {
     TABLE.with(|t| t.borrow().primes[i])
 }
 
+/// Factorials below this argument take their exponents from a table.
+const SMALL_FACTORIALS: usize = 512;
+
+/// `exps[n][i]` = exponent of the i-th prime in `n!`, for n < 512.
+fn small_factorial_exps() -> &'static [Vec<u32>] {
+    static T: std::sync::OnceLock<Vec<Vec<u32>>> = std::sync::OnceLock::new();
+    T.get_or_init(|| {
+        let mut rows: Vec<Vec<u32>> = vec![Vec::new(), Vec::new()];
+        with_primes_upto(SMALL_FACTORIALS, |primes| {
+            for n in 2..SMALL_FACTORIALS as u64 {
+                let mut row = rows[n as usize - 1].clone();
+                let mut m = n;
+                for (i, &p) in primes.iter().enumerate() {
+                    if p > m {
+                        break;
+                    }
+                    while m % p == 0 {
+                        if row.len() <= i {
+                            row.resize(i + 1, 0);
+                        }
+                        row[i] += 1;
+                        m /= p;
+                    }
+                }
+                rows.push(row);
+            }
+        });
+        rows
+    })
+}
+
 /// A product of prime powers `Π p_i^{e_i}`, exponents indexed by prime
 /// position, possibly negative.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
@@ -91,9 +122,25 @@ impl PrimeExps {
         }
     }
 
+    /// The empty product with room for every prime up to `n`.
+    pub fn with_room(n: u64) -> Self {
+        let count = with_primes_upto(n as usize, |p| p.len());
+        PrimeExps {
+            exps: vec![0; count],
+        }
+    }
+
     /// Multiplies by `(n!)^times`.
     pub fn add_factorial(&mut self, n: u64, times: i64) {
         if n < 2 || times == 0 {
+            return;
+        }
+        if (n as usize) < SMALL_FACTORIALS {
+            let row = &small_factorial_exps()[n as usize];
+            self.grow(row.len());
+            for (a, &e) in self.exps.iter_mut().zip(row) {
+                *a += times * e as i64;
+            }
             return;
         }
         with_primes_upto(n as usize, |primes| {
@@ -133,6 +180,30 @@ impl PrimeExps {
         });
     }
 
+    /// Multiplies by `Π m_i^times` (one table lookup for all).
+    pub fn add_integers(&mut self, ms: &[u64], times: i64) {
+        let Some(&max) = ms.iter().max() else {
+            return;
+        };
+        ensure(max as usize);
+        TABLE.with(|t| {
+            let t = t.borrow();
+            for &m in ms {
+                assert!(m > 0, "add_integers of zero");
+                let mut m = m as usize;
+                while m > 1 {
+                    let p = t.spf[m] as usize;
+                    let i = t.index[p] as usize;
+                    if self.exps.len() <= i {
+                        self.exps.resize(i + 1, 0);
+                    }
+                    self.exps[i] += times;
+                    m /= p;
+                }
+            }
+        });
+    }
+
     /// Adds another exponent vector times `times`.
     pub fn add_exps(&mut self, other: &PrimeExps, times: i64) {
         self.grow(other.exps.len());
@@ -164,17 +235,22 @@ impl PrimeExps {
 
     /// Iterates over `(prime, exponent)` for nonzero exponents.
     pub fn iter(&self) -> impl Iterator<Item = (u64, i64)> + '_ {
-        let n = self.exps.len();
-        let primes: Vec<u64> = if n == 0 {
+        let nonzero: Vec<(usize, i64)> = self
+            .exps
+            .iter()
+            .enumerate()
+            .filter(|(_, e)| **e != 0)
+            .map(|(i, e)| (i, *e))
+            .collect();
+        let primes: Vec<u64> = if nonzero.is_empty() {
             Vec::new()
         } else {
-            TABLE.with(|t| t.borrow().primes[..n].to_vec())
+            TABLE.with(|t| {
+                let t = t.borrow();
+                nonzero.iter().map(|(i, _)| t.primes[*i]).collect()
+            })
         };
-        self.exps
-            .iter()
-            .zip(primes)
-            .filter(|(e, _)| **e != 0)
-            .map(|(e, p)| (p, *e))
+        nonzero.into_iter().zip(primes).map(|((_, e), p)| (p, e))
     }
 }
 

@@ -34,13 +34,54 @@ impl FactArg {
     }
 }
 
+/// A short list with a fixed capacity (no allocation on the hot path).
+#[derive(Clone, Copy, Debug)]
+pub struct Short<T: Copy + Default, const N: usize> {
+    items: [T; N],
+    len: usize,
+}
+
+impl<T: Copy + Default, const N: usize> Short<T, N> {
+    /// From a slice of at most N items.
+    pub fn of(xs: &[T]) -> Self {
+        let mut items = [T::default(); N];
+        items[..xs.len()].copy_from_slice(xs);
+        Short {
+            items,
+            len: xs.len(),
+        }
+    }
+    /// The items.
+    pub fn as_slice(&self) -> &[T] {
+        &self.items[..self.len]
+    }
+    /// Iterates over the items.
+    pub fn iter(&self) -> std::slice::Iter<'_, T> {
+        self.as_slice().iter()
+    }
+}
+
+impl<'a, T: Copy + Default, const N: usize> IntoIterator for &'a Short<T, N> {
+    type Item = &'a T;
+    type IntoIter = std::slice::Iter<'a, T>;
+    fn into_iter(self) -> Self::IntoIter {
+        self.iter()
+    }
+}
+
+impl Default for FactArg {
+    fn default() -> Self {
+        FactArg { c: 0, s: 1 }
+    }
+}
+
 /// The summand of a Racah-type single sum and its range.
 #[derive(Clone, Debug)]
 pub struct RacahSum {
     /// factorials in the numerator of each term
-    pub num: Vec<FactArg>,
+    pub num: Short<FactArg, 2>,
     /// factorials in the denominator of each term
-    pub den: Vec<FactArg>,
+    pub den: Short<FactArg, 7>,
     /// first k
     pub kmin: i64,
     /// last k (inclusive)
@@ -73,7 +114,7 @@ impl RawValue {
 
 impl RacahSum {
     /// The ratio `t_{k+1} / t_k` without the sign, as `(n, d)`.
-    fn ratio(&self, k: i64) -> (u128, u128) {
+    pub fn ratio(&self, k: i64) -> (u128, u128) {
         let mut n: u128 = 1;
         let mut d: u128 = 1;
         for f in &self.num {
@@ -121,15 +162,16 @@ impl RacahSum {
         for f in &self.den {
             e.add_factorial(f.at(self.kmin) as u64, -2);
         }
-        let (a, denominators) = match self.horner_i128() {
-            Some(v) => v,
+        let a = match self.horner_ratio_i128() {
+            Some((a, _)) => BigInt::from(a),
             None => self.horner_big(),
         };
         // divide by P = Π d_i: exponents -2 each, factor by factor
-        let _ = denominators;
+        let mut factors: Vec<u64> = Vec::with_capacity(4 * (self.kmax - self.kmin) as usize);
         for k in self.kmin..self.kmax {
-            self.for_each_denominator_factor(k, |f| e.add_integer(f, -2));
+            self.for_each_denominator_factor(k, |f| factors.push(f));
         }
+        e.add_integers(&factors, -2);
         let mut a = a;
         if (self.kmin & 1 == 1) != negative {
             a = -a;
@@ -137,11 +179,11 @@ impl RacahSum {
         RawValue { a, e }
     }
 
-    /// Horner from the last term: tail = A/P, tail_i = 1 - (n_i/d_i) tail_{i+1}.
-    fn horner_i128(&self) -> Option<(BigInt, Vec<u128>)> {
+    /// Horner in `i128` without recording denominators: the sum relative
+    /// to its first term is `A / P` (`None` on overflow).
+    pub fn horner_ratio_i128(&self) -> Option<(i128, i128)> {
         let mut a: i128 = 1;
         let mut p: i128 = 1;
-        let mut ds = Vec::with_capacity((self.kmax - self.kmin) as usize);
         let mut k = self.kmax - 1;
         while k >= self.kmin {
             let (n, d) = self.ratio(k);
@@ -151,25 +193,24 @@ impl RacahSum {
             let na = n.checked_mul(a)?;
             a = dp.checked_sub(na)?;
             p = dp;
-            ds.push(d as u128);
             k -= 1;
         }
-        Some((BigInt::from(a), ds))
+        Some((a, p))
     }
 
-    fn horner_big(&self) -> (BigInt, Vec<u128>) {
+    /// Horner from the last term in big integers: tail = A/P,
+    /// tail_i = 1 - (n_i/d_i) tail_{i+1}; returns A.
+    fn horner_big(&self) -> BigInt {
         let mut a = BigInt::one();
         let mut p = BigInt::one();
-        let mut ds = Vec::with_capacity((self.kmax - self.kmin) as usize);
         let mut k = self.kmax - 1;
         while k >= self.kmin {
             let (n, d) = self.ratio(k);
             p *= d;
             a = &p - a * n;
-            ds.push(d);
             k -= 1;
         }
-        (a, ds)
+        a
     }
 }
 
@@ -177,6 +218,9 @@ impl RacahSum {
 pub fn canonical(v: &RawValue) -> Surd {
     if v.a.is_zero() {
         return Surd::zero();
+    }
+    if let Some(s) = canonical_small(v) {
+        return s;
     }
     let negative = v.a.is_negative();
     let mut a: BigUint = v.a.magnitude().clone();
@@ -225,6 +269,41 @@ pub fn canonical(v: &RawValue) -> Surd {
         q = -q;
     }
     Surd::monomial_squarefree(q, free)
+}
+
+/// `canonical` in `u128` arithmetic when every number fits.
+fn canonical_small(v: &RawValue) -> Option<Surd> {
+    let a: i128 = (&v.a).try_into().ok()?;
+    let negative = a < 0;
+    let mut a = a.unsigned_abs();
+    let mut num: u128 = 1;
+    let mut den: u128 = 1;
+    let mut free: u128 = 1;
+    for (p, ex) in v.e.iter() {
+        let p = p as u128;
+        let half = ex.div_euclid(2);
+        if ex.rem_euclid(2) == 1 {
+            free = free.checked_mul(p)?;
+        }
+        if half > 0 {
+            num = num.checked_mul(p.checked_pow(half as u32)?)?;
+        } else if half < 0 {
+            let mut left = -half;
+            while left > 0 && a.is_multiple_of(p) {
+                a /= p;
+                left -= 1;
+            }
+            if left > 0 {
+                den = den.checked_mul(p.checked_pow(left as u32)?)?;
+            }
+        }
+    }
+    let n = num.checked_mul(a)?;
+    let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(den));
+    if negative {
+        q = -q;
+    }
+    Some(Surd::monomial_squarefree(q, BigUint::from(free)))
 }
 
 fn mul_small(small: &mut u128, big: &mut BigUint, p: u128) {
@@ -283,4 +362,144 @@ fn trim(mut v: Vec<i64>) -> Vec<i64> {
         v.pop();
     }
     v
+}
+
+/// A symbol as a Racah single sum with its root prefactor
+/// `sqrt(Π root_num! / Π root_den!)` and overall sign.
+#[derive(Clone, Debug)]
+pub struct RacahFormula {
+    /// the single sum
+    pub sum: RacahSum,
+    /// factorial arguments in the numerator of the radicand
+    pub root_num: Short<i64, 12>,
+    /// factorial arguments in the denominator of the radicand
+    pub root_den: Short<i64, 4>,
+    /// overall sign
+    pub negative: bool,
+}
+
+impl RacahFormula {
+    /// The exact value.
+    pub fn exact_raw(&self) -> RawValue {
+        let s = &self.sum;
+        let mut top = 2i64;
+        for &a in self.root_num.iter().chain(&self.root_den) {
+            top = top.max(a);
+        }
+        for a in s.num.iter().chain(&s.den) {
+            top = top.max(a.c + a.s * s.kmin).max(a.c + a.s * s.kmax + 1);
+        }
+        let mut e = PrimeExps::with_room(top as u64);
+        for &a in &self.root_num {
+            e.add_factorial(a as u64, 1);
+        }
+        for &a in &self.root_den {
+            e.add_factorial(a as u64, -1);
+        }
+        self.sum.evaluate(self.negative, e)
+    }
+}
+
+fn half(x: i64) -> i64 {
+    x / 2
+}
+
+/// The Racah formula of the 3j symbol (Edmonds 3.7.3, from memory), or
+/// `None` when a selection rule or a symmetry makes it 0. Doubled arguments.
+pub fn three_j_formula(tj: [i64; 3], tm: [i64; 3]) -> Option<RacahFormula> {
+    use super::exact::{projection_ok2, triangle2};
+    let [a, b, c] = tj;
+    let [ma, mb, mc] = tm;
+    if ma + mb + mc != 0
+        || !projection_ok2(a, ma)
+        || !projection_ok2(b, mb)
+        || !projection_ok2(c, mc)
+        || !triangle2(a, b, c)
+    {
+        return None;
+    }
+    // symmetry zeros: (-1)^(j1+j2+j3) = -1 while an odd symmetry fixes it
+    if half(a + b + c) % 2 == 1 {
+        let all_zero = ma == 0 && mb == 0 && mc == 0;
+        let twin = (a == b && ma == mb) || (b == c && mb == mc) || (a == c && ma == mc);
+        if all_zero || twin {
+            return None;
+        }
+    }
+    let h = half;
+    let sum = RacahSum {
+        num: Short::of(&[]),
+        den: Short::of(&[
+            FactArg::up(0),
+            FactArg::up(h(c - b + ma)),
+            FactArg::up(h(c - a - mb)),
+            FactArg::down(h(a + b - c)),
+            FactArg::down(h(a - ma)),
+            FactArg::down(h(b + mb)),
+        ]),
+        kmin: 0.max(h(b - c - ma)).max(h(a - c + mb)),
+        kmax: h(a + b - c).min(h(a - ma)).min(h(b + mb)),
+    };
+    Some(RacahFormula {
+        sum,
+        root_num: Short::of(&[
+            h(a + b - c),
+            h(a - b + c),
+            h(-a + b + c),
+            h(a + ma),
+            h(a - ma),
+            h(b + mb),
+            h(b - mb),
+            h(c + mc),
+            h(c - mc),
+        ]),
+        root_den: Short::of(&[h(a + b + c) + 1]),
+        negative: h(a - b - mc).rem_euclid(2) == 1,
+    })
+}
+
+/// The Racah formula of the 6j symbol (Edmonds 6.3.7, from memory), or
+/// `None` when a triangle rule makes it 0. Doubled arguments.
+pub fn six_j_formula(t: [i64; 6]) -> Option<RacahFormula> {
+    use super::exact::triangle2;
+    let [j1, j2, j3, j4, j5, j6] = t;
+    let triads = [(j1, j2, j3), (j1, j5, j6), (j4, j2, j6), (j4, j5, j3)];
+    if triads.iter().any(|&(a, b, c)| !triangle2(a, b, c)) {
+        return None;
+    }
+    let mut root_num = [0i64; 12];
+    let mut root_den = [0i64; 4];
+    let mut asum = [0i64; 4];
+    for (i, &(a, b, c)) in triads.iter().enumerate() {
+        root_num[3 * i] = half(a + b - c);
+        root_num[3 * i + 1] = half(a - b + c);
+        root_num[3 * i + 2] = half(-a + b + c);
+        root_den[i] = half(a + b + c) + 1;
+        asum[i] = half(a + b + c);
+    }
+    let bsum = [
+        half(j1 + j2 + j4 + j5),
+        half(j2 + j3 + j5 + j6),
+        half(j3 + j1 + j6 + j4),
+    ];
+    let sum = RacahSum {
+        num: Short::of(&[FactArg::up(1)]),
+        den: Short::of(&[
+            FactArg::up(-asum[0]),
+            FactArg::up(-asum[1]),
+            FactArg::up(-asum[2]),
+            FactArg::up(-asum[3]),
+            FactArg::down(bsum[0]),
+            FactArg::down(bsum[1]),
+            FactArg::down(bsum[2]),
+        ]),
+        kmin: *asum.iter().max().unwrap(),
+        kmax: *bsum.iter().min().unwrap(),
+    };
+    Some(RacahFormula {
+        sum,
+        root_num: Short::of(&root_num),
+        root_den: Short::of(&root_den),
+        negative: false,
+    })
 }

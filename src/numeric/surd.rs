@@ -246,7 +246,11 @@ fn rational_to_mantissa_exp(q: &BigRational) -> (f64, i64) {
     let (nm, ne) = biguint_to_mantissa_exp(q.numer().magnitude());
     let (dm, de) = biguint_to_mantissa_exp(q.denom().magnitude());
     let v = nm / dm;
-    let v = if q.numer().sign() == Sign::Minus { -v } else { v };
+    let v = if q.numer().sign() == Sign::Minus {
+        -v
+    } else {
+        v
+    };
     (v, ne - de)
 }
 
@@ -425,7 +429,10 @@ mod tests {
         assert_eq!(half.to_string(), "sqrt(1/2)");
         let m = Surd::signed_sqrt(true, &q(2, 3)).unwrap();
         assert_eq!(m.to_string(), "-sqrt(2/3)");
-        assert_eq!(Surd::signed_sqrt(false, &q(4, 9)).unwrap().to_string(), "2/3");
+        assert_eq!(
+            Surd::signed_sqrt(false, &q(4, 9)).unwrap().to_string(),
+            "2/3"
+        );
         assert_eq!(Surd::zero().to_string(), "0");
     }
 

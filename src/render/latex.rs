@@ -170,7 +170,12 @@ pub fn factor(f: &Factor) -> String {
     }
 }
 
-fn product(coef: &BigRational, root: &num_bigint::BigUint, phase: Option<&Lin>, fs: &[&Factor]) -> String {
+fn product(
+    coef: &BigRational,
+    root: &num_bigint::BigUint,
+    phase: Option<&Lin>,
+    fs: &[&Factor],
+) -> String {
     let neg = coef.is_negative();
     let a = coef.abs();
     let mut num: Vec<String> = Vec::new();
@@ -180,7 +185,11 @@ fn product(coef: &BigRational, root: &num_bigint::BigUint, phase: Option<&Lin>, 
         if sq.is_integer() {
             num.push(format!("\\sqrt{{{}}}", sq.numer()));
         } else {
-            num.push(format!("\\sqrt{{\\frac{{{}}}{{{}}}}}", sq.numer(), sq.denom()));
+            num.push(format!(
+                "\\sqrt{{\\frac{{{}}}{{{}}}}}",
+                sq.numer(),
+                sq.denom()
+            ));
         }
     } else {
         if !a.numer().is_one() {
@@ -209,7 +218,8 @@ fn product(coef: &BigRational, root: &num_bigint::BigUint, phase: Option<&Lin>, 
         num.join(" ")
     };
     // a lone parenthesised linear form needs no parentheses in a fraction
-    if den.len() == 1 && den[0].starts_with('(') && den[0].ends_with(')') && !den[0].contains(")^") {
+    if den.len() == 1 && den[0].starts_with('(') && den[0].ends_with(')') && !den[0].contains(")^")
+    {
         den[0] = den[0][1..den[0].len() - 1].to_string();
     }
     let body = if den.is_empty() {

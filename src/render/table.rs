@@ -105,7 +105,11 @@ pub fn text(tj1: i64, tj2: i64) -> String {
         half(tj2)
     );
     let jw = es.iter().map(|e| e.j.len()).max().unwrap_or(1);
-    let mw = es.iter().map(|e| signed_half(e.tmm).len()).max().unwrap_or(1);
+    let mw = es
+        .iter()
+        .map(|e| signed_half(e.tmm).len())
+        .max()
+        .unwrap_or(1);
     let mut tmm = tj1 + tj2;
     while tmm >= -(tj1 + tj2) {
         let block: Vec<&Entry> = es.iter().filter(|e| e.tmm == tmm).collect();
@@ -124,7 +128,11 @@ pub fn text(tj1: i64, tj2: i64) -> String {
                 Some(r) => ("-", r.to_string()),
                 None => (if first { " " } else { "+" }, txt),
             };
-            let mag = if mag == "1" { String::new() } else { format!("{mag} ") };
+            let mag = if mag == "1" {
+                String::new()
+            } else {
+                format!("{mag} ")
+            };
             format!("{sign} {mag}{ket}")
         };
         let mut js: Vec<i64> = block.iter().map(|e| e.tj).collect();
@@ -175,7 +183,7 @@ pub fn csv(tj1: i64, tj2: i64) -> String {
             e.j,
             e.m,
             e.exact,
-            e.float
+            super::fmt_float(e.float)
         ));
     }
     s

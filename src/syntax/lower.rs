@@ -64,7 +64,10 @@ impl BigLin {
         let mut out = self.clone();
         out.c0 += &o.c0 * k;
         for (v, c) in &o.coeffs {
-            let e = out.coeffs.entry(v.clone()).or_insert_with(BigRational::zero);
+            let e = out
+                .coeffs
+                .entry(v.clone())
+                .or_insert_with(BigRational::zero);
             *e += c * k;
             if e.is_zero() {
                 out.coeffs.remove(v);
@@ -121,7 +124,7 @@ impl Ctx<'_> {
         Ok(l)
     }
 
-    fn into_expr(&self, v: Value, pos: usize) -> R<Expr> {
+    fn to_expr(&self, v: Value, pos: usize) -> R<Expr> {
         match v {
             Value::Expr(e) => Ok(e),
             Value::Lin(b) => {
@@ -150,7 +153,6 @@ impl Ctx<'_> {
     }
 
     fn lower(&self, pair: Pair<Rule>) -> R<Value> {
-        let pos = pair.as_span().start();
         debug_assert_eq!(pair.as_rule(), Rule::expr);
         pratt()
             .map_primary(|p| self.primary(p))
@@ -163,7 +165,11 @@ impl Ctx<'_> {
                 let lhs = lhs?;
                 let at = op.as_span().start();
                 let ex = op.into_inner().next().unwrap();
-                let txt: String = ex.as_str().chars().filter(|c| *c != '(' && *c != ')').collect();
+                let txt: String = ex
+                    .as_str()
+                    .chars()
+                    .filter(|c| *c != '(' && *c != ')')
+                    .collect();
                 let n: i64 = txt
                     .trim()
                     .parse()
@@ -183,10 +189,6 @@ impl Ctx<'_> {
                 }
             })
             .parse(pair.into_inner())
-            .map_err(|e: ParseError| {
-                let _ = pos;
-                e
-            })
     }
 
     fn add(&self, a: Value, b: Value, sub: bool, at: usize) -> R<Value> {
@@ -198,8 +200,8 @@ impl Ctx<'_> {
         match (a, b) {
             (Value::Lin(x), Value::Lin(y)) => Ok(Value::Lin(x.add(&y, &k))),
             (a, b) => {
-                let x = self.into_expr(a, at)?;
-                let y = self.into_expr(b, at)?;
+                let x = self.to_expr(a, at)?;
+                let y = self.to_expr(b, at)?;
                 let y = if sub { y.neg() } else { y };
                 let e = x.add(&y);
                 self.check_size(&e, at)?;
@@ -223,14 +225,12 @@ impl Ctx<'_> {
             (Value::Lin(x), Value::Lin(y)) if x.is_constant() => Ok(Value::Lin(y.scale(&x.c0))),
             (Value::Lin(x), Value::Lin(y)) if y.is_constant() => Ok(Value::Lin(x.scale(&y.c0))),
             _ => {
-                let x = self.into_expr(a, at)?;
-                let y = self.into_expr(b, at)?;
+                let x = self.to_expr(a, at)?;
+                let y = self.to_expr(b, at)?;
                 if x.len().saturating_mul(y.len()) > MAX_TERMS {
                     return Err(self.err(
                         at,
-                        format!(
-                            "the expansion has more than {MAX_TERMS} terms; refusing to go on"
-                        ),
+                        format!("the expansion has more than {MAX_TERMS} terms; refusing to go on"),
                     ));
                 }
                 Ok(Value::Expr(x.mul(&y)))
@@ -247,20 +247,20 @@ impl Ctx<'_> {
                 let inv = y.c0.recip();
                 return match a {
                     Value::Lin(x) => Ok(Value::Lin(x.scale(&inv))),
-                    Value::Expr(e) => {
-                        Ok(Value::Expr(e.mul(&Expr::constant(&Surd::from_rational(inv)))))
-                    }
+                    Value::Expr(e) => Ok(Value::Expr(
+                        e.mul(&Expr::constant(&Surd::from_rational(inv))),
+                    )),
                 };
             }
         }
         let inv = self.invert(b, at)?;
-        let x = self.into_expr(a, at)?;
+        let x = self.to_expr(a, at)?;
         Ok(Value::Expr(x.mul(&Expr::from_term(inv))))
     }
 
     /// `1/b` for a single term made of a constant, a phase and powers.
     fn invert(&self, b: Value, at: usize) -> R<Term> {
-        let e = self.into_expr(b, at)?;
+        let e = self.to_expr(b, at)?;
         if e.len() != 1 {
             return Err(self.err(
                 at,
@@ -415,11 +415,7 @@ impl Ctx<'_> {
                 for e in p.into_inner() {
                     let eat = e.as_span().start();
                     let v = self.lower(e)?;
-                    a.push(self.as_lin(
-                        v,
-                        eat,
-                        "an argument of a Clebsch-Gordan coefficient",
-                    )?);
+                    a.push(self.as_lin(v, eat, "an argument of a Clebsch-Gordan coefficient")?);
                 }
                 Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Cg(
                     a.try_into().unwrap(),
@@ -453,7 +449,7 @@ impl Ctx<'_> {
         let body = body.unwrap();
         let bat = body.as_span().start();
         let v = self.lower(body)?;
-        let e = self.into_expr(v, bat)?;
+        let e = self.to_expr(v, bat)?;
         let mut out = Expr::zero();
         for t in e.terms {
             let mut t = t;
@@ -499,7 +495,9 @@ impl Ctx<'_> {
             "hat" => {
                 let (v, aat) = vals.pop().unwrap();
                 let l = self.as_lin(v, aat, "the argument of hat")?;
-                let base = l.scale(Q::from_integer(2)).add_scaled(&Lin::int(1), Q::one());
+                let base = l
+                    .scale(Q::from_integer(2))
+                    .add_scaled(&Lin::int(1), Q::one());
                 if base.is_constant() {
                     let c = big_q(base.constant_part());
                     if c.is_negative() {
@@ -523,7 +521,9 @@ impl Ctx<'_> {
                 }
                 let b = ls.pop().unwrap();
                 let a = ls.pop().unwrap();
-                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Delta(a, b)))))
+                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Delta(
+                    a, b,
+                )))))
             }
             "tri" => {
                 let mut ls = Vec::new();
@@ -584,7 +584,9 @@ impl Ctx<'_> {
                     // factor (b+c-a became -(a-b-c)); put it back into the
                     // one that reads as a triangle-type form
                     let score = |l: &Lin| {
-                        l.terms().map(|(_, c)| if *c > Q::zero() { -1 } else { 1 }).sum::<i32>()
+                        l.terms()
+                            .map(|(_, c)| if *c > Q::zero() { -1 } else { 1 })
+                            .sum::<i32>()
                     };
                     let pick = factors
                         .iter()
@@ -613,9 +615,9 @@ impl Ctx<'_> {
                 out.set_scalar(&r);
                 for f in &factors {
                     match f {
-                        Factor::Power(b, ex) => {
-                            out.factors.push(Factor::Power(b.clone(), *ex / Q::from_integer(2)))
-                        }
+                        Factor::Power(b, ex) => out
+                            .factors
+                            .push(Factor::Power(b.clone(), *ex / Q::from_integer(2))),
                         _ => return Err(bad()),
                     }
                 }
@@ -659,7 +661,7 @@ pub(super) fn lower_expr(input: &str, pair: Pair<Rule>) -> R<Expr> {
     let ctx = Ctx { input };
     let at = pair.as_span().start();
     let v = ctx.lower(pair)?;
-    ctx.into_expr(v, at)
+    ctx.to_expr(v, at)
 }
 
 fn parse_fraction(ctx: &Ctx, p: &Pair<Rule>) -> R<Lin> {

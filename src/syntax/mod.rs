@@ -27,8 +27,8 @@ mod grammar {
 /// Parses an expression of the language (DESIGN.md).
 pub fn parse(input: &str) -> Result<Expr, ParseError> {
     pest::set_error_detail(true);
-    let mut pairs = Grammar::parse(Rule::expression_input, input)
-        .map_err(|e| error::from_pest(input, e))?;
+    let mut pairs =
+        Grammar::parse(Rule::expression_input, input).map_err(|e| error::from_pest(input, e))?;
     let top = pairs.next().unwrap();
     let expr = top.into_inner().next().unwrap();
     lower::lower_expr(input, expr)

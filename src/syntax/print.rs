@@ -12,7 +12,10 @@ use std::collections::BTreeSet;
 use std::fmt;
 
 fn row(ls: &[Lin]) -> String {
-    ls.iter().map(|l| l.to_string()).collect::<Vec<_>>().join(", ")
+    ls.iter()
+        .map(|l| l.to_string())
+        .collect::<Vec<_>>()
+        .join(", ")
 }
 
 /// A power `base^e` with `e > 0`, written with `hat`, `sqrt` or `^`.
@@ -20,9 +23,7 @@ fn print_power(base: &Lin, e: Q) -> String {
     let twice = (e * Q::from_integer(2)).to_integer();
     if twice % 2 != 0 {
         let root = if is_hat_base(base) {
-            let l = base
-                .add_scaled(&Lin::int(-1), Q::one())
-                .scale(Q::new(1, 2));
+            let l = base.add_scaled(&Lin::int(-1), Q::one()).scale(Q::new(1, 2));
             format!("hat({l})")
         } else {
             format!("sqrt({base})")
@@ -60,12 +61,7 @@ pub fn print_factor(f: &Factor) -> String {
             a[0], a[1], a[2], a[3], a[4], a[5]
         ),
         Factor::SixJ(a) => format!("{{{}; {}}}", row(&a[..3]), row(&a[3..])),
-        Factor::NineJ(a) => format!(
-            "{{{}; {}; {}}}",
-            row(&a[..3]),
-            row(&a[3..6]),
-            row(&a[6..])
-        ),
+        Factor::NineJ(a) => format!("{{{}; {}; {}}}", row(&a[..3]), row(&a[3..6]), row(&a[6..])),
     }
 }
 

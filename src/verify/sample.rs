@@ -47,7 +47,11 @@ fn eliminate_bound(c: &mut Constraints, bound: &[Name]) {
         // b = -(l - a b)/a
         let rest = l.substitute(b, &Lin::zero());
         let sol = rest.scale(-a.recip());
-        for f in c.ge.iter_mut().chain(c.eq.iter_mut()).chain(c.integral.iter_mut()) {
+        for f in
+            c.ge.iter_mut()
+                .chain(c.eq.iter_mut())
+                .chain(c.integral.iter_mut())
+        {
             *f = f.substitute(b, &sol);
         }
     }
@@ -86,9 +90,10 @@ impl Sampler {
                 all.integral.extend(c.integral.iter().cloned());
                 // a term of phases and powers only has no domain of its own
                 // (a closed formula holds where the other side's symbols do)
-                let has_rules = t.factors.iter().any(|f| {
-                    f.is_symbol() || matches!(f, Factor::Tri(_) | Factor::Delta(..))
-                });
+                let has_rules = t
+                    .factors
+                    .iter()
+                    .any(|f| f.is_symbol() || matches!(f, Factor::Tri(_) | Factor::Delta(..)));
                 if has_rules {
                     per_term.push(c);
                 }
@@ -153,10 +158,12 @@ impl Sampler {
     /// True when the point satisfies every constraint of `c`.
     fn satisfies(c: &Constraints, p: &Point) -> bool {
         let get = |n: &Name| p.get(n).copied();
-        c.ge.iter().all(|l| l.eval(&get).is_some_and(|x| !x.is_negative()))
-            && c.eq.iter().all(|l| l.eval(&get).is_some_and(|x| x.is_zero()))
-            && c
-                .integral
+        c.ge.iter()
+            .all(|l| l.eval(&get).is_some_and(|x| !x.is_negative()))
+            && c.eq
+                .iter()
+                .all(|l| l.eval(&get).is_some_and(|x| x.is_zero()))
+            && c.integral
                 .iter()
                 .all(|l| l.eval(&get).is_some_and(|x| x.is_integer()))
     }

@@ -89,7 +89,9 @@ pub fn points(exprs: &[&Expr], s: &SpotSettings) -> Vec<Point> {
 
 /// "Size" of a point, to report the smallest counterexample.
 pub fn point_size(p: &Point) -> Q {
-    p.values().map(|q| if *q < Q::from_integer(0) { -*q } else { *q }).sum()
+    p.values()
+        .map(|q| if *q < Q::from_integer(0) { -*q } else { *q })
+        .sum()
 }
 
 /// Compares `lhs` and `rhs` at admissible points of both.
@@ -123,7 +125,6 @@ pub fn compare_at(lhs: &Expr, rhs: &Expr, pts: &[Point]) -> Result<SpotReport, E
         }
         rep.values.push((p.clone(), a, b));
     }
-    rep.mismatches
-        .sort_by(|x, y| point_size(&x.at).cmp(&point_size(&y.at)));
+    rep.mismatches.sort_by_key(|x| point_size(&x.at));
     Ok(rep)
 }
