@@ -369,10 +369,7 @@ impl Term {
         if !self.bound.is_empty() || !self.phase.is_zero() || !self.root.is_one() {
             return None;
         }
-        let c = Q::new(
-            self.coef.numer().to_i64()?,
-            self.coef.denom().to_i64()?,
-        );
+        let c = Q::new(self.coef.numer().to_i64()?, self.coef.denom().to_i64()?);
         if c.numer().abs() > (1 << 40) || *c.denom() > (1 << 40) {
             return None;
         }
