@@ -20,5 +20,7 @@ pub mod algebra;
 pub mod expr;
 pub mod numeric;
 pub mod render;
+pub mod rules;
+pub mod simplify;
 pub mod syntax;
 pub mod verify;

@@ -2,4 +2,8 @@
 //! linear constraints (and, later, phases modulo integrality and symmetry
 //! canonical forms).
 
+pub mod lattice;
+pub mod normal;
 pub mod selection;
+pub mod symmetry;
+pub mod unify;

@@ -4,7 +4,9 @@
 //! 2 bad input (with a one-paragraph message on standard error and nothing
 //! on standard output).
 
+mod check;
 mod eval;
+mod simplify;
 mod table;
 
 use clap::{Parser, Subcommand};
@@ -47,6 +49,23 @@ enum Command {
     /// Prints each coupled state |J M> as its expansion in the product
     /// basis |m1 m2>, grouped by M; --json and --csv give the entries.
     Table(table::TableArgs),
+    /// Simplify an expression; every step is verified by exact
+    /// spot-evaluation.
+    ///
+    /// Applies the normal form (canonical symbols, phases modulo
+    /// integrality, selection rules, deltas, like terms), special values
+    /// and exact values of numeric symbols. "Verified" means exact
+    /// agreement at random admissible points (integer and half-integer
+    /// values up to --max-j): strong evidence, not a proof.
+    Simplify(simplify::SimplifyArgs),
+    /// Check a claim LHS = RHS by exact spot-evaluation.
+    ///
+    /// Exit 0 when the sides agree at every point checked (some nonzero),
+    /// 1 when they differ (with the smallest counterexample and, where one
+    /// fits, the phase, factor or swapped arguments that repair the claim)
+    /// or when nothing nonzero was found. Agreement at the points checked
+    /// is strong evidence, not a proof for all quantum numbers.
+    Check(check::CheckArgs),
     /// LaTeX (amsmath) for an expression, for a paper.
     Latex {
         /// the expression (`-` reads standard input)
@@ -76,14 +95,17 @@ pub fn parse_expr(text: &str) -> Result<recoup::expr::Expr, Failure> {
 pub fn run() -> i32 {
     let cli = Cli::parse();
     let result = match cli.command {
-        Command::Eval(a) => eval::run(a),
-        Command::Table(a) => table::run(a),
+        Command::Eval(a) => eval::run(a).map(|_| 0),
+        Command::Table(a) => table::run(a).map(|_| 0),
+        Command::Simplify(a) => simplify::run(a).map(|_| 0),
+        Command::Check(a) => check::run(a),
         Command::Latex { expr } => read_arg(&expr)
             .and_then(|t| parse_expr(&t))
-            .map(|e| println!("{}", recoup::render::latex::expr(&e))),
+            .map(|e| println!("{}", recoup::render::latex::expr(&e)))
+            .map(|_| 0),
     };
     match result {
-        Ok(()) => 0,
+        Ok(code) => code,
         Err(Failure::Input(msg)) => {
             eprintln!("recoup: {msg}");
             2

@@ -189,6 +189,20 @@ impl Term {
         t.normalized()
     }
 
+    /// The product with `other` placed inside this term's sums: free
+    /// variables of `other` may refer to this term's summed variables
+    /// (only `other`'s own summed variables are renamed apart).
+    pub fn mul_inside(&self, other: &Term) -> Term {
+        let b = other.freshen(&self.all_vars());
+        let mut t = self.clone();
+        let s = &self.scalar() * &b.scalar();
+        t.set_scalar(&s);
+        t.phase = &self.phase + &b.phase;
+        t.factors.extend(b.factors.iter().cloned());
+        t.bound.extend(b.bound.iter().cloned());
+        t.normalized()
+    }
+
     /// Kinds of the variables of this term (bound ones included).
     pub fn kinds(&self) -> BTreeMap<Name, Kind> {
         let mut out = BTreeMap::new();
@@ -585,6 +599,15 @@ impl Expr {
             e.push(t.rename(map));
         }
         e
+    }
+
+    /// The expression as one linear form, when every term is `c` or `c·(L)`.
+    pub fn as_lin(&self) -> Option<Lin> {
+        let mut acc = Lin::zero();
+        for t in &self.terms {
+            acc = &acc + &t.as_linear()?;
+        }
+        Some(acc)
     }
 
     /// The number of terms.

@@ -78,13 +78,6 @@ impl BigLin {
     fn scale(&self, k: &BigRational) -> BigLin {
         BigLin::default().add(self, k)
     }
-    fn from_lin(l: &Lin) -> BigLin {
-        let mut out = BigLin::constant(big_q(l.constant_part()));
-        for (v, c) in l.terms() {
-            out.coeffs.insert(v.clone(), big_q(*c));
-        }
-        out
-    }
 }
 
 fn small_q(q: &BigRational) -> Option<Q> {
@@ -142,7 +135,7 @@ impl Ctx<'_> {
     fn as_lin(&self, v: Value, pos: usize, what: &str) -> R<Lin> {
         match v {
             Value::Lin(b) => self.to_lin(&b, pos),
-            Value::Expr(e) => match expr_as_lin(&e) {
+            Value::Expr(e) => match e.as_lin() {
                 Some(l) => Ok(l),
                 None => Err(self.err(
                     pos,
@@ -632,28 +625,6 @@ fn neg(v: Value) -> Value {
         Value::Lin(b) => Value::Lin(b.scale(&-BigRational::one())),
         Value::Expr(e) => Value::Expr(e.neg()),
     }
-}
-
-/// An expression that is a linear form written as terms `c·(L)`.
-pub fn expr_as_lin(e: &Expr) -> Option<Lin> {
-    let mut acc = BigLin::default();
-    for t in &e.terms {
-        if !t.bound.is_empty() || !t.phase.is_zero() || !t.root.is_one() {
-            return None;
-        }
-        match t.factors.as_slice() {
-            [] => acc.c0 += &t.coef,
-            [Factor::Power(l, ex)] if *ex == Q::one() => {
-                acc = acc.add(&BigLin::from_lin(l), &t.coef);
-            }
-            _ => return None,
-        }
-    }
-    let mut l = Lin::constant(small_q(&acc.c0)?);
-    for (v, c) in &acc.coeffs {
-        l = l.add_scaled(&Lin::var(v.clone()), small_q(c)?);
-    }
-    Some(l)
 }
 
 /// Lowers the `expr` pair of a whole input.

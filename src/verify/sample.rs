@@ -79,6 +79,11 @@ impl Sampler {
                 for f in &t.factors {
                     cols.add_columns(f);
                 }
+                // a phase only means something where its exponent is an
+                // integer: that is part of every expression's domain
+                if !t.phase.is_zero() {
+                    cols.integral.push(t.phase.clone());
+                }
                 retain_free(&mut cols, &bound);
                 base.ge.extend(cols.ge);
                 base.integral.extend(cols.integral);
@@ -137,22 +142,7 @@ impl Sampler {
     fn range(&self, c: &Constraints, v: &Name, kind: Kind, env: &Point, max_j: Q) -> Range {
         let (lo, hi) = Self::bounds(kind, max_j);
         let r = range_of(v, c, env, lo, hi);
-        match (kind, r) {
-            // a variable only in phases and powers: integers
-            (Kind::Other, Range::Steps { start, hi, .. }) => {
-                let s = start.ceil();
-                if s > hi {
-                    Range::Empty
-                } else {
-                    Range::Steps {
-                        start: s,
-                        step: Q::from_integer(1),
-                        hi,
-                    }
-                }
-            }
-            (_, r) => r,
-        }
+        r
     }
 
     /// True when the point satisfies every constraint of `c`.

@@ -1,0 +1,264 @@
+//! The normal form of terms: symbols in canonical form under their
+//! symmetry groups with the phase they cost folded into the term's phase,
+//! the phase reduced modulo the integrality lattice, selection-rule zeros
+//! detected (broken triangle rules, impossible parities, projections out of
+//! range, conservation violated identically, symmetry zeros such as
+//! `(a, a, 1; 0, 0, 0)`), redundant triangle factors dropped, deltas
+//! eliminated where a summed variable allows it, and alpha-equivalent
+//! terms merged. Pure algebra: the simplifier verifies every use.
+
+use super::lattice::PhaseLattice;
+use super::symmetry::{canonical, classical_images};
+use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
+use num_traits::Signed;
+use std::collections::{BTreeMap, BTreeSet};
+
+/// True when a linear form is a negative constant.
+fn negative_constant(l: &Lin) -> bool {
+    l.is_constant() && l.constant_part().is_negative()
+}
+
+/// True when `l` can never be an integer (every variable enters with an
+/// even coefficient, so `l ≡ constant (mod 1)`, and that constant is not an
+/// integer).
+fn never_integer(l: &Lin) -> bool {
+    l.terms()
+        .all(|(_, c)| c.is_integer() && c.to_integer() % 2 == 0)
+        && !l.constant_part().is_integer()
+}
+
+/// True when a selection rule makes the term vanish for every assignment.
+pub fn selection_zero(t: &Term) -> bool {
+    for f in &t.factors {
+        if let Some(c) = f.conservation() {
+            if c.is_constant() && !c.is_zero() {
+                return true;
+            }
+        }
+        if !matches!(f, Factor::Power(..)) && f.j_slots().iter().any(|l| negative_constant(l)) {
+            return true;
+        }
+        for [a, b, c] in f.triads() {
+            let ineq = [&(a + b) - c, &(a + c) - b, &(b + c) - a];
+            if ineq.iter().any(negative_constant) || never_integer(&(&(a + b) + c)) {
+                return true;
+            }
+        }
+        for (j, m) in f.columns() {
+            if negative_constant(&(j - m)) || negative_constant(&(j + m)) || never_integer(&(j - m)) {
+                return true;
+            }
+        }
+    }
+    // a symmetry that maps a symbol to itself with the phase -1
+    let lattice = PhaseLattice::of_term(t);
+    for f in t.factors.iter().filter(|f| f.is_symbol()) {
+        for img in classical_images(f) {
+            if img.factor == *f && lattice.constant_sign(&img.phase) == Some(true) {
+                return true;
+            }
+        }
+    }
+    false
+}
+
+/// The canonical form of one term (`None` when it is zero).
+pub fn canonical_term(t: &Term, regge: bool) -> Option<Term> {
+    if t.is_zero() || selection_zero(t) {
+        return None;
+    }
+    let mut out = t.clone();
+    let mut phase = out.phase.clone();
+    let mut factors = Vec::with_capacity(out.factors.len());
+    for f in &out.factors {
+        if f.is_symbol() {
+            let img = canonical(f, regge);
+            phase = &phase + &img.phase;
+            factors.push(img.factor);
+        } else {
+            factors.push(f.clone());
+        }
+    }
+    // idempotent factors appear once; triangle factors implied by a symbol go
+    factors.sort();
+    factors.dedup_by(|a, b| a == b && matches!(a, Factor::Tri(_) | Factor::Delta(..)));
+    let triads: Vec<BTreeSet<Lin>> = factors
+        .iter()
+        .filter(|f| f.is_symbol())
+        .flat_map(|f| {
+            f.triads()
+                .into_iter()
+                .map(|t| t.iter().map(|l| (*l).clone()).collect::<BTreeSet<Lin>>())
+                .collect::<Vec<_>>()
+        })
+        .collect();
+    factors.retain(|f| match f {
+        Factor::Tri(x) => {
+            let s: BTreeSet<Lin> = x.iter().cloned().collect();
+            !(s.len() == 3 && triads.contains(&s))
+        }
+        _ => true,
+    });
+    out.factors = factors;
+    out.phase = phase;
+    let lattice = PhaseLattice::of_term(&out);
+    out.phase = lattice.reduce(&out.phase);
+    let out = out.normalized();
+    if out.is_zero() {
+        None
+    } else {
+        Some(out)
+    }
+}
+
+/// Eliminates deltas that pin a summed variable: `sum(x: delta(x, y) F(x))`
+/// becomes `F(y)`. Returns the new term and whether anything changed.
+pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
+    let mut cur = t.clone();
+    let mut changed = false;
+    loop {
+        let mut did = false;
+        for (i, f) in cur.factors.iter().enumerate() {
+            let Factor::Delta(a, b) = f else { continue };
+            let d = a - b;
+            let pick = cur
+                .bound
+                .iter()
+                .find(|v| {
+                    let c = d.coeff(v);
+                    c == Q::from_integer(1) || c == Q::from_integer(-1)
+                })
+                .cloned();
+            if let Some(v) = pick {
+                // d = c v + rest = 0  =>  v = -rest / c
+                let c = d.coeff(&v);
+                let rest = d.substitute(&v, &Lin::zero());
+                let by = rest.scale(-c.recip());
+                let mut next = cur.clone();
+                next.factors.remove(i);
+                next.bound.retain(|x| *x != v);
+                next = next.substitute(&v, &by);
+                cur = next;
+                did = true;
+                changed = true;
+                break;
+            }
+        }
+        if !did {
+            break;
+        }
+    }
+    (cur, changed)
+}
+
+/// True when two terms are equal up to renaming their bound variables
+/// (tried for up to 5 bound variables) and their coefficients.
+pub fn same_shape_alpha(a: &Term, b: &Term) -> bool {
+    if a.same_shape(b) {
+        return true;
+    }
+    if a.bound.len() != b.bound.len()
+        || a.bound.is_empty()
+        || a.bound.len() > 5
+        || a.factors.len() != b.factors.len()
+        || a.root != b.root
+    {
+        return false;
+    }
+    let n = a.bound.len();
+    let mut perm: Vec<usize> = (0..n).collect();
+    loop {
+        let map: BTreeMap<Name, Name> = (0..n)
+            .map(|i| (b.bound[perm[i]].clone(), a.bound[i].clone()))
+            .collect();
+        // rename b's bound vars through fresh names to avoid collisions
+        let renamed = rename_bound(b, &map);
+        if renamed.same_shape(a) {
+            return true;
+        }
+        if !next_perm(&mut perm) {
+            return false;
+        }
+    }
+}
+
+fn rename_bound(t: &Term, map: &BTreeMap<Name, Name>) -> Term {
+    // two-step renaming through names no input can contain
+    let tmp: BTreeMap<Name, Name> = map
+        .keys()
+        .map(|k| (k.clone(), Name::new(format!("\u{1}{k}"))))
+        .collect();
+    let back: BTreeMap<Name, Name> = map
+        .iter()
+        .map(|(k, v)| (Name::new(format!("\u{1}{k}")), v.clone()))
+        .collect();
+    t.rename(&tmp).rename(&back)
+}
+
+fn next_perm(p: &mut [usize]) -> bool {
+    let n = p.len();
+    if n < 2 {
+        return false;
+    }
+    let mut i = n - 1;
+    while i > 0 && p[i - 1] >= p[i] {
+        i -= 1;
+    }
+    if i == 0 {
+        return false;
+    }
+    let mut j = n - 1;
+    while p[j] <= p[i - 1] {
+        j -= 1;
+    }
+    p.swap(i - 1, j);
+    p[i..].reverse();
+    true
+}
+
+/// Adds a term to an expression, merging it into an alpha-equivalent term.
+pub fn push_merging(e: &mut Expr, t: Term) {
+    if let Some(pos) = e
+        .terms
+        .iter()
+        .position(|u| !u.same_shape(&t) && same_shape_alpha(u, &t))
+    {
+        let renamed = {
+            // bring t's bound names to u's
+            let u = &e.terms[pos];
+            let mut found = None;
+            let n = u.bound.len();
+            let mut perm: Vec<usize> = (0..n).collect();
+            loop {
+                let map: BTreeMap<Name, Name> = (0..n)
+                    .map(|i| (t.bound[perm[i]].clone(), u.bound[i].clone()))
+                    .collect();
+                let r = rename_bound(&t, &map);
+                if r.same_shape(u) {
+                    found = Some(r);
+                    break;
+                }
+                if !next_perm(&mut perm) {
+                    break;
+                }
+            }
+            found.unwrap_or(t)
+        };
+        e.push(renamed);
+    } else {
+        e.push(t);
+    }
+}
+
+/// The canonical form of an expression: every term canonical, deltas on
+/// summed variables eliminated, like terms merged.
+pub fn canonical_expr(e: &Expr, regge: bool) -> Expr {
+    let mut out = Expr::zero();
+    for t in &e.terms {
+        let (t, _) = eliminate_deltas(t);
+        if let Some(c) = canonical_term(&t, regge) {
+            push_merging(&mut out, c);
+        }
+    }
+    out
+}

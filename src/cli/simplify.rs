@@ -1,0 +1,99 @@
+//! `recoup simplify EXPR`: the simplified expression, verified, with the
+//! trace of steps on request.
+
+use super::{parse_expr, read_arg, Failure};
+use clap::Args;
+use recoup::render::latex;
+use recoup::simplify::{simplify, Options};
+
+#[derive(Args, Debug)]
+pub struct SimplifyArgs {
+    /// the expression (`-` reads standard input)
+    expr: String,
+    /// print every step with its rule, source and the expression after it
+    #[arg(long)]
+    steps: bool,
+    /// print LaTeX (with --steps: the derivation as an align* chain)
+    #[arg(long)]
+    latex: bool,
+    /// print JSON {"input", "result", "latex", "steps", "verified"}
+    #[arg(long)]
+    json: bool,
+    /// let canonical forms use Regge's symmetries
+    #[arg(long)]
+    regge: bool,
+    /// points for the final verification
+    #[arg(long, value_name = "N", default_value_t = 40)]
+    samples: usize,
+    /// largest value of free variables at the verification points
+    #[arg(long, value_name = "J", default_value = "5/2")]
+    max_j: String,
+}
+
+pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
+    let e = parse_expr(&read_arg(&a.expr)?)?;
+    let mut opts = Options {
+        regge: a.regge,
+        ..Options::default()
+    };
+    opts.final_spot = super::check::settings(&a.max_j, a.samples, false, opts.final_spot.seed)?;
+    let out = simplify(&e, &opts).map_err(|e| Failure::input(e.to_string()))?;
+    if a.json {
+        let steps: Vec<serde_json::Value> = out
+            .steps
+            .iter()
+            .map(|s| {
+                serde_json::json!({
+                    "rule": s.rule, "source": s.source,
+                    "before": s.before.to_string(), "after": s.after.to_string(),
+                    "checked": s.checked, "nonzero": s.nonzero,
+                })
+            })
+            .collect();
+        println!(
+            "{}",
+            serde_json::json!({
+                "input": out.input.to_string(),
+                "result": out.result.to_string(),
+                "latex": latex::expr(&out.result),
+                "steps": steps,
+                "verified": {"checked": out.checked, "nonzero": out.nonzero},
+            })
+        );
+        return Ok(());
+    }
+    if a.latex {
+        if a.steps {
+            println!("\\begin{{align*}}");
+            println!("  & {} \\\\", latex::expr(&out.input));
+            for (i, s) in out.steps.iter().enumerate() {
+                let end = if i + 1 == out.steps.len() { "" } else { " \\\\" };
+                println!("  &= {} && \\text{{{}}}{end}", latex::expr(&s.after), s.rule);
+            }
+            println!("\\end{{align*}}");
+        } else {
+            println!("{}", latex::expr(&out.result));
+        }
+        return Ok(());
+    }
+    if a.steps {
+        println!("input: {}", out.input);
+        for (i, s) in out.steps.iter().enumerate() {
+            println!(
+                "step {}: {} ({}) [verified at {} points, {} nonzero]",
+                i + 1,
+                s.rule,
+                s.source,
+                s.checked,
+                s.nonzero
+            );
+            println!("  = {}", s.after);
+        }
+        println!(
+            "result (verified against the input at {} points, {} nonzero):",
+            out.checked, out.nonzero
+        );
+    }
+    println!("{}", out.result);
+    Ok(())
+}

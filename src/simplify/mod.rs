@@ -1,0 +1,262 @@
+//! The simplification driver: normal form, special values, exact values of
+//! numeric symbols and (in later passes) the projection-sum and
+//! angular-momentum-sum rewrites, repeated until nothing applies. Every
+//! step is spot-evaluated against the expression before it and recorded
+//! with its rule name and source; a step that fails is an error naming the
+//! rule and the counterexample, never applied silently. The result is
+//! verified against the input as a whole.
+
+use crate::algebra::normal::canonical_expr;
+use crate::expr::{Expr, Factor, Term};
+use crate::numeric::eval::{EvalError, Evaluator};
+use crate::numeric::Surd;
+use crate::rules::apply::Prepared;
+use crate::rules::{catalog, Rule, RuleKind};
+use crate::verify::sample::Point;
+use crate::verify::spot::{compare, SpotSettings};
+use crate::expr::Q;
+
+/// One verified rewrite.
+#[derive(Clone, Debug)]
+pub struct Step {
+    /// the rule's name
+    pub rule: String,
+    /// where the rule is published
+    pub source: String,
+    /// the expression before
+    pub before: Expr,
+    /// the expression after
+    pub after: Expr,
+    /// points compared
+    pub checked: usize,
+    /// points where either side was nonzero
+    pub nonzero: usize,
+}
+
+/// The result of a simplification.
+#[derive(Clone, Debug)]
+pub struct Outcome {
+    /// the input
+    pub input: Expr,
+    /// the simplified expression
+    pub result: Expr,
+    /// every step, in order
+    pub steps: Vec<Step>,
+    /// points at which the result was compared with the input
+    pub checked: usize,
+    /// of those, points where either was nonzero
+    pub nonzero: usize,
+}
+
+/// Settings of a simplification.
+#[derive(Clone, Debug)]
+pub struct Options {
+    /// how each step is verified
+    pub step_spot: SpotSettings,
+    /// how the result is verified against the input
+    pub final_spot: SpotSettings,
+    /// let canonical forms use Regge's symmetries
+    pub regge: bool,
+    /// rules tried before the catalog's (for experiments and tests)
+    pub extra_rules: Vec<Rule>,
+    /// most steps before stopping
+    pub max_steps: usize,
+}
+
+impl Default for Options {
+    fn default() -> Self {
+        Options {
+            step_spot: SpotSettings {
+                max_j: Q::from_integer(2),
+                samples: 20,
+                exhaustive: false,
+                seed: 3,
+            },
+            final_spot: SpotSettings {
+                max_j: Q::new(5, 2),
+                samples: 40,
+                exhaustive: false,
+                seed: 5,
+            },
+            regge: false,
+            extra_rules: Vec::new(),
+            max_steps: 200,
+        }
+    }
+}
+
+/// Why a simplification stopped.
+#[derive(Debug, Clone, thiserror::Error)]
+pub enum SimplifyError {
+    /// A rewrite changed the value somewhere.
+    #[error("the rewrite by {rule} ({rule_source}) is wrong at {}: before {before}, after {after}", fmt_point(.at))]
+    Unverified {
+        /// the rule's name
+        rule: String,
+        /// its source
+        rule_source: String,
+        /// where it fails
+        at: Point,
+        /// value before
+        before: Surd,
+        /// value after
+        after: Surd,
+    },
+    /// The expression cannot be evaluated (so nothing can be verified).
+    #[error("{0}")]
+    Eval(#[from] EvalError),
+}
+
+/// `a = 1, b = 1/2`.
+pub fn fmt_point(p: &Point) -> String {
+    p.iter()
+        .map(|(k, v)| format!("{k} = {}", crate::expr::lin::fmt_q(v)))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+/// Verifies `after` against `before` and records the step.
+pub fn verified_step(
+    rule: &str,
+    source: &str,
+    before: &Expr,
+    after: &Expr,
+    s: &SpotSettings,
+) -> Result<Step, SimplifyError> {
+    let rep = compare(before, after, s)?;
+    if let Some(m) = rep.mismatches.first() {
+        return Err(SimplifyError::Unverified {
+            rule: rule.to_string(),
+            rule_source: source.to_string(),
+            at: m.at.clone(),
+            before: m.lhs.clone(),
+            after: m.rhs.clone(),
+        });
+    }
+    Ok(Step {
+        rule: rule.to_string(),
+        source: source.to_string(),
+        before: before.clone(),
+        after: after.clone(),
+        checked: rep.checked,
+        nonzero: rep.nonzero,
+    })
+}
+
+/// Source of the normal form.
+const NORMAL_FORM_SOURCE: &str =
+    "DESIGN.md (phases modulo integrality; canonical symbols); IDENTITIES.md Symmetries";
+
+/// Replaces every symbol whose arguments are all numbers by its value.
+fn exact_values(e: &Expr) -> Option<Expr> {
+    let ev = Evaluator::<Surd>::new();
+    let mut changed = false;
+    let mut out = Expr::zero();
+    for t in &e.terms {
+        let mut nt = t.clone();
+        let mut keep = Vec::new();
+        for f in &t.factors {
+            if f.is_symbol() && f.lins().iter().all(|l| l.is_constant()) {
+                let single = Expr::from_term(Term::factor(f.clone()));
+                match ev.eval(&single, &Default::default()) {
+                    Ok(v) if v.terms().count() <= 1 => {
+                        nt.scale(&v);
+                        changed = true;
+                        continue;
+                    }
+                    _ => keep.push(f.clone()),
+                }
+            } else {
+                keep.push(f.clone());
+            }
+        }
+        nt.factors = keep;
+        out.push(nt.normalized());
+    }
+    changed.then_some(out)
+}
+
+/// True when every summed variable still appears in a factor that bounds it.
+fn sums_stay_bounded(e: &Expr) -> bool {
+    e.terms.iter().all(|t| {
+        t.bound.iter().all(|v| {
+            t.factors.iter().any(|f| {
+                (f.is_symbol() || matches!(f, Factor::Tri(_) | Factor::Delta(..))) && f.has(v)
+            })
+        })
+    })
+}
+
+/// Simplifies an expression with the catalog's rules, verifying each step.
+pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
+    let mut steps = Vec::new();
+    let mut cur = input.clone();
+    let nf = canonical_expr(&cur, opts.regge);
+    if nf != cur {
+        steps.push(verified_step("normal-form", NORMAL_FORM_SOURCE, &cur, &nf, &opts.step_spot)?);
+        cur = nf;
+    }
+    let rules: Vec<&Rule> = opts
+        .extra_rules
+        .iter()
+        .chain(catalog().iter())
+        .filter(|r| r.kind == RuleKind::Special)
+        .collect();
+    let prepared: Vec<Prepared> = rules.iter().filter_map(|r| Prepared::new(r)).collect();
+    'outer: while steps.len() < opts.max_steps {
+        for p in &prepared {
+            for (i, t) in cur.terms.iter().enumerate() {
+                let Some(replacement) = p.rewrite(t, opts.regge) else {
+                    continue;
+                };
+                let mut next = Expr::zero();
+                for (k, u) in cur.terms.iter().enumerate() {
+                    if k == i {
+                        for r in &replacement.terms {
+                            next.push(r.clone());
+                        }
+                    } else {
+                        next.push(u.clone());
+                    }
+                }
+                if !sums_stay_bounded(&next) {
+                    continue;
+                }
+                let next = canonical_expr(&next, opts.regge);
+                steps.push(verified_step(&p.rule.name, &p.rule.source, &cur, &next, &opts.step_spot)?);
+                cur = next;
+                continue 'outer;
+            }
+        }
+        if let Some(next) = exact_values(&cur) {
+            let next = canonical_expr(&next, opts.regge);
+            steps.push(verified_step(
+                "exact-value",
+                "Racah single-sum formulas (Edmonds 3.7.3, 6.3.7, 6.4.3)",
+                &cur,
+                &next,
+                &opts.step_spot,
+            )?);
+            cur = next;
+            continue;
+        }
+        break;
+    }
+    let rep = compare(input, &cur, &opts.final_spot)?;
+    if let Some(m) = rep.mismatches.first() {
+        return Err(SimplifyError::Unverified {
+            rule: "the whole simplification".into(),
+            rule_source: "composition of the steps".into(),
+            at: m.at.clone(),
+            before: m.lhs.clone(),
+            after: m.rhs.clone(),
+        });
+    }
+    Ok(Outcome {
+        input: input.clone(),
+        result: cur,
+        steps,
+        checked: rep.checked,
+        nonzero: rep.nonzero,
+    })
+}
