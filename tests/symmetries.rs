@@ -10,7 +10,11 @@ use recoup::expr::{Expr, Term, Q};
 use recoup::syntax::parse;
 use recoup::verify::spot::{compare, SpotSettings};
 
-fn check_all(symbol: &str, images: fn(&recoup::expr::Factor) -> Vec<recoup::algebra::symmetry::Image>, expect: usize) {
+fn check_all(
+    symbol: &str,
+    images: fn(&recoup::expr::Factor) -> Vec<recoup::algebra::symmetry::Image>,
+    expect: usize,
+) {
     let e = parse(symbol).unwrap();
     let f = e.terms[0].factors[0].clone();
     let imgs = images(&f);

@@ -1,7 +1,8 @@
 //! Phases modulo integrality. In a term, `2v` is an integer for every
 //! variable, and so are `a+b+c` for every triad its symbols and triangle
-//! factors contain and `j-m` for every (j, m) column of a 3j or CG;
-//! projection conservation and deltas are 0 on the term's support. A phase
+//! factors contain, `j-m` for every (j, m) column of a 3j or CG, and the
+//! term's own phase exponent (a phase only means something where it is an
+//! integer); projection conservation and deltas are 0 on the support. A phase
 //! `(-1)^e` only depends on `e` modulo `L = 2·I + Z` (I the integer lattice
 //! of those, Z the zero forms). `PhaseLattice` holds an echelon basis of L
 //! (Hermite normal form over the integers) and reduces `e` to a canonical
@@ -26,6 +27,8 @@ pub struct PhaseLattice {
     rows: Vec<(usize, Vec<i128>)>,
     /// the integer lattice I itself, for integrality tests
     int_rows: Vec<(usize, Vec<i128>)>,
+    /// the generators of L, for choosing a readable representative
+    gens: Vec<Vec<i128>>,
 }
 
 /// Forms known to be integers in a term, and forms known to be zero.
@@ -97,10 +100,35 @@ fn echelon(mut rows: Vec<Vec<i128>>, ncols: usize) -> Vec<(usize, Vec<i128>)> {
     out
 }
 
+/// How hard a phase exponent is to read: more variables, larger
+/// coefficients, negative coefficients, a negative lead and a constant are
+/// worse, in that order; ties broken by the form itself.
+fn badness(l: &Lin) -> (usize, i64, usize, bool, bool, Lin) {
+    let c0 = l.constant_part();
+    let neg = l.terms().filter(|(_, c)| **c < Q::zero()).count() + usize::from(c0 < Q::zero());
+    let size: i64 = l
+        .terms()
+        .map(|(_, c)| c.numer().abs() * 1000 / c.denom())
+        .sum::<i64>()
+        + c0.numer().abs() * 1000 / c0.denom();
+    (
+        l.terms().count(),
+        size,
+        neg,
+        l.leading_negative(),
+        !l.constant_part().is_zero(),
+        l.clone(),
+    )
+}
+
 impl PhaseLattice {
     /// The lattice of a term (its free and bound variables alike).
     pub fn of_term(t: &Term) -> PhaseLattice {
-        let (ints, zeros) = integral_forms(t);
+        let (mut ints, zeros) = integral_forms(t);
+        // the phase exponent itself is an integer wherever it means anything
+        if !t.phase.is_zero() {
+            ints.push(t.phase.clone());
+        }
         let kinds = t.kinds();
         PhaseLattice::new(&kinds, &ints, &zeros)
     }
@@ -136,7 +164,8 @@ impl PhaseLattice {
                 let c = l.coeff(n) * k;
                 r[i] = (c * Q::from_integer(scale as i64)).to_integer() as i128;
             }
-            r[ncols - 1] = (l.constant_part() * k * Q::from_integer(scale as i64)).to_integer() as i128;
+            r[ncols - 1] =
+                (l.constant_part() * k * Q::from_integer(scale as i64)).to_integer() as i128;
             r
         };
         let mut int_gens: Vec<Vec<i128>> = Vec::new();
@@ -162,8 +191,9 @@ impl PhaseLattice {
             columns: names,
             kinds: kinds_v,
             scale,
-            rows: echelon(red_gens, ncols),
+            rows: echelon(red_gens.clone(), ncols),
             int_rows: echelon(int_all, ncols),
+            gens: red_gens,
         }
     }
 
@@ -233,8 +263,57 @@ impl PhaseLattice {
     /// The canonical representative of a phase exponent (`e` itself when it
     /// mentions a variable outside the lattice or a finer fraction).
     pub fn reduce(&self, e: &Lin) -> Lin {
-        self.reduce_with(&self.rows, e, true)
-            .unwrap_or_else(|| e.clone())
+        let Some(a) = self.reduce_with(&self.rows, e, true) else {
+            return e.clone();
+        };
+        // an integer exponent may change sign: of the representatives of e
+        // and -e, take the one with fewer negative coefficients (then the
+        // smaller); the choice depends only on the pair, so stays canonical
+        if !self.is_integer(e) {
+            return a;
+        }
+        let b = self
+            .reduce_with(&self.rows, &-e, true)
+            .unwrap_or_else(|| a.clone());
+        let start = if badness(&b) < badness(&a) { b } else { a };
+        self.tidy(start)
+    }
+
+    /// A deterministic walk from a canonical representative to a more
+    /// readable one in the same class (adding or subtracting generators,
+    /// or changing the sign, while that lowers `badness`). A function of
+    /// the canonical representative, hence canonical itself.
+    fn tidy(&self, start: Lin) -> Lin {
+        let Some(mut v) = self.vector(&start) else {
+            return start;
+        };
+        let mut best = badness(&self.lin(&v));
+        for _ in 0..32 {
+            let mut improved = false;
+            for g in &self.gens {
+                for sign in [1i128, -1] {
+                    let cand: Vec<i128> = v.iter().zip(g).map(|(x, y)| x + sign * y).collect();
+                    let l = self.lin(&cand);
+                    let b = badness(&l);
+                    if b < best {
+                        best = b;
+                        v = cand;
+                        improved = true;
+                    }
+                }
+            }
+            let neg: Vec<i128> = v.iter().map(|x| -x).collect();
+            let b = badness(&self.lin(&neg));
+            if b < best {
+                best = b;
+                v = neg;
+                improved = true;
+            }
+            if !improved {
+                break;
+            }
+        }
+        self.lin(&v)
     }
 
     /// True when `e` is known to be an integer on the term's support.

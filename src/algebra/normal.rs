@@ -45,7 +45,8 @@ pub fn selection_zero(t: &Term) -> bool {
             }
         }
         for (j, m) in f.columns() {
-            if negative_constant(&(j - m)) || negative_constant(&(j + m)) || never_integer(&(j - m)) {
+            if negative_constant(&(j - m)) || negative_constant(&(j + m)) || never_integer(&(j - m))
+            {
                 return true;
             }
         }

@@ -98,7 +98,11 @@ pub fn classical_images(f: &Factor) -> Vec<Image> {
                         a[4].clone(),
                         neg(&a[5]),
                     ];
-                    let phase = if swap != flip { cost.clone() } else { Lin::zero() };
+                    let phase = if swap != flip {
+                        cost.clone()
+                    } else {
+                        Lin::zero()
+                    };
                     out.push(Image {
                         factor: Factor::Cg(args),
                         phase,
@@ -111,8 +115,16 @@ pub fn classical_images(f: &Factor) -> Vec<Image> {
             let mut out = Vec::with_capacity(24);
             for p in PERMS3.iter() {
                 // columns (upper, lower)
-                let cols: Vec<(Lin, Lin)> = p.iter().map(|&k| (a[k].clone(), a[3 + k].clone())).collect();
-                for swap in [[false, false, false], [true, true, false], [true, false, true], [false, true, true]] {
+                let cols: Vec<(Lin, Lin)> = p
+                    .iter()
+                    .map(|&k| (a[k].clone(), a[3 + k].clone()))
+                    .collect();
+                for swap in [
+                    [false, false, false],
+                    [true, true, false],
+                    [true, false, true],
+                    [false, true, true],
+                ] {
                     let mut args: Vec<Lin> = vec![Lin::zero(); 6];
                     for k in 0..3 {
                         let (u, l) = &cols[k];
@@ -141,11 +153,19 @@ pub fn classical_images(f: &Factor) -> Vec<Image> {
                         let mut args: Vec<Lin> = Vec::with_capacity(9);
                         for i in 0..3 {
                             for k in 0..3 {
-                                let (row, col) = if transpose { (c[k], r[i]) } else { (r[i], c[k]) };
+                                let (row, col) = if transpose {
+                                    (c[k], r[i])
+                                } else {
+                                    (r[i], c[k])
+                                };
                                 args.push(a[3 * row + col].clone());
                             }
                         }
-                        let phase = if odd3(ri) != odd3(ci) { s.clone() } else { Lin::zero() };
+                        let phase = if odd3(ri) != odd3(ci) {
+                            s.clone()
+                        } else {
+                            Lin::zero()
+                        };
                         out.push(Image {
                             factor: Factor::NineJ(args.try_into().unwrap()),
                             phase,
@@ -203,11 +223,19 @@ pub fn regge_images(f: &Factor) -> Vec<Image> {
                         let mut s: [[Lin; 3]; 3] = Default::default();
                         for i in 0..3 {
                             for k in 0..3 {
-                                let (row, col) = if transpose { (c[k], r[i]) } else { (r[i], c[k]) };
+                                let (row, col) = if transpose {
+                                    (c[k], r[i])
+                                } else {
+                                    (r[i], c[k])
+                                };
                                 s[i][k] = sq[row][col].clone();
                             }
                         }
-                        let phase = if odd3(ri) != odd3(ci) { jsum.clone() } else { Lin::zero() };
+                        let phase = if odd3(ri) != odd3(ci) {
+                            jsum.clone()
+                        } else {
+                            Lin::zero()
+                        };
                         out.push(Image {
                             factor: Factor::ThreeJ(from_square(&s)),
                             phase,

@@ -31,12 +31,23 @@ pub struct CheckArgs {
 }
 
 /// The settings the spot-evaluation options describe.
-pub fn settings(max_j: &str, samples: usize, exhaustive: bool, seed: u64) -> Result<SpotSettings, Failure> {
+pub fn settings(
+    max_j: &str,
+    samples: usize,
+    exhaustive: bool,
+    seed: u64,
+) -> Result<SpotSettings, Failure> {
     let q = super::eval::parse_q(max_j)
         .filter(|q| (*q * Q::from_integer(2)).is_integer() && *q > Q::from_integer(0))
-        .ok_or_else(|| Failure::input(format!("--max-j must be a positive multiple of 1/2; got '{max_j}'")))?;
+        .ok_or_else(|| {
+            Failure::input(format!(
+                "--max-j must be a positive multiple of 1/2; got '{max_j}'"
+            ))
+        })?;
     if q > Q::from_integer(20) {
-        return Err(Failure::input("--max-j above 20 makes exact checks very slow; use at most 20"));
+        return Err(Failure::input(
+            "--max-j above 20 makes exact checks very slow; use at most 20",
+        ));
     }
     if samples == 0 || samples > 100_000 {
         return Err(Failure::input("--samples must be between 1 and 100000"));
@@ -52,7 +63,12 @@ pub fn settings(max_j: &str, samples: usize, exhaustive: bool, seed: u64) -> Res
 fn point_json(p: &recoup::verify::sample::Point) -> serde_json::Value {
     let m: serde_json::Map<String, serde_json::Value> = p
         .iter()
-        .map(|(k, v)| (k.to_string(), serde_json::Value::String(recoup::expr::lin::fmt_q(v))))
+        .map(|(k, v)| {
+            (
+                k.to_string(),
+                serde_json::Value::String(recoup::expr::lin::fmt_q(v)),
+            )
+        })
         .collect();
     serde_json::Value::Object(m)
 }
@@ -79,7 +95,12 @@ pub fn run(a: CheckArgs) -> Result<i32, Failure> {
     };
     if a.json {
         let (cx, diag, repaired) = match &r.verdict {
-            Verdict::Different { at, lhs, rhs, diagnosis } => (
+            Verdict::Different {
+                at,
+                lhs,
+                rhs,
+                diagnosis,
+            } => (
                 serde_json::json!({"at": point_json(at), "lhs": lhs.to_string(), "rhs": rhs.to_string()}),
                 diagnosis.as_ref().map(|d| d.text.clone()),
                 diagnosis.as_ref().map(|d| d.repaired.to_string()),
@@ -105,9 +126,17 @@ pub fn run(a: CheckArgs) -> Result<i32, Failure> {
         Verdict::NotEstablished => println!(
             "not established: both sides vanish at all {how}; try other values (--max-j, --seed)"
         ),
-        Verdict::Different { at, lhs, rhs, diagnosis } => {
+        Verdict::Different {
+            at,
+            lhs,
+            rhs,
+            diagnosis,
+        } => {
             println!("different (checked {how})");
-            println!("smallest counterexample: {}", recoup::simplify::fmt_point(at));
+            println!(
+                "smallest counterexample: {}",
+                recoup::simplify::fmt_point(at)
+            );
             println!("  left  = {lhs}");
             println!("  right = {rhs}");
             match diagnosis {

@@ -67,8 +67,16 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
             println!("\\begin{{align*}}");
             println!("  & {} \\\\", latex::expr(&out.input));
             for (i, s) in out.steps.iter().enumerate() {
-                let end = if i + 1 == out.steps.len() { "" } else { " \\\\" };
-                println!("  &= {} && \\text{{{}}}{end}", latex::expr(&s.after), s.rule);
+                let end = if i + 1 == out.steps.len() {
+                    ""
+                } else {
+                    " \\\\"
+                };
+                println!(
+                    "  &= {} && \\text{{{}}}{end}",
+                    latex::expr(&s.after),
+                    s.rule
+                );
             }
             println!("\\end{{align*}}");
         } else {

@@ -28,7 +28,11 @@ pub struct Prepared<'a> {
 impl<'a> Prepared<'a> {
     /// Prepares a single-symbol rule (`None` for other shapes).
     pub fn new(rule: &'a Rule) -> Option<Prepared<'a>> {
-        let map: BTreeMap<Name, Name> = rule.vars().iter().map(|v| (v.clone(), internal(v))).collect();
+        let map: BTreeMap<Name, Name> = rule
+            .vars()
+            .iter()
+            .map(|v| (v.clone(), internal(v)))
+            .collect();
         let lhs = rule.lhs.rename(&map);
         let t = &lhs.terms[0];
         if !t.bound.is_empty() || t.factors.len() != 1 || !t.factors[0].is_symbol() {
@@ -52,7 +56,11 @@ impl<'a> Prepared<'a> {
             if std::mem::discriminant(f) != std::mem::discriminant(&self.pattern) {
                 continue;
             }
-            let images = if regge { regge_images(f) } else { classical_images(f) };
+            let images = if regge {
+                regge_images(f)
+            } else {
+                classical_images(f)
+            };
             for img in images {
                 let pl = self.pattern.lins();
                 let tl = img.factor.lins();
@@ -68,7 +76,11 @@ impl<'a> Prepared<'a> {
                     rhs = rhs.substitute(v, by);
                 }
                 // divide by the pattern's own constant and phase
-                let inv = self.coef_term.scalar().recip().expect("nonzero pattern coefficient");
+                let inv = self
+                    .coef_term
+                    .scalar()
+                    .recip()
+                    .expect("nonzero pattern coefficient");
                 let mut scale = Term::one();
                 scale.set_scalar(&inv);
                 scale.phase = -&substitute_lin(&self.coef_term.phase, &s);

@@ -51,7 +51,13 @@ impl Rule {
     /// Builds and validates a rule: a kebab-case name, both sides parse,
     /// the left side is one term, and both sides have the same free
     /// variables (a variable on one side only is an error).
-    pub fn new(name: &str, kind: RuleKind, source: &str, lhs: &str, rhs: &str) -> Result<Rule, RuleError> {
+    pub fn new(
+        name: &str,
+        kind: RuleKind,
+        source: &str,
+        lhs: &str,
+        rhs: &str,
+    ) -> Result<Rule, RuleError> {
         let err = |m: String| RuleError {
             name: name.to_string(),
             message: m,
@@ -101,7 +107,11 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
     let mut out = Vec::new();
     let mut head: Option<(String, RuleKind, String)> = None;
     let mut lhs = String::new();
-    let flush = |head: &mut Option<(String, RuleKind, String)>, lhs: &mut String, rhs: &str, out: &mut Vec<Rule>| -> Result<(), RuleError> {
+    let flush = |head: &mut Option<(String, RuleKind, String)>,
+                 lhs: &mut String,
+                 rhs: &str,
+                 out: &mut Vec<Rule>|
+     -> Result<(), RuleError> {
         if let Some((n, k, s)) = head.take() {
             out.push(Rule::new(&n, k, &s, lhs.trim(), rhs.trim())?);
         }
@@ -145,7 +155,8 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
 pub fn catalog() -> &'static [Rule] {
     static C: OnceLock<Vec<Rule>> = OnceLock::new();
     C.get_or_init(|| {
-        parse_catalog(include_str!("catalog.txt")).unwrap_or_else(|e| panic!("the built-in catalog is invalid: {e}"))
+        parse_catalog(include_str!("catalog.txt"))
+            .unwrap_or_else(|e| panic!("the built-in catalog is invalid: {e}"))
     })
 }
 
@@ -155,11 +166,26 @@ mod tests {
 
     #[test]
     fn building_a_rule_validates_it() {
-        assert!(Rule::new("ok-rule", RuleKind::Special, "", "{a, b, c; d, e, 0}", "delta(a, e) delta(b, d) tri(a, b, c) c").is_ok());
-        let e = Rule::new("one-side", RuleKind::Special, "", "{a, b, c; d, e, 0}", "x").unwrap_err();
+        assert!(Rule::new(
+            "ok-rule",
+            RuleKind::Special,
+            "",
+            "{a, b, c; d, e, 0}",
+            "delta(a, e) delta(b, d) tri(a, b, c) c"
+        )
+        .is_ok());
+        let e =
+            Rule::new("one-side", RuleKind::Special, "", "{a, b, c; d, e, 0}", "x").unwrap_err();
         assert!(e.message.contains("one side only"), "{e}");
         assert!(Rule::new("Bad_Name", RuleKind::Special, "", "x", "x").is_err());
-        assert!(Rule::new("two-terms", RuleKind::Special, "", "x + {a, b, c; d, e, f}", "x").is_err());
+        assert!(Rule::new(
+            "two-terms",
+            RuleKind::Special,
+            "",
+            "x + {a, b, c; d, e, f}",
+            "x"
+        )
+        .is_err());
     }
 
     #[test]

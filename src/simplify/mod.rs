@@ -7,6 +7,7 @@
 //! verified against the input as a whole.
 
 use crate::algebra::normal::canonical_expr;
+use crate::expr::Q;
 use crate::expr::{Expr, Factor, Term};
 use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
@@ -14,7 +15,6 @@ use crate::rules::apply::Prepared;
 use crate::rules::{catalog, Rule, RuleKind};
 use crate::verify::sample::Point;
 use crate::verify::spot::{compare, SpotSettings};
-use crate::expr::Q;
 
 /// One verified rewrite.
 #[derive(Clone, Debug)]
@@ -193,7 +193,13 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
     let mut cur = input.clone();
     let nf = canonical_expr(&cur, opts.regge);
     if nf != cur {
-        steps.push(verified_step("normal-form", NORMAL_FORM_SOURCE, &cur, &nf, &opts.step_spot)?);
+        steps.push(verified_step(
+            "normal-form",
+            NORMAL_FORM_SOURCE,
+            &cur,
+            &nf,
+            &opts.step_spot,
+        )?);
         cur = nf;
     }
     let rules: Vec<&Rule> = opts
@@ -223,7 +229,13 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
                     continue;
                 }
                 let next = canonical_expr(&next, opts.regge);
-                steps.push(verified_step(&p.rule.name, &p.rule.source, &cur, &next, &opts.step_spot)?);
+                steps.push(verified_step(
+                    &p.rule.name,
+                    &p.rule.source,
+                    &cur,
+                    &next,
+                    &opts.step_spot,
+                )?);
                 cur = next;
                 continue 'outer;
             }

@@ -106,9 +106,16 @@ fn fit_phase(vars: &[Name], pts: &[(Point, bool)]) -> Option<Lin> {
     let n = vars.len();
     let t: Vec<Vec<i64>> = pts
         .iter()
-        .map(|(p, _)| vars.iter().map(|v| (p[v] * Q::from_integer(2)).to_integer()).collect())
+        .map(|(p, _)| {
+            vars.iter()
+                .map(|v| (p[v] * Q::from_integer(2)).to_integer())
+                .collect()
+        })
         .collect();
-    let parity: Vec<Vec<u8>> = t.iter().map(|r| r.iter().map(|x| x.rem_euclid(2) as u8).collect()).collect();
+    let parity: Vec<Vec<u8>> = t
+        .iter()
+        .map(|r| r.iter().map(|x| x.rem_euclid(2) as u8).collect())
+        .collect();
     let basis = nullspace_gf2(&parity, n);
     if basis.len() > 12 {
         return None;
@@ -172,7 +179,10 @@ fn fit_factor(vars: &[Name], pts: &[(Point, BigRational)]) -> Option<(BigRationa
     let xs: Vec<Vec<f64>> = pts
         .iter()
         .map(|(p, _)| {
-            let mut row: Vec<f64> = vars.iter().map(|v| (2.0 * p[v].to_f64().unwrap() + 1.0).ln()).collect();
+            let mut row: Vec<f64> = vars
+                .iter()
+                .map(|v| (2.0 * p[v].to_f64().unwrap() + 1.0).ln())
+                .collect();
             row.push(1.0);
             row
         })
@@ -259,7 +269,12 @@ fn confirm(lhs: &Expr, repaired: &Expr, s: &SpotSettings) -> Option<SpotReport> 
 }
 
 /// Diagnoses a failed comparison (`report` holds every point's values).
-pub fn diagnose(lhs: &Expr, rhs: &Expr, report: &SpotReport, s: &SpotSettings) -> Option<Diagnosis> {
+pub fn diagnose(
+    lhs: &Expr,
+    rhs: &Expr,
+    report: &SpotReport,
+    s: &SpotSettings,
+) -> Option<Diagnosis> {
     let mut kinds: BTreeMap<Name, Kind> = lhs.kinds();
     for (v, k) in rhs.kinds() {
         let e = kinds.entry(v).or_insert(k);
@@ -308,7 +323,9 @@ pub fn diagnose(lhs: &Expr, rhs: &Expr, report: &SpotReport, s: &SpotSettings) -
                 t.phase = ph.clone();
                 for (i, v) in jvars.iter().enumerate() {
                     if e[i] != 0 {
-                        let base = Lin::var(v.clone()).scale(Q::from_integer(2)).add_scaled(&Lin::int(1), Q::one());
+                        let base = Lin::var(v.clone())
+                            .scale(Q::from_integer(2))
+                            .add_scaled(&Lin::int(1), Q::one());
                         t.factors.push(Factor::Power(base, Q::new(e[i], 2)));
                     }
                 }
@@ -387,7 +404,6 @@ fn describe(t: &Term) -> String {
         s
     }
 }
-
 
 #[cfg(test)]
 mod tests {

@@ -1,0 +1,141 @@
+//! The first simplifier: normal form, special values, exact values, each
+//! step verified; symmetric spellings of a symbol give one printed result;
+//! a deliberately wrong rule is caught by the verification, never applied.
+
+use recoup::algebra::symmetry::classical_images;
+use recoup::expr::{Expr, Term};
+use recoup::rules::{Rule, RuleKind};
+use recoup::simplify::{simplify, Options, SimplifyError};
+use recoup::syntax::parse;
+
+fn simp(s: &str) -> String {
+    simplify(&parse(s).unwrap(), &Options::default())
+        .unwrap_or_else(|e| panic!("{s}: {e}"))
+        .result
+        .to_string()
+}
+
+/// Every image of the symbol, with its phase, as a spelling of the same value.
+fn spellings(symbol: &str) -> Vec<String> {
+    let e = parse(symbol).unwrap();
+    let f = e.terms[0].factors[0].clone();
+    classical_images(&f)
+        .into_iter()
+        .map(|img| {
+            let mut t = Term::factor(img.factor);
+            t.phase = img.phase;
+            Expr::from_term(t.normalized()).to_string()
+        })
+        .collect()
+}
+
+#[test]
+fn symmetric_spellings_simplify_to_one_canonical_form() {
+    let symbols = [
+        "(j1, j2, j3; m1, m2, -m1-m2)",
+        "<ja, ma; jb, mb | J, ma+mb>",
+        "{a, b, c; d, e, f}",
+        "{l1, s1, j1; l2, s2, j2; L, S, J}",
+        "{a, b, x; c, d, 1/2}",
+    ];
+    let mut out = Vec::new();
+    for s in symbols {
+        let all = spellings(s);
+        let first = simp(&all[0]);
+        for sp in &all {
+            assert_eq!(simp(sp), first, "{sp} is a spelling of {s}");
+        }
+        out.push(format!("{s}  ({} spellings)  =>  {first}", all.len()));
+    }
+    insta::assert_snapshot!(out.join("\n"));
+}
+
+#[test]
+fn special_values_in_any_spelling() {
+    // 6j-zero (Edmonds 6.3.2) with the zero moved by symmetry
+    assert_eq!(simp("{0, b, d; c, e, a}"), simp("{a, b, c; d, e, 0}"));
+    let r = simp("{x, y, z; 0, z, y}");
+    assert!(!r.contains('{'), "{r}");
+    // 3j-zero (IDENTITIES.md) with the zero column first and m flipped
+    assert_eq!(simp("(0, j, j; 0, m, -m)"), simp("(j, j, 0; m, -m, 0)"));
+    assert_eq!(simp("(0, j, j; 0, -m, m)"), "(-1)^(j+m) / hat(j)");
+    assert_eq!(simp("(j, j, 0; m, -m, 0)"), "(-1)^(j-m) / hat(j)");
+    // 6j-half (Edmonds Table 5) renamed and permuted
+    let r = simp("{q-1/2, 1/2, q; p, r, p+1/2}");
+    assert!(!r.contains('{'), "{r}");
+    // a numeric symbol is evaluated: {1 1 1; 1 1 1} = 1/6 (SymPy fixture)
+    assert_eq!(simp("{1, 1, 1; 1, 1, 1} hat(j)"), "hat(j) / 6");
+    // 9j-zero (Edmonds 6.4.14) leaves a 6j
+    let r = simp("{a, b, c; d, e, c; g, g, 0}");
+    assert!(r.contains('{') && !r.contains("; g, g"), "{r}");
+}
+
+#[test]
+fn phases_and_selection_rules_in_the_normal_form() {
+    // DESIGN.md "Phases" (common practice, no source)
+    assert_eq!(simp("(-1)^(4*j) {j, a, b; c, d, e}"), "{a, b, j; d, e, c}");
+    assert_eq!(
+        simp("(-1)^(2*(a+b+c)) {a, b, c; d, e, f}"),
+        "{a, b, c; d, e, f}"
+    );
+    assert_eq!(
+        simp("(-1)^(2*m) (j, j, 1; m, -m, 0)"),
+        simp("(-1)^(2*j) (j, j, 1; m, -m, 0)")
+    );
+    assert_eq!(
+        simp("(-1)^(-a-b-c) {a, b, c; d, e, f}"),
+        "(-1)^(a+b+c) {a, b, c; d, e, f}"
+    );
+    // selection rules: zero for every assignment
+    assert_eq!(simp("(a, a, 1; 0, 0, 0)"), "0");
+    assert_eq!(simp("(a, b, c; 1, 0, 0)"), "0");
+    assert_eq!(simp("{a, b, c; d, e, f} tri(a, a+2, 1)"), "0");
+    assert_eq!(simp("(a, a, 1/2; m, -m, 0)"), "0");
+    // like terms merge; a sum that cancels prints 0
+    assert_eq!(simp("{a, b, c; d, e, f} - {b, a, c; e, d, f}"), "0");
+    assert_eq!(
+        simp("sum(x: (2*x+1) {a, b, x; c, d, e}) - sum(y: (2*y+1) {b, a, y; d, c, e})"),
+        "0"
+    );
+    // deltas on summed variables are eliminated
+    assert_eq!(
+        simp("sum(x: delta(x, p) (2*x+1) {a, b, x; c, d, e})"),
+        "(2*p+1) {a, b, p; c, d, e}"
+    );
+}
+
+#[test]
+fn a_deliberately_wrong_rule_is_caught_and_named() {
+    let wrong = Rule::new(
+        "wrong-6j-zero",
+        RuleKind::Special,
+        "a test's invention",
+        "{a, b, c; d, e, 0}",
+        "delta(a, e) delta(b, d) tri(a, b, c) / (hat(a) hat(b))",
+    )
+    .unwrap();
+    let opts = Options {
+        extra_rules: vec![wrong],
+        ..Options::default()
+    };
+    let err = simplify(&parse("{a, b, c; d, e, 0}").unwrap(), &opts).unwrap_err();
+    match err {
+        SimplifyError::Unverified { rule, .. } => assert_eq!(rule, "wrong-6j-zero"),
+        other => panic!("unexpected {other}"),
+    }
+}
+
+#[test]
+fn every_step_is_recorded_with_its_source_and_verification() {
+    let out = simplify(
+        &parse("{a, b, c; d, e, 0} + (-1)^(4*j) (j, j, 0; m, -m, 0) {b, a, c; e, d, f}").unwrap(),
+        &Options::default(),
+    )
+    .unwrap();
+    let names: Vec<&str> = out.steps.iter().map(|s| s.rule.as_str()).collect();
+    assert_eq!(names, ["normal-form", "3j-zero", "6j-zero"]);
+    for s in &out.steps {
+        assert!(!s.source.is_empty() && s.checked > 0, "{}", s.rule);
+    }
+    assert!(out.nonzero > 0);
+}
