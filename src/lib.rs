@@ -15,6 +15,8 @@
 //! assert_eq!(eval_exact(&e, &at).unwrap().to_string(), "-1");
 //! ```
 #![warn(missing_docs)]
+// Index loops read more clearly than iterator chains in the matrix code.
+#![allow(clippy::needless_range_loop)]
 
 pub mod algebra;
 pub mod expr;

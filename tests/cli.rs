@@ -139,3 +139,76 @@ fn latex_of_the_standard_shapes() {
     );
     insta::assert_snapshot!("latex_shapes", out);
 }
+
+#[test]
+fn check_exit_codes_and_json() {
+    // 6j-sum-plain (IDENTITIES.md) as stated: exit 0
+    let (code, out, _) = run(
+        &[
+            "check",
+            "sum(x: (2*x+1) {a, b, x; a, b, c})",
+            "(-1)^(2*a+2*b)",
+        ],
+        None,
+    );
+    assert_eq!(code, 0, "{out}");
+    assert!(out.starts_with("equal at all"));
+    // without its phase: exit 1, counterexample and the repair
+    let (code, out, _) = run(
+        &["check", "sum(x: (2*x+1) {a, b, x; a, b, c})", "1", "--json"],
+        None,
+    );
+    assert_eq!(code, 1);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["equal"], false);
+    assert!(v["counterexample"]["at"]["a"].is_string());
+    assert_eq!(
+        v["diagnosis"],
+        "the left side is (-1)^(2*a+2*b) times the right side"
+    );
+    // nothing nonzero: not established, exit 1
+    let (code, out, _) = run(&["check", "(a, a, 1; 0, 0, 0)", "0"], None);
+    assert_eq!(code, 1);
+    assert!(out.starts_with("not established"), "{out}");
+    // bad input: exit 2
+    let (code, out, err) = run(&["check", "{a, b; c}", "1"], None);
+    assert_eq!(code, 2);
+    assert!(out.is_empty() && err.contains("line 1"));
+    let (code, _, err) = run(&["check", "a", "a", "--max-j", "1/3"], None);
+    assert_eq!(code, 2);
+    assert!(err.contains("--max-j"));
+}
+
+#[test]
+fn simplify_text_steps_and_json() {
+    let (code, out, _) = run(&["simplify", "(0, j, j; 0, m, -m)"], None);
+    assert_eq!(code, 0);
+    assert_eq!(out, "(-1)^(j-m) / hat(j)\n");
+    let (code, out, _) = run(&["simplify", "{a, b, c; d, e, 0}", "--json"], None);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(
+        v["result"],
+        "(-1)^(a+b+c) delta(a, e) delta(b, d) tri(a, b, c) / (hat(a) hat(b))"
+    );
+    let steps = v["steps"].as_array().unwrap();
+    assert_eq!(steps[0]["rule"], "6j-zero");
+    assert_eq!(steps[0]["source"], "Edmonds 6.3.2");
+    assert!(steps[0]["checked"].as_u64().unwrap() > 0);
+    assert!(v["verified"]["nonzero"].as_u64().unwrap() > 0);
+    let (_, out, _) = run(
+        &[
+            "simplify",
+            "{a, b, c; d, e, 0} + (j, j, 0; m, -m, 0)",
+            "--steps",
+        ],
+        None,
+    );
+    insta::assert_snapshot!("simplify_steps", out);
+    let (_, out, _) = run(
+        &["simplify", "{a, b, c; d, e, 0}", "--steps", "--latex"],
+        None,
+    );
+    assert!(out.starts_with("\\begin{align*}"));
+    assert!(out.contains("\\text{6j-zero}"));
+}

@@ -19,6 +19,40 @@ pub struct Constraints {
     pub integral: Vec<Lin>,
 }
 
+/// Constraints indexed by variable, for repeated range queries.
+#[derive(Clone, Debug, Default)]
+pub struct Indexed {
+    ge: BTreeMap<Name, Vec<Lin>>,
+    eq: BTreeMap<Name, Vec<Lin>>,
+    integral: BTreeMap<Name, Vec<Lin>>,
+}
+
+impl Indexed {
+    /// Indexes a constraint set.
+    pub fn new(c: &Constraints) -> Indexed {
+        let mut out = Indexed::default();
+        let add = |m: &mut BTreeMap<Name, Vec<Lin>>, ls: &[Lin]| {
+            for l in ls {
+                for v in l.vars() {
+                    m.entry(v.clone()).or_default().push(l.clone());
+                }
+            }
+        };
+        add(&mut out.ge, &c.ge);
+        add(&mut out.eq, &c.eq);
+        add(&mut out.integral, &c.integral);
+        out
+    }
+
+    /// The constraints that mention `v`.
+    pub fn of(&self, v: &Name) -> (&[Lin], &[Lin], &[Lin]) {
+        fn get<'a>(m: &'a BTreeMap<Name, Vec<Lin>>, v: &Name) -> &'a [Lin] {
+            m.get(v).map(|x| x.as_slice()).unwrap_or(&[])
+        }
+        (get(&self.ge, v), get(&self.eq, v), get(&self.integral, v))
+    }
+}
+
 impl Constraints {
     /// The constraints the given factors impose for a nonzero value.
     pub fn of<'a>(factors: impl IntoIterator<Item = &'a Factor>) -> Constraints {
@@ -167,8 +201,32 @@ pub fn range_of(
     extra_lo: Option<Q>,
     extra_hi: Option<Q>,
 ) -> Range {
+    range_from(v, &c.ge, &c.eq, &c.integral, env, extra_lo, extra_hi)
+}
+
+/// `range_of` with an index (only the forms that mention `v` are read).
+pub fn range_indexed(
+    v: &Name,
+    c: &Indexed,
+    env: &BTreeMap<Name, Q>,
+    extra_lo: Option<Q>,
+    extra_hi: Option<Q>,
+) -> Range {
+    let (ge, eq, integral) = c.of(v);
+    range_from(v, ge, eq, integral, env, extra_lo, extra_hi)
+}
+
+fn range_from(
+    v: &Name,
+    ge: &[Lin],
+    eq: &[Lin],
+    integral: &[Lin],
+    env: &BTreeMap<Name, Q>,
+    extra_lo: Option<Q>,
+    extra_hi: Option<Q>,
+) -> Range {
     let mut fixed: Option<Q> = None;
-    for l in &c.eq {
+    for l in eq {
         if let Some((a, b)) = split(l, v, env) {
             let x = -b / a;
             match fixed {
@@ -180,7 +238,7 @@ pub fn range_of(
     }
     let mut lo = extra_lo;
     let mut hi = extra_hi;
-    for l in &c.ge {
+    for l in ge {
         if let Some((a, b)) = split(l, v, env) {
             let bound = -b / a;
             if a.is_positive() {
@@ -192,7 +250,7 @@ pub fn range_of(
     }
     // parity from an integrality form with unit coefficient
     let mut parity: Option<Q> = None;
-    for l in &c.integral {
+    for l in integral {
         if let Some((a, b)) = split(l, v, env) {
             if a.abs() == Q::one() {
                 let target = -b / a;

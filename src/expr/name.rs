@@ -43,41 +43,61 @@ impl From<&str> for Name {
     }
 }
 
-/// Splits into runs of digits and non-digits for natural comparison.
-fn chunks(s: &str) -> Vec<(bool, &str)> {
-    let mut out = Vec::new();
-    let mut start = 0;
-    let bytes = s.as_bytes();
-    for i in 1..=bytes.len() {
-        if i == bytes.len() || bytes[i].is_ascii_digit() != bytes[start].is_ascii_digit() {
-            out.push((bytes[start].is_ascii_digit(), &s[start..i]));
-            start = i;
+/// Natural comparison without allocation: runs of digits compare by
+/// value (then by length, so `j01` and `j1` differ), other bytes as bytes.
+fn natural_cmp(a: &[u8], b: &[u8]) -> Ordering {
+    let (mut i, mut k) = (0, 0);
+    while i < a.len() && k < b.len() {
+        let (x, y) = (a[i], b[k]);
+        if x.is_ascii_digit() && y.is_ascii_digit() {
+            let si = i;
+            let sk = k;
+            while i < a.len() && a[i].is_ascii_digit() {
+                i += 1;
+            }
+            while k < b.len() && b[k].is_ascii_digit() {
+                k += 1;
+            }
+            let da = trim_zeros(&a[si..i]);
+            let db = trim_zeros(&b[sk..k]);
+            let o = da
+                .len()
+                .cmp(&db.len())
+                .then_with(|| da.cmp(db))
+                .then_with(|| (i - si).cmp(&(k - sk)));
+            if o != Ordering::Equal {
+                return o;
+            }
+        } else if x.is_ascii_digit() != y.is_ascii_digit() {
+            // a digit run sorts after a letter at the same place
+            return if x.is_ascii_digit() {
+                Ordering::Greater
+            } else {
+                Ordering::Less
+            };
+        } else {
+            let o = x.cmp(&y);
+            if o != Ordering::Equal {
+                return o;
+            }
+            i += 1;
+            k += 1;
         }
     }
-    out
+    (a.len() - i).cmp(&(b.len() - k))
+}
+
+fn trim_zeros(d: &[u8]) -> &[u8] {
+    let z = d.iter().take_while(|c| **c == b'0').count();
+    &d[z..]
 }
 
 impl Ord for Name {
     fn cmp(&self, other: &Self) -> Ordering {
-        let a = chunks(&self.0);
-        let b = chunks(&other.0);
-        for (x, y) in a.iter().zip(&b) {
-            let o = match (x.0, y.0) {
-                (true, true) => {
-                    let xv = x.1.trim_start_matches('0');
-                    let yv = y.1.trim_start_matches('0');
-                    xv.len()
-                        .cmp(&yv.len())
-                        .then_with(|| xv.cmp(yv))
-                        .then_with(|| x.1.len().cmp(&y.1.len()))
-                }
-                _ => x.1.cmp(y.1),
-            };
-            if o != Ordering::Equal {
-                return o;
-            }
+        if self.0 == other.0 {
+            return Ordering::Equal;
         }
-        a.len().cmp(&b.len())
+        natural_cmp(self.0.as_bytes(), other.0.as_bytes())
     }
 }
 

@@ -7,7 +7,7 @@
 
 use super::exact::{projection_ok2, triangle2};
 use super::{exact, float, Surd};
-use crate::algebra::selection::{range_of, Constraints, Range};
+use crate::algebra::selection::{range_indexed, Constraints, Indexed, Range};
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
 use num_traits::{Signed, Zero};
@@ -174,6 +174,8 @@ impl Field for f64 {
 pub struct Evaluator<F: Field> {
     cache: RefCell<HashMap<(SymbolKind, [i64; 9]), F>>,
     points: RefCell<u64>,
+    /// summation constraints per term, keyed by the term's contents
+    ranges: RefCell<HashMap<Term, std::rc::Rc<Indexed>>>,
 }
 
 impl<F: Field> Default for Evaluator<F> {
@@ -181,6 +183,7 @@ impl<F: Field> Default for Evaluator<F> {
         Evaluator {
             cache: RefCell::new(HashMap::new()),
             points: RefCell::new(0),
+            ranges: RefCell::new(HashMap::new()),
         }
     }
 }
@@ -270,13 +273,27 @@ impl<F: Field> Evaluator<F> {
         let mut env = at.clone();
         let mut todo: Vec<Name> = t.bound.clone();
         let scalar = F::from_surd(&t.scalar());
-        let v = self.sum_over(t, &mut env, &mut todo)?;
+        if todo.is_empty() {
+            let v = self.product(t, &env)?;
+            return Ok(scalar.mul(&v));
+        }
+        let cached = self.ranges.borrow().get(t).cloned();
+        let ix = match cached {
+            Some(ix) => ix,
+            None => {
+                let ix = std::rc::Rc::new(Indexed::new(&Constraints::of(&t.factors)));
+                self.ranges.borrow_mut().insert(t.clone(), ix.clone());
+                ix
+            }
+        };
+        let v = self.sum_over(t, &ix, &mut env, &mut todo)?;
         Ok(scalar.mul(&v))
     }
 
     fn sum_over(
         &self,
         t: &Term,
+        ix: &Indexed,
         env: &mut Assignment,
         todo: &mut Vec<Name>,
     ) -> Result<F, EvalError> {
@@ -290,12 +307,12 @@ impl<F: Field> Evaluator<F> {
             }
             return self.product(t, env);
         }
-        let (idx, range) = choose_next(t, env, todo)?;
+        let (idx, range) = choose_next(ix, env, todo)?;
         let v = todo.remove(idx);
         let mut acc = F::zero();
         for val in range {
             env.insert(v.clone(), val);
-            let r = self.sum_over(t, env, todo);
+            let r = self.sum_over(t, ix, env, todo);
             match r {
                 Ok(x) => acc = acc.add(&x),
                 Err(e) => {
@@ -421,11 +438,14 @@ impl<F: Field> Evaluator<F> {
 
 /// Picks the next summed variable to enumerate (a fixed one first, else
 /// the one with the fewest values) and its values.
-fn choose_next(t: &Term, env: &Assignment, todo: &[Name]) -> Result<(usize, Vec<Q>), EvalError> {
-    let c = Constraints::of(&t.factors);
+fn choose_next(
+    ix: &Indexed,
+    env: &Assignment,
+    todo: &[Name],
+) -> Result<(usize, Vec<Q>), EvalError> {
     let mut best: Option<(usize, u64, Range)> = None;
     for (i, v) in todo.iter().enumerate() {
-        let r = range_of(v, &c, env, None, None);
+        let r = range_indexed(v, ix, env, None, None);
         let Some(n) = r.count() else {
             continue;
         };

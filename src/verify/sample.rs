@@ -9,7 +9,7 @@
 //! enumeration uses the same ranges.
 
 use super::rng::Rng;
-use crate::algebra::selection::{range_of, Constraints, Range};
+use crate::algebra::selection::{range_indexed, Constraints, Indexed, Range};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Q};
 use num_traits::{Signed, Zero};
 use std::collections::{BTreeMap, BTreeSet};
@@ -24,6 +24,9 @@ pub struct Sampler {
     base: Constraints,
     per_term: Vec<Constraints>,
     all: Constraints,
+    base_ix: Indexed,
+    per_term_ix: Vec<Indexed>,
+    all_ix: Indexed,
 }
 
 fn retain_free(c: &mut Constraints, bound: &BTreeSet<Name>) {
@@ -116,10 +119,13 @@ impl Sampler {
             m.integral.extend(c.integral.iter().cloned());
             m
         };
-        let per_term = per_term.iter().map(merge).collect();
+        let per_term: Vec<Constraints> = per_term.iter().map(merge).collect();
         let all = merge(&all);
         Sampler {
             vars: kinds.into_iter().collect(),
+            base_ix: Indexed::new(&base),
+            per_term_ix: per_term.iter().map(Indexed::new).collect(),
+            all_ix: Indexed::new(&all),
             base,
             per_term,
             all,
@@ -139,10 +145,9 @@ impl Sampler {
         }
     }
 
-    fn range(&self, c: &Constraints, v: &Name, kind: Kind, env: &Point, max_j: Q) -> Range {
+    fn range(&self, c: &Indexed, v: &Name, kind: Kind, env: &Point, max_j: Q) -> Range {
         let (lo, hi) = Self::bounds(kind, max_j);
-        let r = range_of(v, c, env, lo, hi);
-        r
+        range_indexed(v, c, env, lo, hi)
     }
 
     /// True when the point satisfies every constraint of `c`.
@@ -159,7 +164,7 @@ impl Sampler {
     }
 
     /// One attempt at a random point under constraints `c`.
-    fn try_point(&self, c: &Constraints, rng: &mut Rng, max_j: Q) -> Option<Point> {
+    fn try_point(&self, c: &Constraints, ix: &Indexed, rng: &mut Rng, max_j: Q) -> Option<Point> {
         let mut env = Point::new();
         let mut left: Vec<usize> = (0..self.vars.len()).collect();
         while !left.is_empty() {
@@ -167,7 +172,7 @@ impl Sampler {
             let mut best: Option<(usize, u64, Range)> = None;
             for (pos, &i) in left.iter().enumerate() {
                 let (v, k) = &self.vars[i];
-                let r = self.range(c, v, *k, &env, max_j);
+                let r = self.range(ix, v, *k, &env, max_j);
                 let n = r.count().unwrap_or(u64::MAX);
                 if best.as_ref().is_none_or(|b| n < b.1) {
                     best = Some((pos, n, r));
@@ -193,18 +198,19 @@ impl Sampler {
     /// `tries` attempts.
     pub fn random(&self, rng: &mut Rng, max_j: Q, tries: usize) -> Option<Point> {
         for attempt in 0..tries {
-            let c = if attempt % 4 == 3 || self.per_term.is_empty() || rng.coin() {
-                &self.all
+            let (c, ix) = if attempt % 4 == 3 || self.per_term.is_empty() || rng.coin() {
+                (&self.all, &self.all_ix)
             } else {
-                &self.per_term[rng.below(self.per_term.len() as u64) as usize]
+                let k = rng.below(self.per_term.len() as u64) as usize;
+                (&self.per_term[k], &self.per_term_ix[k])
             };
-            if let Some(p) = self.try_point(c, rng, max_j) {
+            if let Some(p) = self.try_point(c, ix, rng, max_j) {
                 return Some(p);
             }
         }
         // only the preconditions
         for _ in 0..tries {
-            if let Some(p) = self.try_point(&self.base, rng, max_j) {
+            if let Some(p) = self.try_point(&self.base, &self.base_ix, rng, max_j) {
                 return Some(p);
             }
         }
@@ -216,13 +222,23 @@ impl Sampler {
     pub fn exhaustive(&self, max_j: Q, limit: usize) -> Vec<Point> {
         let mut out = Vec::new();
         let mut env = Point::new();
-        self.enumerate(&self.base, 0, &mut env, max_j, limit, &mut out);
+        self.enumerate(
+            &self.base,
+            &self.base_ix,
+            0,
+            &mut env,
+            max_j,
+            limit,
+            &mut out,
+        );
         out
     }
 
+    #[allow(clippy::too_many_arguments)]
     fn enumerate(
         &self,
         c: &Constraints,
+        ix: &Indexed,
         i: usize,
         env: &mut Point,
         max_j: Q,
@@ -239,7 +255,7 @@ impl Sampler {
             return;
         }
         let (v, k) = &self.vars[i];
-        let r = self.range(c, v, *k, env, max_j);
+        let r = self.range(ix, v, *k, env, max_j);
         let vals = match r.values() {
             Some(v) => v,
             None => {
@@ -255,7 +271,7 @@ impl Sampler {
         };
         for x in vals {
             env.insert(v.clone(), x);
-            self.enumerate(c, i + 1, env, max_j, limit, out);
+            self.enumerate(c, ix, i + 1, env, max_j, limit, out);
             env.remove(v);
             if out.len() >= limit {
                 return;
