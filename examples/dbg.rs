@@ -1,37 +1,21 @@
-use recoup::algebra::normal::canonical_expr;
-use recoup::rules::apply::Prepared;
+use recoup::rules::matcher::Pattern;
+use recoup::rules::rule;
 use recoup::syntax::parse;
+use recoup::verify::spot::{compare, SpotSettings};
 fn main() {
-    let e = parse(&std::env::args().nth(1).unwrap()).unwrap();
-    let nf = canonical_expr(&e, false);
-    println!("nf: {nf}");
-    for r in recoup::rules::catalog() {
-        let p = Prepared::new(r).unwrap();
-        for t in &nf.terms {
-            if let Some(x) = p.rewrite(t, false) {
-                println!("{}: {} => {}", r.name, recoup::syntax::print_term(t), x);
-                let mut next = recoup::expr::Expr::zero();
-                for u in &nf.terms {
-                    if u == t {
-                        for y in &x.terms {
-                            next.push(y.clone());
-                        }
-                    } else {
-                        next.push(u.clone());
-                    }
-                }
-                let next = canonical_expr(&next, false);
-                println!("  next {next}");
-                let s = recoup::simplify::Options::default().step_spot;
-                let pts = recoup::verify::spot::points(&[&nf, &next], &s);
-                for pt in &pts {
-                    let ev = recoup::numeric::eval::Evaluator::<recoup::numeric::Surd>::new();
-                    if let Err(err) = ev.eval(&next, pt) {
-                        println!("  {pt:?}: {err}");
-                        break;
-                    }
-                }
-            }
+    let args: Vec<String> = std::env::args().collect();
+    let p = Pattern::new(rule(&args[1])).unwrap();
+    let e = parse(&args[2]).unwrap();
+    let t = &e.terms[0];
+    let t0 = std::time::Instant::now();
+    match p.apply_first(t, &Default::default(), false) {
+        Some((m, out)) => {
+            println!("match in {:?}: {:?}\n=> {out}", t0.elapsed(), m.factors);
+            let s = SpotSettings { max_j: recoup::expr::Q::from_integer(2), samples: 20, exhaustive: false, seed: 4 };
+            let r = compare(&e, &out, &s).unwrap();
+            println!("agrees: {} ({} / {})", r.agrees(), r.nonzero, r.checked);
+            if let Some(mm) = r.mismatches.first() { println!("{mm:?}"); }
         }
+        None => println!("no match ({:?})", t0.elapsed()),
     }
 }

@@ -20,6 +20,7 @@
 
 pub mod algebra;
 pub mod expr;
+pub mod graph;
 pub mod numeric;
 pub mod render;
 pub mod rules;

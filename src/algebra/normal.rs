@@ -65,6 +65,11 @@ pub fn selection_zero(t: &Term) -> bool {
 
 /// The canonical form of one term (`None` when it is zero).
 pub fn canonical_term(t: &Term, regge: bool) -> Option<Term> {
+    canonical_term_assuming(t, regge, &[])
+}
+
+/// `canonical_term` with extra forms known to be integers.
+pub fn canonical_term_assuming(t: &Term, regge: bool, facts: &[Lin]) -> Option<Term> {
     if t.is_zero() || selection_zero(t) {
         return None;
     }
@@ -102,7 +107,13 @@ pub fn canonical_term(t: &Term, regge: bool) -> Option<Term> {
     });
     out.factors = factors;
     out.phase = phase;
-    let lattice = PhaseLattice::of_term(&out);
+    let vars = out.all_vars();
+    let relevant: Vec<Lin> = facts
+        .iter()
+        .filter(|l| l.vars().all(|v| vars.contains(v) && !out.bound.contains(v)))
+        .cloned()
+        .collect();
+    let lattice = PhaseLattice::of_term_with(&out, &relevant);
     out.phase = lattice.reduce(&out.phase);
     let out = out.normalized();
     if out.is_zero() {
@@ -150,6 +161,56 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
         }
     }
     (cur, changed)
+}
+
+/// Uses each delta between free variables to rewrite the rest of the term:
+/// `delta(J, J') f(J')` becomes `delta(J, J') f(J)` (the later name is
+/// replaced by the earlier), so equal quantities read equal.
+pub fn substitute_free_deltas(t: &Term) -> Term {
+    let mut cur = t.clone();
+    let mut done: Vec<Name> = Vec::new();
+    loop {
+        let mut changed = false;
+        for i in 0..cur.factors.len() {
+            let Factor::Delta(a, b) = &cur.factors[i] else { continue };
+            let d = a - b;
+            // the latest-named free variable with a unit coefficient
+            let v = d
+                .terms()
+                .filter(|(n, c)| {
+                    !cur.bound.contains(n)
+                        && !done.contains(n)
+                        && (**c == Q::from_integer(1) || **c == Q::from_integer(-1))
+                })
+                .map(|(n, _)| n.clone())
+                .max();
+            let Some(v) = v else { continue };
+            let uses = cur
+                .factors
+                .iter()
+                .enumerate()
+                .any(|(k, f)| k != i && f.has(&v))
+                || cur.phase.has(&v);
+            if !uses {
+                continue;
+            }
+            let c = d.coeff(&v);
+            let by = d.substitute(&v, &Lin::zero()).scale(-c.recip());
+            let delta = cur.factors[i].clone();
+            let mut next = cur.clone();
+            next.factors.remove(i);
+            next = next.substitute(&v, &by);
+            next.factors.push(delta);
+            cur = next.normalized();
+            // every variable of this delta is settled now (no ping-pong)
+            done.extend(d.vars().cloned());
+            changed = true;
+            break;
+        }
+        if !changed {
+            return cur;
+        }
+    }
 }
 
 /// True when two terms are equal up to renaming their bound variables
@@ -254,10 +315,39 @@ pub fn push_merging(e: &mut Expr, t: Term) {
 /// The canonical form of an expression: every term canonical, deltas on
 /// summed variables eliminated, like terms merged.
 pub fn canonical_expr(e: &Expr, regge: bool) -> Expr {
+    canonical_expr_assuming(e, regge, &[])
+}
+
+/// Forms known to be integers from the free projections of an expression:
+/// `j - m` for every column `(j, ±m)` with `m` a free variable, since free
+/// projections are assumed admissible.
+pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
+    let mut out: Vec<Lin> = Vec::new();
+    for t in &e.terms {
+        for f in &t.factors {
+            for (j, m) in f.columns() {
+                let Some((v, _)) = m.as_signed_var() else { continue };
+                if t.bound.contains(v) || j.vars().any(|x| t.bound.contains(x)) {
+                    continue;
+                }
+                let l = j - m;
+                if !out.contains(&l) {
+                    out.push(l);
+                }
+            }
+        }
+    }
+    out
+}
+
+/// The canonical form, with extra forms known to be integers (the
+/// admissibility of the input's free projections).
+pub fn canonical_expr_assuming(e: &Expr, regge: bool, facts: &[Lin]) -> Expr {
     let mut out = Expr::zero();
     for t in &e.terms {
         let (t, _) = eliminate_deltas(t);
-        if let Some(c) = canonical_term(&t, regge) {
+        let t = substitute_free_deltas(&t);
+        if let Some(c) = canonical_term_assuming(&t, regge, facts) {
             push_merging(&mut out, c);
         }
     }

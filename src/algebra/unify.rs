@@ -12,6 +12,18 @@ pub type Subst = BTreeMap<Name, Lin>;
 
 /// Solves `σ(p_i) = t_i` for the variables `vars` of the patterns.
 pub fn unify(patterns: &[&Lin], targets: &[&Lin], vars: &BTreeSet<Name>) -> Option<Subst> {
+    let (s, complete) = unify_partial(patterns, targets, vars)?;
+    complete.then_some(s)
+}
+
+/// Like `unify`, but a pattern variable may stay undetermined: returns
+/// the substitution of the determined ones and whether all were. `None`
+/// when the equations are inconsistent.
+pub fn unify_partial(
+    patterns: &[&Lin],
+    targets: &[&Lin],
+    vars: &BTreeSet<Name>,
+) -> Option<(Subst, bool)> {
     let vs: Vec<&Name> = vars.iter().collect();
     // rows: coefficients over vs, rhs = t - const(p) - (non-pattern part of p)
     let mut rows: Vec<(Vec<Q>, Lin)> = Vec::with_capacity(patterns.len());
@@ -26,9 +38,11 @@ pub fn unify(patterns: &[&Lin], targets: &[&Lin], vars: &BTreeSet<Name>) -> Opti
     let n = vs.len();
     let mut pivots: Vec<(usize, usize)> = Vec::new(); // (row, col)
     let mut r = 0;
+    let mut complete = true;
     for c in 0..n {
         let Some(pr) = (r..rows.len()).find(|&i| !rows[i].0[c].is_zero()) else {
-            return None; // a pattern variable left undetermined
+            complete = false; // this pattern variable stays undetermined
+            continue;
         };
         rows.swap(r, pr);
         let inv = Q::one() / rows[r].0[c];
@@ -59,9 +73,20 @@ pub fn unify(patterns: &[&Lin], targets: &[&Lin], vars: &BTreeSet<Name>) -> Opti
     }
     let mut out = Subst::new();
     for (row, col) in pivots {
+        // a pivot row that still involves an undetermined variable does not
+        // determine its own
+        let depends = rows[row]
+            .0
+            .iter()
+            .enumerate()
+            .any(|(k, x)| k != col && !x.is_zero());
+        if depends {
+            complete = false;
+            continue;
+        }
         out.insert(vs[col].clone(), rows[row].1.clone());
     }
-    Some(out)
+    Some((out, complete))
 }
 
 /// Applies a substitution to a linear form.

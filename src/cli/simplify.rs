@@ -58,6 +58,7 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
                 "latex": latex::expr(&out.result),
                 "steps": steps,
                 "verified": {"checked": out.checked, "nonzero": out.nonzero},
+                "notes": out.notes,
             })
         );
         return Ok(());
@@ -96,6 +97,9 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
                 s.nonzero
             );
             println!("  = {}", s.after);
+        }
+        for n in &out.notes {
+            println!("note: {n}");
         }
         println!(
             "result (verified against the input at {} points, {} nonzero):",

@@ -3,16 +3,20 @@
 //! triangle factors, symbols, and sums over projections and angular
 //! momenta with ranges inferred from the term (triangle rules, projection
 //! ranges, conservation and deltas). Checks user-given values for
-//! admissibility first.
+//! admissibility first. Terms are compiled once (variables by index,
+//! constraints by variable) and symbol values cached; exact products are
+//! kept in factored form so a sum of many products costs vector additions.
 
 use super::exact::{projection_ok2, triangle2};
+use super::factored::{Factored, FactoredSum};
 use super::{exact, float, Surd};
-use crate::algebra::selection::{range_indexed, Constraints, Indexed, Range};
+use crate::algebra::selection::Range;
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
-use num_traits::{Signed, Zero};
+use num_traits::{One, Signed, Zero};
 use std::cell::RefCell;
 use std::collections::{BTreeMap, HashMap};
+use std::rc::Rc;
 
 /// Values of variables.
 pub type Assignment = BTreeMap<Name, Q>;
@@ -69,28 +73,8 @@ pub enum EvalError {
     #[error("{0}")]
     Arithmetic(String),
     /// A sum with too many points.
-    #[error("the sum visits more than {MAX_POINTS} points; refusing to go on")]
+    #[error("the sums visit more points than the evaluation budget allows; refusing to go on")]
     TooLarge,
-}
-
-/// Which numbers an evaluation produces.
-pub trait Field: Clone {
-    /// 0
-    fn zero() -> Self;
-    /// 1
-    fn one() -> Self;
-    /// true for 0
-    fn is_zero(&self) -> bool;
-    /// product
-    fn mul(&self, o: &Self) -> Self;
-    /// sum
-    fn add(&self, o: &Self) -> Self;
-    /// negation
-    fn neg(&self) -> Self;
-    /// an exact monomial value
-    fn from_surd(s: &Surd) -> Self;
-    /// a symbol value (doubled arguments)
-    fn symbol(kind: SymbolKind, args: &[i64]) -> Self;
 }
 
 /// The four symbol kinds.
@@ -106,24 +90,71 @@ pub enum SymbolKind {
     NineJ,
 }
 
+/// Which numbers an evaluation produces, with a product type that is cheap
+/// to multiply and an accumulator that is cheap to add to.
+pub trait Field: Clone {
+    /// a product of factors
+    type Prod: Clone;
+    /// a running sum of products
+    type Acc;
+    /// 0
+    fn zero() -> Self;
+    /// true for 0
+    fn is_zero(&self) -> bool;
+    /// sum
+    fn add(&self, o: &Self) -> Self;
+    /// product
+    fn mul(&self, o: &Self) -> Self;
+    /// an exact monomial value
+    fn from_surd(s: &Surd) -> Self;
+    /// a symbol value (doubled arguments)
+    fn symbol(kind: SymbolKind, args: &[i64]) -> Self;
+    /// the empty product
+    fn prod_one() -> Self::Prod;
+    /// a nonzero value as a product factor
+    fn prod_of(v: &Self) -> Self::Prod;
+    /// multiply in place
+    fn prod_mul(p: &mut Self::Prod, o: &Self::Prod);
+    /// negate in place
+    fn prod_neg(p: &mut Self::Prod);
+    /// the empty sum
+    fn acc_new() -> Self::Acc;
+    /// add a product
+    fn acc_add(a: &mut Self::Acc, p: &Self::Prod);
+    /// the value of the sum
+    fn acc_finish(a: Self::Acc) -> Self;
+}
+
+/// An exact product: factored when every factor could be factored.
+#[derive(Clone, Debug)]
+pub enum SurdProd {
+    /// `±sqrt(Π p^e)`
+    Fast(Factored),
+    /// a general value
+    Slow(Surd),
+}
+
+/// An exact running sum.
+#[derive(Clone, Debug, Default)]
+pub struct SurdAcc {
+    fast: FactoredSum,
+    slow: Surd,
+}
+
 impl Field for Surd {
+    type Prod = SurdProd;
+    type Acc = SurdAcc;
     fn zero() -> Self {
         Surd::zero()
-    }
-    fn one() -> Self {
-        Surd::one()
     }
     fn is_zero(&self) -> bool {
         Surd::is_zero(self)
     }
-    fn mul(&self, o: &Self) -> Self {
-        self * o
-    }
     fn add(&self, o: &Self) -> Self {
         self + o
     }
-    fn neg(&self) -> Self {
-        -self
+    fn mul(&self, o: &Self) -> Self {
+        self * o
     }
     fn from_surd(s: &Surd) -> Self {
         s.clone()
@@ -136,26 +167,69 @@ impl Field for Surd {
             SymbolKind::NineJ => exact::nine_j(a.try_into().unwrap()),
         }
     }
+    fn prod_one() -> SurdProd {
+        SurdProd::Fast(Factored::one())
+    }
+    fn prod_of(v: &Self) -> SurdProd {
+        match Factored::of(v) {
+            Some(f) => SurdProd::Fast(f),
+            None => SurdProd::Slow(v.clone()),
+        }
+    }
+    fn prod_mul(p: &mut SurdProd, o: &SurdProd) {
+        match (&mut *p, o) {
+            (SurdProd::Fast(a), SurdProd::Fast(b)) => a.mul_assign(b),
+            _ => {
+                let x = to_surd(p) * to_surd(o);
+                *p = SurdProd::Slow(x);
+            }
+        }
+    }
+    fn prod_neg(p: &mut SurdProd) {
+        match p {
+            SurdProd::Fast(a) => a.neg = !a.neg,
+            SurdProd::Slow(s) => *s = -&*s,
+        }
+    }
+    fn acc_new() -> SurdAcc {
+        SurdAcc::default()
+    }
+    fn acc_add(a: &mut SurdAcc, p: &SurdProd) {
+        match p {
+            SurdProd::Fast(f) => a.fast.add(f),
+            SurdProd::Slow(s) => a.slow = &a.slow + s,
+        }
+    }
+    fn acc_finish(a: SurdAcc) -> Surd {
+        &a.fast.finish() + &a.slow
+    }
+}
+
+fn to_surd(p: &SurdProd) -> Surd {
+    match p {
+        SurdProd::Slow(s) => s.clone(),
+        SurdProd::Fast(f) => {
+            let mut acc = FactoredSum::new();
+            acc.add(f);
+            acc.finish()
+        }
+    }
 }
 
 impl Field for f64 {
+    type Prod = f64;
+    type Acc = (f64, f64);
     fn zero() -> Self {
         0.0
-    }
-    fn one() -> Self {
-        1.0
     }
     fn is_zero(&self) -> bool {
         *self == 0.0
     }
-    fn mul(&self, o: &Self) -> Self {
-        self * o
-    }
     fn add(&self, o: &Self) -> Self {
         self + o
     }
-    fn neg(&self) -> Self {
-        -self
+    fn mul(&self, o: &Self) -> Self {
+        self * o
     }
     fn from_surd(s: &Surd) -> Self {
         s.to_f64()
@@ -168,22 +242,240 @@ impl Field for f64 {
             SymbolKind::NineJ => float::nine_j_f64(a.try_into().unwrap()),
         }
     }
+    fn prod_one() -> f64 {
+        1.0
+    }
+    fn prod_of(v: &f64) -> f64 {
+        *v
+    }
+    fn prod_mul(p: &mut f64, o: &f64) {
+        *p *= o;
+    }
+    fn prod_neg(p: &mut f64) {
+        *p = -*p;
+    }
+    fn acc_new() -> (f64, f64) {
+        (0.0, 0.0)
+    }
+    fn acc_add(a: &mut (f64, f64), p: &f64) {
+        // compensated (Kahan-Babuska) summation
+        let t = a.0 + p;
+        if a.0.abs() >= p.abs() {
+            a.1 += (a.0 - t) + p;
+        } else {
+            a.1 += (p - t) + a.0;
+        }
+        a.0 = t;
+    }
+    fn acc_finish(a: (f64, f64)) -> f64 {
+        a.0 + a.1
+    }
 }
 
-/// Evaluates expressions, caching symbol values across calls.
+/// A linear form over variable indices.
+#[derive(Clone, Debug)]
+struct CLin {
+    c0: Q,
+    t: Vec<(usize, Q)>,
+}
+
+impl CLin {
+    fn new(l: &Lin, index: &BTreeMap<Name, usize>) -> CLin {
+        CLin {
+            c0: l.constant_part(),
+            t: l.terms().map(|(n, c)| (index[n], *c)).collect(),
+        }
+    }
+    #[inline]
+    fn eval(&self, env: &[Q]) -> Q {
+        let mut s = self.c0;
+        for (i, c) in &self.t {
+            s += *c * env[*i];
+        }
+        s
+    }
+    /// `a·v + b` when every other variable is assigned.
+    #[inline]
+    fn split(&self, v: usize, env: &[Q], assigned: &[bool]) -> Option<(Q, Q)> {
+        let mut a = Q::zero();
+        let mut b = self.c0;
+        for (i, c) in &self.t {
+            if *i == v {
+                a = *c;
+            } else if assigned[*i] {
+                b += *c * env[*i];
+            } else {
+                return None;
+            }
+        }
+        if a.is_zero() {
+            None
+        } else {
+            Some((a, b))
+        }
+    }
+}
+
+#[derive(Clone, Debug)]
+enum CFactor {
+    Delta(CLin, CLin),
+    Tri([CLin; 3]),
+    Power(CLin, Q, String),
+    Symbol(SymbolKind, Vec<CLin>),
+}
+
+/// A term compiled for repeated evaluation.
+#[derive(Clone, Debug)]
+struct CTerm {
+    names: Vec<Name>,
+    free: Vec<usize>,
+    bound: Vec<usize>,
+    factors: Vec<CFactor>,
+    phase: Option<(CLin, String)>,
+    scalar: Surd,
+    ge: Vec<Vec<CLin>>,
+    eq: Vec<Vec<CLin>>,
+    integral: Vec<Vec<CLin>>,
+}
+
+impl CTerm {
+    fn new(t: &Term) -> CTerm {
+        let names: Vec<Name> = t.all_vars().into_iter().collect();
+        let index: BTreeMap<Name, usize> = names.iter().cloned().enumerate().map(|(i, n)| (n, i)).collect();
+        let cl = |l: &Lin| CLin::new(l, &index);
+        let mut cheap = Vec::new();
+        let mut powers = Vec::new();
+        let mut symbols = Vec::new();
+        for f in &t.factors {
+            match f {
+                Factor::Delta(a, b) => cheap.push(CFactor::Delta(cl(a), cl(b))),
+                Factor::Tri([a, b, c]) => cheap.push(CFactor::Tri([cl(a), cl(b), cl(c)])),
+                Factor::Power(b, e) => powers.push(CFactor::Power(cl(b), *e, b.to_string())),
+                Factor::ThreeJ(_) => symbols.push(CFactor::Symbol(SymbolKind::ThreeJ, f.lins().iter().map(|l| cl(l)).collect())),
+                Factor::Cg(_) => symbols.push(CFactor::Symbol(SymbolKind::Cg, f.lins().iter().map(|l| cl(l)).collect())),
+                Factor::SixJ(_) => symbols.push(CFactor::Symbol(SymbolKind::SixJ, f.lins().iter().map(|l| cl(l)).collect())),
+                Factor::NineJ(_) => symbols.push(CFactor::Symbol(SymbolKind::NineJ, f.lins().iter().map(|l| cl(l)).collect())),
+            }
+        }
+        let mut factors = cheap;
+        factors.extend(powers);
+        factors.extend(symbols);
+        let n = names.len();
+        let mut ge = vec![Vec::new(); n];
+        let mut eq = vec![Vec::new(); n];
+        let mut integral = vec![Vec::new(); n];
+        if !t.bound.is_empty() {
+            let c = crate::algebra::selection::Constraints::of(&t.factors);
+            for (src, dst) in [(&c.ge, &mut ge), (&c.eq, &mut eq), (&c.integral, &mut integral)] {
+                for l in src {
+                    let x = cl(l);
+                    for (i, _) in &x.t {
+                        dst[*i].push(x.clone());
+                    }
+                }
+            }
+        }
+        let bound: Vec<usize> = t.bound.iter().map(|b| index[b]).collect();
+        let free: Vec<usize> = (0..n).filter(|i| !bound.contains(i)).collect();
+        CTerm {
+            free,
+            bound,
+            factors,
+            phase: (!t.phase.is_zero()).then(|| (cl(&t.phase), t.phase.to_string())),
+            scalar: t.scalar(),
+            ge,
+            eq,
+            integral,
+            names,
+        }
+    }
+
+    /// The values of a summed variable given the assigned ones.
+    fn range(&self, v: usize, env: &[Q], assigned: &[bool]) -> Range {
+        let mut fixed: Option<Q> = None;
+        for l in &self.eq[v] {
+            if let Some((a, b)) = l.split(v, env, assigned) {
+                let x = -b / a;
+                match fixed {
+                    None => fixed = Some(x),
+                    Some(y) if y != x => return Range::Empty,
+                    _ => {}
+                }
+            }
+        }
+        let mut lo: Option<Q> = None;
+        let mut hi: Option<Q> = None;
+        for l in &self.ge[v] {
+            if let Some((a, b)) = l.split(v, env, assigned) {
+                let bound = -b / a;
+                if a.is_positive() {
+                    lo = Some(lo.map_or(bound, |x: Q| x.max(bound)));
+                } else {
+                    hi = Some(hi.map_or(bound, |x: Q| x.min(bound)));
+                }
+            }
+        }
+        let mut parity: Option<Q> = None;
+        for l in &self.integral[v] {
+            if let Some((a, b)) = l.split(v, env, assigned) {
+                if a.abs() == Q::one() {
+                    let target = -b / a;
+                    parity = Some(target - target.floor());
+                    break;
+                }
+            }
+        }
+        let half = Q::new(1, 2);
+        let two = Q::from_integer(2);
+        if let Some(x) = fixed {
+            let ok = lo.is_none_or(|l| x >= l)
+                && hi.is_none_or(|h| x <= h)
+                && (x * two).is_integer()
+                && parity.is_none_or(|p| x - x.floor() == p);
+            return if ok { Range::Fixed(x) } else { Range::Empty };
+        }
+        match (lo, hi) {
+            (Some(l), Some(h)) => {
+                let mut start = Q::new((l * two).ceil().to_integer(), 2);
+                let step = match parity {
+                    Some(p) => {
+                        if start - start.floor() != p {
+                            start += half;
+                        }
+                        Q::one()
+                    }
+                    None => half,
+                };
+                let hi = Q::new((h * two).floor().to_integer(), 2);
+                if start > hi {
+                    Range::Empty
+                } else {
+                    Range::Steps { start, step, hi }
+                }
+            }
+            (lo, hi) => Range::Unbounded { lo, hi },
+        }
+    }
+}
+
+/// Evaluates expressions, caching symbol values and compiled terms.
 pub struct Evaluator<F: Field> {
-    cache: RefCell<HashMap<(SymbolKind, [i64; 9]), F>>,
+    cache: RefCell<HashMap<(SymbolKind, [i64; 9]), Option<F::Prod>>>,
+    powers: RefCell<HashMap<(Q, Q), F::Prod>>,
+    compiled: RefCell<HashMap<Term, Rc<CTerm>>>,
     points: RefCell<u64>,
-    /// summation constraints per term, keyed by the term's contents
-    ranges: RefCell<HashMap<Term, std::rc::Rc<Indexed>>>,
+    /// most summation points one `eval` may visit
+    pub budget: u64,
 }
 
 impl<F: Field> Default for Evaluator<F> {
     fn default() -> Self {
         Evaluator {
             cache: RefCell::new(HashMap::new()),
+            powers: RefCell::new(HashMap::new()),
+            compiled: RefCell::new(HashMap::new()),
             points: RefCell::new(0),
-            ranges: RefCell::new(HashMap::new()),
+            budget: MAX_POINTS,
         }
     }
 }
@@ -268,201 +560,196 @@ impl<F: Field> Evaluator<F> {
         Ok(acc)
     }
 
+    fn compiled(&self, t: &Term) -> Rc<CTerm> {
+        if let Some(c) = self.compiled.borrow().get(t) {
+            return c.clone();
+        }
+        let c = Rc::new(CTerm::new(t));
+        let mut m = self.compiled.borrow_mut();
+        if m.len() > 10_000 {
+            m.clear();
+        }
+        m.insert(t.clone(), c.clone());
+        c
+    }
+
     /// Evaluates one term.
     pub fn eval_term(&self, t: &Term, at: &Assignment) -> Result<F, EvalError> {
-        let mut env = at.clone();
-        let mut todo: Vec<Name> = t.bound.clone();
-        let scalar = F::from_surd(&t.scalar());
-        if todo.is_empty() {
-            let v = self.product(t, &env)?;
-            return Ok(scalar.mul(&v));
-        }
-        let cached = self.ranges.borrow().get(t).cloned();
-        let ix = match cached {
-            Some(ix) => ix,
-            None => {
-                let ix = std::rc::Rc::new(Indexed::new(&Constraints::of(&t.factors)));
-                self.ranges.borrow_mut().insert(t.clone(), ix.clone());
-                ix
+        let c = self.compiled(t);
+        let n = c.names.len();
+        let mut env = vec![Q::zero(); n];
+        let mut assigned = vec![false; n];
+        for &i in &c.free {
+            match at.get(&c.names[i]) {
+                Some(v) => {
+                    env[i] = *v;
+                    assigned[i] = true;
+                }
+                None => return Err(EvalError::Unassigned(c.names[i].clone())),
             }
-        };
-        let v = self.sum_over(t, &ix, &mut env, &mut todo)?;
-        Ok(scalar.mul(&v))
+        }
+        let mut acc = F::acc_new();
+        let mut todo = c.bound.clone();
+        self.sum_over(&c, &mut env, &mut assigned, &mut todo, &mut acc)?;
+        let v = F::acc_finish(acc);
+        if v.is_zero() {
+            return Ok(v);
+        }
+        Ok(v.mul(&F::from_surd(&c.scalar)))
     }
 
     fn sum_over(
         &self,
-        t: &Term,
-        ix: &Indexed,
-        env: &mut Assignment,
-        todo: &mut Vec<Name>,
-    ) -> Result<F, EvalError> {
+        c: &CTerm,
+        env: &mut Vec<Q>,
+        assigned: &mut Vec<bool>,
+        todo: &mut Vec<usize>,
+        acc: &mut F::Acc,
+    ) -> Result<(), EvalError> {
         if todo.is_empty() {
             {
                 let mut p = self.points.borrow_mut();
                 *p += 1;
-                if *p > MAX_POINTS {
+                if *p > self.budget {
                     return Err(EvalError::TooLarge);
                 }
             }
-            return self.product(t, env);
+            if let Some(p) = self.product(c, env)? {
+                F::acc_add(acc, &p);
+            }
+            return Ok(());
         }
-        let (idx, range) = choose_next(ix, env, todo)?;
-        let v = todo.remove(idx);
-        let mut acc = F::zero();
-        for val in range {
-            env.insert(v.clone(), val);
-            let r = self.sum_over(t, ix, env, todo);
-            match r {
-                Ok(x) => acc = acc.add(&x),
-                Err(e) => {
-                    env.remove(&v);
-                    todo.insert(idx, v);
-                    return Err(e);
+        // the summed variable with the fewest values next
+        let mut best: Option<(usize, u64, Range)> = None;
+        for (k, &v) in todo.iter().enumerate() {
+            let r = c.range(v, env, assigned);
+            let Some(n) = r.count() else { continue };
+            if n > 10_000_000 {
+                return Err(EvalError::TooLarge);
+            }
+            if best.as_ref().is_none_or(|b| n < b.1) {
+                let stop = n <= 1;
+                best = Some((k, n, r));
+                if stop {
+                    break;
                 }
             }
         }
-        env.remove(&v);
-        todo.insert(idx, v);
-        Ok(acc)
+        let Some((k, _, r)) = best else {
+            return Err(EvalError::Unbounded(c.names[todo[0]].clone()));
+        };
+        let v = todo.remove(k);
+        assigned[v] = true;
+        let mut result = Ok(());
+        for x in r.values().unwrap() {
+            env[v] = x;
+            if let Err(e) = self.sum_over(c, env, assigned, todo, acc) {
+                result = Err(e);
+                break;
+            }
+        }
+        assigned[v] = false;
+        todo.insert(k, v);
+        result
     }
 
-    /// The product of the phase and the factors at a full assignment.
-    fn product(&self, t: &Term, env: &Assignment) -> Result<F, EvalError> {
-        let get = |n: &Name| env.get(n).copied();
-        let val = |l: &Lin| -> Result<Q, EvalError> {
-            l.eval(&get).ok_or_else(|| {
-                let missing = l.vars().find(|v| !env.contains_key(*v)).unwrap();
-                EvalError::Unassigned(missing.clone())
-            })
-        };
-        let mut acc = F::one();
-        // cheap factors first, so a zero skips the symbols
-        for f in &t.factors {
+    /// The product at a full assignment (`None` for zero).
+    fn product(&self, c: &CTerm, env: &[Q]) -> Result<Option<F::Prod>, EvalError> {
+        let mut acc = F::prod_one();
+        for f in &c.factors {
             match f {
-                Factor::Delta(a, b) if val(a)? != val(b)? => return Ok(F::zero()),
-                Factor::Tri([a, b, c]) => {
-                    let d: Vec<Option<i64>> = [val(a)?, val(b)?, val(c)?]
-                        .iter()
-                        .map(|q| doubled(*q))
-                        .collect();
-                    match (d[0], d[1], d[2]) {
-                        (Some(x), Some(y), Some(z)) if triangle2(x, y, z) => {}
-                        _ => return Ok(F::zero()),
+                CFactor::Delta(a, b) => {
+                    if a.eval(env) != b.eval(env) {
+                        return Ok(None);
                     }
                 }
-                _ => {}
-            }
-        }
-        for f in &t.factors {
-            let (kind, lins): (SymbolKind, Vec<&Lin>) = match f {
-                Factor::ThreeJ(_) => (SymbolKind::ThreeJ, f.lins()),
-                Factor::Cg(_) => (SymbolKind::Cg, f.lins()),
-                Factor::SixJ(_) => (SymbolKind::SixJ, f.lins()),
-                Factor::NineJ(_) => (SymbolKind::NineJ, f.lins()),
-                Factor::Power(base, e) => {
-                    let b = val(base)?;
+                CFactor::Tri([a, b, cc]) => {
+                    match (doubled(a.eval(env)), doubled(b.eval(env)), doubled(cc.eval(env))) {
+                        (Some(x), Some(y), Some(z)) if triangle2(x, y, z) => {}
+                        _ => return Ok(None),
+                    }
+                }
+                CFactor::Power(base, e, text) => {
+                    let b = base.eval(env);
                     if b.is_zero() {
                         if e.is_negative() {
-                            return Err(EvalError::Arithmetic(format!(
-                                "division by zero: {base} is 0 here"
-                            )));
+                            return Err(EvalError::Arithmetic(format!("division by zero: {text} is 0 here")));
                         }
-                        return Ok(F::zero());
+                        return Ok(None);
                     }
                     if b.is_negative() && !e.is_integer() {
                         return Err(EvalError::Arithmetic(format!(
-                            "square root of a negative number: {base} = {} here",
+                            "square root of a negative number: {text} = {} here",
                             qstr(&b)
                         )));
                     }
-                    let p = if b.is_negative() {
-                        // integer power of a negative base
-                        let m = power_of_rational(-b, *e).unwrap();
-                        if e.to_integer() % 2 != 0 {
-                            -m
-                        } else {
-                            m
+                    let key = (b, *e);
+                    let cached = self.powers.borrow().get(&key).cloned();
+                    let p = match cached {
+                        Some(p) => p,
+                        None => {
+                            let v = if b.is_negative() {
+                                let m = power_of_rational(-b, *e).unwrap();
+                                if e.to_integer() % 2 != 0 {
+                                    -m
+                                } else {
+                                    m
+                                }
+                            } else {
+                                power_of_rational(b, *e).ok_or_else(|| {
+                                    EvalError::Arithmetic(format!("cannot raise {text} to {}", qstr(e)))
+                                })?
+                            };
+                            let p = F::prod_of(&F::from_surd(&v));
+                            self.powers.borrow_mut().insert(key, p.clone());
+                            p
                         }
-                    } else {
-                        power_of_rational(b, *e).ok_or_else(|| {
-                            EvalError::Arithmetic(format!("cannot raise {base} to {}", qstr(e)))
-                        })?
                     };
-                    acc = acc.mul(&F::from_surd(&p));
-                    continue;
+                    F::prod_mul(&mut acc, &p);
                 }
-                _ => continue,
-            };
-            let mut args = [0i64; 9];
-            for (i, l) in lins.iter().enumerate() {
-                match doubled(val(l)?) {
-                    Some(d) => args[i] = d,
-                    None => return Ok(F::zero()),
-                }
-            }
-            let key = (kind, args);
-            let cached = self.cache.borrow().get(&key).cloned();
-            let v = match cached {
-                Some(v) => v,
-                None => {
-                    let v = F::symbol(kind, &args[..lins.len()]);
-                    let mut c = self.cache.borrow_mut();
-                    if c.len() > 1_000_000 {
-                        c.clear();
+                CFactor::Symbol(kind, args) => {
+                    let mut a = [0i64; 9];
+                    for (i, l) in args.iter().enumerate() {
+                        match doubled(l.eval(env)) {
+                            Some(d) => a[i] = d,
+                            None => return Ok(None),
+                        }
                     }
-                    c.insert(key, v.clone());
-                    v
+                    let key = (*kind, a);
+                    let cached = self.cache.borrow().get(&key).cloned();
+                    let p = match cached {
+                        Some(p) => p,
+                        None => {
+                            let v = F::symbol(*kind, &a[..args.len()]);
+                            let p = (!v.is_zero()).then(|| F::prod_of(&v));
+                            let mut m = self.cache.borrow_mut();
+                            if m.len() > 1_000_000 {
+                                m.clear();
+                            }
+                            m.insert(key, p.clone());
+                            p
+                        }
+                    };
+                    match p {
+                        Some(p) => F::prod_mul(&mut acc, &p),
+                        None => return Ok(None),
+                    }
                 }
-            };
-            if v.is_zero() {
-                return Ok(F::zero());
             }
-            acc = acc.mul(&v);
         }
-        if !t.phase.is_zero() {
-            let p = val(&t.phase)?;
+        if let Some((ph, text)) = &c.phase {
+            let p = ph.eval(env);
             if !p.is_integer() {
                 return Err(EvalError::PhaseNotInteger {
-                    exponent: t.phase.to_string(),
+                    exponent: text.clone(),
                     value: qstr(&p),
                 });
             }
             if p.to_integer().rem_euclid(2) == 1 {
-                acc = acc.neg();
+                F::prod_neg(&mut acc);
             }
         }
-        Ok(acc)
-    }
-}
-
-/// Picks the next summed variable to enumerate (a fixed one first, else
-/// the one with the fewest values) and its values.
-fn choose_next(
-    ix: &Indexed,
-    env: &Assignment,
-    todo: &[Name],
-) -> Result<(usize, Vec<Q>), EvalError> {
-    let mut best: Option<(usize, u64, Range)> = None;
-    for (i, v) in todo.iter().enumerate() {
-        let r = range_indexed(v, ix, env, None, None);
-        let Some(n) = r.count() else {
-            continue;
-        };
-        if n > 10_000_000 {
-            return Err(EvalError::TooLarge);
-        }
-        if best.as_ref().is_none_or(|b| n < b.1) {
-            let done = n <= 1;
-            best = Some((i, n, r));
-            if done {
-                break;
-            }
-        }
-    }
-    match best {
-        Some((i, _, r)) => Ok((i, r.values().unwrap())),
-        None => Err(EvalError::Unbounded(todo[0].clone())),
+        Ok(Some(acc))
     }
 }
 

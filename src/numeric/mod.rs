@@ -3,6 +3,7 @@
 //! Nothing here depends on simplification or verification.
 
 pub mod exact;
+pub mod factored;
 pub mod primes;
 pub mod racah;
 pub mod surd;

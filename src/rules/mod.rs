@@ -5,6 +5,7 @@
 //! Adding an identity means adding an entry to `catalog.txt`.
 
 pub mod apply;
+pub mod matcher;
 
 use crate::expr::{Expr, Name};
 use crate::syntax::parse;
@@ -20,6 +21,8 @@ pub enum RuleKind {
     ProjectionSum,
     /// a sum over angular momenta
     MomentumSum,
+    /// a definition used to bring input to a standard form (cg-to-3j)
+    Definition,
 }
 
 /// One identity of the catalog.
@@ -102,6 +105,14 @@ impl Rule {
     }
 }
 
+/// The catalog rule of the given name.
+pub fn rule(name: &str) -> &'static Rule {
+    catalog()
+        .iter()
+        .find(|r| r.name == name)
+        .unwrap_or_else(|| panic!("no rule {name} in the catalog"))
+}
+
 /// Parses catalog text (the format of `catalog.txt`).
 pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
     let mut out = Vec::new();
@@ -133,6 +144,7 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
                 "special" => RuleKind::Special,
                 "projection" => RuleKind::ProjectionSum,
                 "sum" => RuleKind::MomentumSum,
+                "definition" => RuleKind::Definition,
                 k => {
                     return Err(RuleError {
                         name: name.to_string(),

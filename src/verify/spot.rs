@@ -21,6 +21,9 @@ pub struct SpotSettings {
     pub seed: u64,
 }
 
+/// Most summation points per evaluation in spot comparisons.
+pub const SPOT_BUDGET: u64 = 5_000_000;
+
 impl Default for SpotSettings {
     fn default() -> Self {
         SpotSettings {
@@ -100,9 +103,32 @@ pub fn compare(lhs: &Expr, rhs: &Expr, s: &SpotSettings) -> Result<SpotReport, E
     compare_at(lhs, rhs, &pts)
 }
 
+/// `compare` with a budget of summation points per evaluation.
+pub fn compare_budget(
+    lhs: &Expr,
+    rhs: &Expr,
+    s: &SpotSettings,
+    budget: u64,
+) -> Result<SpotReport, EvalError> {
+    let pts = points(&[lhs, rhs], s);
+    compare_at_budget(lhs, rhs, &pts, budget)
+}
+
 /// Compares at given points.
 pub fn compare_at(lhs: &Expr, rhs: &Expr, pts: &[Point]) -> Result<SpotReport, EvalError> {
-    let ev = Evaluator::<Surd>::new();
+    compare_at_budget(lhs, rhs, pts, SPOT_BUDGET)
+}
+
+/// Compares at given points with a budget of summation points per
+/// evaluation (`EvalError::TooLarge` beyond it).
+pub fn compare_at_budget(
+    lhs: &Expr,
+    rhs: &Expr,
+    pts: &[Point],
+    budget: u64,
+) -> Result<SpotReport, EvalError> {
+    let mut ev = Evaluator::<Surd>::new();
+    ev.budget = budget;
     let mut rep = SpotReport {
         checked: 0,
         nonzero: 0,

@@ -1,0 +1,175 @@
+//! The choice of the next graph step for a term with projection sums:
+//! Clebsch–Gordan coefficients to 3j first, then closed pieces recognised
+//! whole (theta, tetrahedron = one 6j, K3,3 = one 9j), bubbles and
+//! triangles, and otherwise an interchange on a shortest cycle that puts
+//! the cycle's two legs on one vertex (shortening it by one, at the cost of
+//! one sum over a new angular momentum and a 6j). Each step is a catalog
+//! rule applied by the matcher; the driver verifies it.
+
+use super::cycles::shortest_cycle;
+use super::Graph;
+use crate::algebra::unify::Subst;
+use crate::expr::{Expr, Factor, Kind, Lin, Term};
+use crate::rules::matcher::Pattern;
+use crate::rules::rule;
+use std::sync::OnceLock;
+
+/// One graph step: the rule, the term's replacement and the local identity
+/// it applies (for verification).
+#[derive(Clone, Debug)]
+pub struct GraphRewrite {
+    /// the rule's name
+    pub rule: String,
+    /// its source
+    pub source: String,
+    /// what replaces the term
+    pub replacement: Expr,
+    /// the instance of the rule: (left side, right side)
+    pub instance: (Expr, Expr),
+}
+
+struct Patterns {
+    cg: Pattern,
+    theta: Pattern,
+    bubble: Pattern,
+    triangle: Pattern,
+    tetrahedron: Pattern,
+    nine_j: Pattern,
+    interchange: Pattern,
+}
+
+fn patterns() -> &'static Patterns {
+    static P: OnceLock<Patterns> = OnceLock::new();
+    P.get_or_init(|| {
+        let p = |n: &str| Pattern::new(rule(n)).unwrap_or_else(|| panic!("rule {n} is not a pattern"));
+        Patterns {
+            cg: p("cg-to-3j"),
+            theta: p("theta"),
+            bubble: p("bubble"),
+            triangle: p("triangle"),
+            tetrahedron: p("tetrahedron"),
+            nine_j: p("9j-recognition"),
+            interchange: p("interchange"),
+        }
+    })
+}
+
+fn rewrite_with(p: &Pattern, t: &Term, required: &Subst, regge: bool) -> Option<GraphRewrite> {
+    rewrite_in(p, t, required, regge, None)
+}
+
+fn rewrite_in(
+    p: &Pattern,
+    t: &Term,
+    required: &Subst,
+    regge: bool,
+    allowed: Option<&[usize]>,
+) -> Option<GraphRewrite> {
+    let (m, e) = p.apply_first_in(t, required, regge, allowed)?;
+    Some(GraphRewrite {
+        rule: p.name.clone(),
+        source: p.source.clone(),
+        replacement: e,
+        instance: p.instance(t, &m),
+    })
+}
+
+/// True when the term sums over a projection.
+pub fn has_projection_sum(t: &Term) -> bool {
+    let k = t.kinds();
+    t.bound.iter().any(|b| k.get(b) == Some(&Kind::Projection))
+}
+
+/// Converts the first Clebsch–Gordan coefficient that shares a summed
+/// projection into a 3j (cg-to-3j).
+fn cg_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
+    let k = t.kinds();
+    let summed: Vec<_> = t
+        .bound
+        .iter()
+        .filter(|b| k.get(*b) == Some(&Kind::Projection))
+        .collect();
+    let idx = t.factors.iter().position(|f| {
+        matches!(f, Factor::Cg(_)) && f.m_slots().iter().any(|l| summed.iter().any(|b| l.has(b)))
+    })?;
+    // bind the pattern to this CG's arguments exactly
+    let Factor::Cg(a) = &t.factors[idx] else {
+        return None;
+    };
+    let p = &patterns().cg;
+    let mut req = Subst::new();
+    for (name, l) in ["j1", "m1", "j2", "m2", "J", "M"].iter().zip(a.iter()) {
+        req.insert(p.var(name), l.clone());
+    }
+    rewrite_with(p, t, &req, regge)
+}
+
+/// The next graph step for a term, if any.
+pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
+    if !has_projection_sum(t) {
+        return None;
+    }
+    if let Some(r) = cg_step(t, regge) {
+        return Some(r);
+    }
+    let g = Graph::of_term(t);
+    if g.lines.is_empty() {
+        return None;
+    }
+    let ps = patterns();
+    let none = Subst::new();
+    let comps = g.components();
+    let factors_of = |vs: &[usize]| -> Vec<usize> { vs.iter().map(|&v| g.vertices[v].factor).collect() };
+    // closed pieces recognised whole
+    for c in &comps {
+        if g.legs_of(c) != 0 {
+            continue;
+        }
+        let p = match c.len() {
+            2 => &ps.theta,
+            4 => &ps.tetrahedron,
+            6 => &ps.nine_j,
+            _ => continue,
+        };
+        if let Some(r) = rewrite_in(p, t, &none, regge, Some(&factors_of(c))) {
+            return Some(r);
+        }
+    }
+    let cycles = crate::graph::cycles::cycles_by_line(&g);
+    // bubbles, then triangles, on the shortest cycles
+    for len in [2usize, 3] {
+        for c in cycles.iter().filter(|c| c.len() == len) {
+            let p = if len == 2 { &ps.bubble } else { &ps.triangle };
+            if let Some(r) = rewrite_in(p, t, &none, regge, Some(&factors_of(&c.vertices))) {
+                return Some(r);
+            }
+        }
+    }
+    let c = shortest_cycle(&g)?;
+    if c.len() < 3 {
+        return None;
+    }
+    let n = c.len();
+    for i in 0..n {
+        let x = c.lines[i];
+        let prev = c.lines[(i + n - 1) % n];
+        let next = c.lines[(i + 1) % n];
+        let a = c.vertices[i];
+        let b = c.vertices[(i + 1) % n];
+        let ma = g.vertices[a].cols[g.slot_of(prev, a)].1.clone();
+        let md = g.vertices[b].cols[g.slot_of(next, b)].1.clone();
+        let p = &ps.interchange;
+        for sign in [1, -1] {
+            let mut req = Subst::new();
+            req.insert(p.var("ma"), ma.clone());
+            req.insert(p.var("md"), md.clone());
+            let v = Lin::var(g.lines[x].var.clone());
+            req.insert(p.var("mx"), if sign == 1 { v } else { -&v });
+            let allowed = factors_of(&[a, b]);
+            if let Some(r) = rewrite_in(p, t, &req, regge, Some(&allowed)) {
+                return Some(r);
+            }
+        }
+    }
+    None
+}

@@ -1,0 +1,513 @@
+//! Matching a rule with several factors and summed variables against a
+//! term: an injective assignment of the pattern's symbols to symbols of
+//! the term, each through some element of its symmetry group, with the
+//! pattern variables solved by linear unification. Summed pattern
+//! variables must land on distinct summed variables of the term (a
+//! projection up to sign, an angular momentum exactly) that appear nowhere
+//! else in the term; powers of the pattern that involve summed variables
+//! must be present; the phase left over must be free of the summed
+//! variables modulo the term's integrality lattice. Constant factors,
+//! phases and powers of the pattern that do not involve its sums are
+//! compensated, so a match inside a larger product always rewrites exactly.
+
+use super::Rule;
+use crate::algebra::lattice::PhaseLattice;
+use crate::algebra::symmetry::{classical_images, regge_images, Image};
+use crate::algebra::unify::{apply, unify_partial, Subst};
+use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
+use crate::numeric::Surd;
+use std::collections::{BTreeMap, BTreeSet};
+
+fn internal(n: &Name) -> Name {
+    Name::new(format!("\u{2}{n}"))
+}
+
+/// A rule prepared for matching (its variables renamed apart).
+#[derive(Clone, Debug)]
+pub struct Pattern {
+    /// the rule's name
+    pub name: String,
+    /// the rule's source
+    pub source: String,
+    symbols: Vec<Factor>,
+    powers: Vec<(Lin, Q)>,
+    phase: Lin,
+    scalar: Surd,
+    bound: Vec<Name>,
+    bound_kinds: BTreeMap<Name, Kind>,
+    vars: BTreeSet<Name>,
+    free: BTreeSet<Name>,
+    rhs: Expr,
+}
+
+/// Incremental solution of the pattern equations: determined variables
+/// and equations still waiting for more of them.
+#[derive(Clone, Debug, Default)]
+struct Solver {
+    subst: Subst,
+    pending: Vec<(Lin, Lin)>,
+}
+
+impl Solver {
+    /// Adds `p = t` (p over pattern variables); false on a contradiction.
+    fn add(&mut self, p: &Lin, t: &Lin, vars: &BTreeSet<Name>) -> bool {
+        self.pending.push((p.clone(), t.clone()));
+        self.propagate(vars)
+    }
+
+    fn propagate(&mut self, vars: &BTreeSet<Name>) -> bool {
+        loop {
+            let mut progress = false;
+            let mut keep = Vec::with_capacity(self.pending.len());
+            for (p, t) in std::mem::take(&mut self.pending) {
+                let p = apply(&p, &self.subst);
+                let unknown: Vec<&Name> = p.vars().filter(|v| vars.contains(*v)).collect();
+                match unknown.len() {
+                    0 => {
+                        if p != t {
+                            return false;
+                        }
+                    }
+                    1 => {
+                        let v = unknown[0].clone();
+                        let c = p.coeff(&v);
+                        let rest = p.substitute(&v, &Lin::zero());
+                        let val = (&t - &rest).scale(c.recip());
+                        self.subst.insert(v, val);
+                        progress = true;
+                    }
+                    _ => keep.push((p, t)),
+                }
+            }
+            self.pending = keep;
+            if !progress {
+                return true;
+            }
+        }
+    }
+
+    /// The full solution, solving what is left by elimination.
+    fn complete(&self, vars: &BTreeSet<Name>) -> Option<(Subst, bool)> {
+        if self.pending.is_empty() {
+            let all = vars.iter().all(|v| self.subst.contains_key(v));
+            return Some((self.subst.clone(), all));
+        }
+        let ps: Vec<&Lin> = self.pending.iter().map(|(p, _)| p).collect();
+        let ts: Vec<&Lin> = self.pending.iter().map(|(_, t)| t).collect();
+        let rest: BTreeSet<Name> = vars.iter().filter(|v| !self.subst.contains_key(*v)).cloned().collect();
+        let (s2, complete) = unify_partial(&ps, &ts, &rest)?;
+        let mut out = self.subst.clone();
+        for (k, v) in s2 {
+            out.insert(k, v);
+        }
+        // earlier values may mention later-solved variables: not here, since
+        // values are target forms (no pattern variables)
+        Some((out, complete))
+    }
+}
+
+/// A successful match.
+#[derive(Clone, Debug)]
+pub struct Match {
+    /// indices of the matched factors of the term, in pattern order
+    pub factors: Vec<usize>,
+    /// the images used, in pattern order
+    pub images: Vec<Image>,
+    /// values of the pattern variables
+    pub subst: Subst,
+    /// the term's summed variables the pattern's sums landed on
+    pub summed: Vec<Name>,
+}
+
+impl Pattern {
+    /// Prepares a rule whose left side is one term of symbols, powers and a
+    /// phase (`None` for other shapes).
+    pub fn new(rule: &Rule) -> Option<Pattern> {
+        let t0 = &rule.lhs.terms[0];
+        let mut names: BTreeSet<Name> = rule.lhs.free_vars();
+        names.extend(t0.bound.iter().cloned());
+        let map: BTreeMap<Name, Name> = names.iter().map(|v| (v.clone(), internal(v))).collect();
+        let t = t0.rename(&map);
+        let mut symbols = Vec::new();
+        let mut powers = Vec::new();
+        for f in &t.factors {
+            match f {
+                Factor::Power(b, e) => powers.push((b.clone(), *e)),
+                f if f.is_symbol() => symbols.push(f.clone()),
+                _ => return None,
+            }
+        }
+        if symbols.is_empty() {
+            return None;
+        }
+        // order the symbols so each shares a summed variable with earlier ones
+        let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+        let mut ordered: Vec<Factor> = vec![symbols.remove(0)];
+        while !symbols.is_empty() {
+            let pos = symbols
+                .iter()
+                .position(|f| {
+                    ordered
+                        .iter()
+                        .any(|g| bound.iter().any(|b| f.has(b) && g.has(b)))
+                })
+                .unwrap_or(0);
+            ordered.push(symbols.remove(pos));
+        }
+        let kinds = t.kinds();
+        let bound_kinds = t
+            .bound
+            .iter()
+            .map(|b| (b.clone(), kinds.get(b).copied().unwrap_or(Kind::Other)))
+            .collect();
+        let vars: BTreeSet<Name> = map.values().cloned().collect();
+        let free: BTreeSet<Name> = rule.lhs.free_vars().iter().map(internal).collect();
+        let rhs = rule.rhs.rename(&map);
+        Some(Pattern {
+            name: rule.name.clone(),
+            source: rule.source.clone(),
+            symbols: ordered,
+            powers,
+            phase: t.phase.clone(),
+            scalar: t.scalar(),
+            bound: t.bound.clone(),
+            bound_kinds,
+            vars,
+            free,
+            rhs,
+        })
+    }
+
+    /// Number of symbols in the pattern.
+    pub fn size(&self) -> usize {
+        self.symbols.len()
+    }
+
+    /// The internal name of a pattern variable (for `required` bindings).
+    pub fn var(&self, n: &str) -> Name {
+        internal(&Name::from(n))
+    }
+
+    /// Every match of the pattern in the term (at most `limit`), honouring
+    /// `required` bindings of pattern variables.
+    pub fn matches(&self, t: &Term, required: &Subst, regge: bool, limit: usize) -> Vec<Match> {
+        let mut out = Vec::new();
+        self.each_match(t, required, regge, &mut |m| {
+            out.push(m);
+            out.len() >= limit
+        });
+        out
+    }
+
+    /// Calls `accept` on each match until it returns true.
+    pub fn each_match(
+        &self,
+        t: &Term,
+        required: &Subst,
+        regge: bool,
+        accept: &mut dyn FnMut(Match) -> bool,
+    ) {
+        self.each_match_in(t, required, regge, None, accept)
+    }
+
+    /// `each_match` restricted to the factors with the given indices.
+    pub fn each_match_in(
+        &self,
+        t: &Term,
+        required: &Subst,
+        regge: bool,
+        allowed: Option<&[usize]>,
+        accept: &mut dyn FnMut(Match) -> bool,
+    ) {
+        let mut used = vec![false; t.factors.len()];
+        if let Some(a) = allowed {
+            for (i, u) in used.iter_mut().enumerate() {
+                *u = !a.contains(&i);
+            }
+        }
+        let mut solver = Solver::default();
+        for (k, v) in required {
+            if !solver.add(&Lin::var(k.clone()), v, &self.vars) {
+                return;
+            }
+        }
+        let mut chosen: Vec<(usize, Image)> = Vec::new();
+        let images: Vec<Vec<Image>> = t
+            .factors
+            .iter()
+            .map(|f| {
+                if f.is_symbol() {
+                    if regge {
+                        regge_images(f)
+                    } else {
+                        classical_images(f)
+                    }
+                } else {
+                    Vec::new()
+                }
+            })
+            .collect();
+        let mut done = false;
+        self.search(t, &images, &solver, &mut used, &mut chosen, accept, &mut done);
+    }
+
+    #[allow(clippy::too_many_arguments)]
+    fn search(
+        &self,
+        t: &Term,
+        images: &[Vec<Image>],
+        solver: &Solver,
+        used: &mut Vec<bool>,
+        chosen: &mut Vec<(usize, Image)>,
+        accept: &mut dyn FnMut(Match) -> bool,
+        done: &mut bool,
+    ) {
+        if *done {
+            return;
+        }
+        let k = chosen.len();
+        if k == self.symbols.len() {
+            if let Some(m) = self.finish(t, solver, chosen) {
+                *done = accept(m);
+            }
+            return;
+        }
+        let pat = &self.symbols[k];
+        for (i, f) in t.factors.iter().enumerate() {
+            if used[i] || std::mem::discriminant(f) != std::mem::discriminant(pat) {
+                continue;
+            }
+            for img in &images[i] {
+                if !self.slots_fit(k, &img.factor, t) {
+                    continue;
+                }
+                let mut next = solver.clone();
+                let ok = pat
+                    .lins()
+                    .iter()
+                    .zip(img.factor.lins())
+                    .all(|(p, x)| next.add(p, x, &self.vars))
+                    && self.bound_ok(t, &next.subst, false);
+                if ok {
+                    chosen.push((i, img.clone()));
+                    used[i] = true;
+                    self.search(t, images, &next, used, chosen, accept, done);
+                    used[i] = false;
+                    chosen.pop();
+                }
+                if *done {
+                    return;
+                }
+            }
+        }
+    }
+
+    /// A quick filter: where the pattern has `±b` for a summed `b`, the
+    /// image must have `±v` for a summed `v` of the term; where the
+    /// pattern has a number, the image must have the same number.
+    fn slots_fit(&self, k: usize, img: &Factor, t: &Term) -> bool {
+        for (p, x) in self.symbols[k].lins().iter().zip(img.lins()) {
+            if let Some((b, _)) = p.as_signed_var() {
+                if self.bound_kinds.contains_key(b) {
+                    match x.as_signed_var() {
+                        Some((v, _)) if t.bound.contains(v) => {}
+                        _ => return false,
+                    }
+                }
+            } else if p.is_constant() && (!x.is_constant() || x.constant_part() != p.constant_part()) {
+                return false;
+            }
+        }
+        true
+    }
+
+    /// Summed pattern variables land on distinct summed term variables.
+    fn bound_ok(&self, t: &Term, s: &Subst, complete: bool) -> bool {
+        let mut seen: BTreeSet<Name> = BTreeSet::new();
+        for b in &self.bound {
+            let Some(l) = s.get(b) else {
+                if complete {
+                    return false;
+                }
+                continue;
+            };
+            let Some((v, neg)) = l.as_signed_var() else {
+                return false;
+            };
+            if !t.bound.contains(v) || !seen.insert(v.clone()) {
+                return false;
+            }
+            if neg && self.bound_kinds.get(b) != Some(&Kind::Projection) {
+                return false;
+            }
+        }
+        // a free pattern variable must not reach a summed pattern variable's image
+        if complete {
+            for f in &self.free {
+                if let Some(l) = s.get(f) {
+                    if l.vars().any(|v| seen.contains(v)) {
+                        return false;
+                    }
+                }
+            }
+        }
+        true
+    }
+
+    fn finish(&self, t: &Term, solver: &Solver, chosen: &[(usize, Image)]) -> Option<Match> {
+        let (s, complete) = solver.complete(&self.vars)?;
+        if !complete || !self.bound_ok(t, &s, true) {
+            return None;
+        }
+        let summed: Vec<Name> = self
+            .bound
+            .iter()
+            .map(|b| s[b].as_signed_var().unwrap().0.clone())
+            .collect();
+        // the summed variables must not appear in unmatched symbols, deltas
+        // or triangle factors
+        let matched: BTreeSet<usize> = chosen.iter().map(|(i, _)| *i).collect();
+        for (i, f) in t.factors.iter().enumerate() {
+            if matched.contains(&i) || matches!(f, Factor::Power(..)) {
+                continue;
+            }
+            if summed.iter().any(|v| f.has(v)) {
+                return None;
+            }
+        }
+        Some(Match {
+            factors: chosen.iter().map(|(i, _)| *i).collect(),
+            images: chosen.iter().map(|(_, img)| img.clone()).collect(),
+            subst: s,
+            summed,
+        })
+    }
+
+    /// Rewrites the term at a match: the expression that replaces it, or
+    /// `None` when the powers or the phase do not fit.
+    pub fn rewrite(&self, t: &Term, m: &Match) -> Option<Expr> {
+        let s = &m.subst;
+        let summed: BTreeSet<Name> = m.summed.iter().cloned().collect();
+        // powers: those of the pattern with summed variables must be in the
+        // term exactly; the term must have no other power of those variables
+        let mut rest_factors: Vec<Factor> = Vec::new();
+        let matched: BTreeSet<usize> = m.factors.iter().copied().collect();
+        let mut needed: Vec<(Lin, Q)> = Vec::new();
+        let mut compensate: Vec<(Lin, Q)> = Vec::new();
+        for (b, e) in &self.powers {
+            let sb = apply(b, s);
+            if sb.has_any(&summed) {
+                needed.push((sb, *e));
+            } else {
+                compensate.push((sb, *e));
+            }
+        }
+        // normalise the needed bases the way terms store them
+        let norm = |b: &Lin, e: Q| -> (Lin, Q) {
+            let t = Term::factor(Factor::Power(b.clone(), e));
+            match t.factors.as_slice() {
+                [Factor::Power(nb, ne)] => (nb.clone(), *ne),
+                _ => (b.clone(), e),
+            }
+        };
+        let mut needed: Vec<(Lin, Q)> = needed.iter().map(|(b, e)| norm(b, *e)).collect();
+        for (i, f) in t.factors.iter().enumerate() {
+            if matched.contains(&i) {
+                continue;
+            }
+            if let Factor::Power(b, e) = f {
+                if b.has_any(&summed) {
+                    let pos = needed.iter().position(|(nb, ne)| nb == b && ne == e)?;
+                    needed.remove(pos);
+                    continue;
+                }
+            }
+            rest_factors.push(f.clone());
+        }
+        if !needed.is_empty() {
+            return None;
+        }
+        // phase: term = (-1)^(e_T + Σ img) Π images; pattern brings σ(e_P)
+        let mut d = t.phase.clone();
+        for img in &m.images {
+            d = &d + &img.phase;
+        }
+        d = &d - &apply(&self.phase, s);
+        let first: Vec<Name> = m.summed.clone();
+        let lattice = PhaseLattice::of_term_eliminating(t, &first);
+        let d = lattice.eliminate(&d, &first)?;
+        // the rest of the term, with the compensations
+        let mut rest = t.clone();
+        rest.factors = rest_factors;
+        rest.bound.retain(|b| !summed.contains(b));
+        rest.phase = d;
+        let inv = self.scalar.recip()?;
+        rest.scale(&inv);
+        for (b, e) in compensate {
+            rest.factors.push(Factor::Power(b, -e));
+        }
+        let rest = rest.normalized();
+        let mut rhs = self.rhs.clone();
+        for (v, by) in s {
+            if self.free.contains(v) {
+                rhs = rhs.substitute(v, by);
+            }
+        }
+        let mut out = Expr::zero();
+        for r in &rhs.terms {
+            out.push(rest.mul_inside(r));
+        }
+        Some(out)
+    }
+
+    /// The first match that rewrites, and its result.
+    pub fn apply_first(&self, t: &Term, required: &Subst, regge: bool) -> Option<(Match, Expr)> {
+        self.apply_first_in(t, required, regge, None)
+    }
+
+    /// `apply_first` restricted to the factors with the given indices.
+    pub fn apply_first_in(
+        &self,
+        t: &Term,
+        required: &Subst,
+        regge: bool,
+        allowed: Option<&[usize]>,
+    ) -> Option<(Match, Expr)> {
+        let mut found = None;
+        let mut tries = 0;
+        self.each_match_in(t, required, regge, allowed, &mut |m| {
+            tries += 1;
+            if let Some(e) = self.rewrite(t, &m) {
+                found = Some((m, e));
+                return true;
+            }
+            tries >= 256
+        });
+        found
+    }
+
+    /// The local identity this match applies, for verification: the
+    /// matched factors with the pattern's sums, and its right side.
+    pub fn instance(&self, t: &Term, m: &Match) -> (Expr, Expr) {
+        let s = &m.subst;
+        let mut lhs = Term::one();
+        lhs.set_scalar(&self.scalar);
+        lhs.phase = apply(&self.phase, s);
+        for (k, _) in self.symbols.iter().enumerate() {
+            let i = m.factors[k];
+            lhs.factors.push(t.factors[i].clone());
+            lhs.phase = &lhs.phase - &m.images[k].phase;
+        }
+        for (b, e) in &self.powers {
+            lhs.factors.push(Factor::Power(apply(b, s), *e));
+        }
+        lhs.bound = m.summed.clone();
+        let mut rhs = self.rhs.clone();
+        for (v, by) in s {
+            if self.free.contains(v) {
+                rhs = rhs.substitute(v, by);
+            }
+        }
+        (Expr::from_term(lhs.normalized()), rhs)
+    }
+}
