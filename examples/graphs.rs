@@ -48,6 +48,7 @@ fn main() {
         let t = std::time::Instant::now();
         match simplify(&e, &Options::default()) {
             Ok(out) => {
+                if std::env::var("SHOW").is_ok() { println!("{text}"); println!("RESULT {}", out.result); }
                 let sums: usize = out.result.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0);
                 println!("V={n}: {} steps, {} sums, checked {} nonzero {}, {:?} notes {:?}", out.steps.len(), sums, out.checked, out.nonzero, t.elapsed(), out.notes.len());
                 if n <= 6 { println!("  {}", out.result); }
@@ -56,3 +57,5 @@ fn main() {
         }
     }
 }
+#[allow(dead_code)]
+fn unused() {}

@@ -325,33 +325,61 @@ impl PhaseLattice {
         let Some(mut v) = self.vector(&start) else {
             return start;
         };
-        let mut best = badness(&self.lin(&v));
+        // compare on the vectors first (cheap), on the forms only for ties
+        let mut best = self.vec_badness(&v);
+        let mut cand = vec![0i128; v.len()];
         for _ in 0..32 {
             let mut improved = false;
             for g in &self.gens {
                 for sign in [1i128, -1] {
-                    let cand: Vec<i128> = v.iter().zip(g).map(|(x, y)| x + sign * y).collect();
-                    let l = self.lin(&cand);
-                    let b = badness(&l);
-                    if b < best {
+                    for ((c, x), y) in cand.iter_mut().zip(&v).zip(g) {
+                        *c = x + sign * y;
+                    }
+                    let b = self.vec_badness(&cand);
+                    if b < best || (b == best && badness(&self.lin(&cand)) < badness(&self.lin(&v))) {
+                        if b == best && cand == v {
+                            continue;
+                        }
                         best = b;
-                        v = cand;
+                        v.clone_from(&cand);
                         improved = true;
                     }
                 }
             }
             let neg: Vec<i128> = v.iter().map(|x| -x).collect();
-            let b = badness(&self.lin(&neg));
-            if b < best {
-                best = b;
-                v = neg;
-                improved = true;
+            let b = self.vec_badness(&neg);
+            if b < best || (b == best && badness(&self.lin(&neg)) < badness(&self.lin(&v))) {
+                if neg != v {
+                    best = b;
+                    v = neg;
+                    improved = true;
+                }
             }
             if !improved {
                 break;
             }
         }
         self.lin(&v)
+    }
+
+    /// `badness` without the final tie-break, on a coefficient vector.
+    fn vec_badness(&self, v: &[i128]) -> (usize, i128, usize, bool, bool) {
+        let n = v.len() - 1;
+        let terms = v[..n].iter().filter(|x| **x != 0).count();
+        let size: i128 = v.iter().map(|x| x.abs()).sum();
+        let neg = v.iter().filter(|x| **x < 0).count();
+        // leading = first nonzero variable in name order
+        let mut lead: Option<(&Name, i128)> = None;
+        for (i, n) in self.columns.iter().enumerate() {
+            if v[i] != 0 && lead.is_none_or(|(m, _)| n < m) {
+                lead = Some((n, v[i]));
+            }
+        }
+        let lead_neg = match lead {
+            Some((_, c)) => c < 0,
+            None => v[n] < 0,
+        };
+        (terms, size, neg, lead_neg, v[n] != 0)
     }
 
     /// True when `e` is known to be an integer on the term's support.

@@ -159,13 +159,16 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
         let ma = g.vertices[a].cols[g.slot_of(prev, a)].1.clone();
         let md = g.vertices[b].cols[g.slot_of(next, b)].1.clone();
         let p = &ps.interchange;
-        for sign in [1, -1] {
+        let v = Lin::var(g.lines[x].var.clone());
+        let allowed = factors_of(&[a, b]);
+        // each of the three may enter the pattern with either sign (the
+        // images of a vertex include its sign flip)
+        for signs in 0..8u8 {
+            let pick = |l: &Lin, bit: u8| if signs >> bit & 1 == 0 { l.clone() } else { -l };
             let mut req = Subst::new();
-            req.insert(p.var("ma"), ma.clone());
-            req.insert(p.var("md"), md.clone());
-            let v = Lin::var(g.lines[x].var.clone());
-            req.insert(p.var("mx"), if sign == 1 { v } else { -&v });
-            let allowed = factors_of(&[a, b]);
+            req.insert(p.var("ma"), pick(&ma, 0));
+            req.insert(p.var("md"), pick(&md, 1));
+            req.insert(p.var("mx"), pick(&v, 2));
             if let Some(r) = rewrite_in(p, t, &req, regge, Some(&allowed)) {
                 return Some(r);
             }

@@ -10,10 +10,9 @@
 use super::exact::{projection_ok2, triangle2};
 use super::factored::{Factored, FactoredSum};
 use super::{exact, float, Surd};
-use crate::algebra::selection::Range;
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
-use num_traits::{One, Signed, Zero};
+use num_traits::{Signed, Zero};
 use std::cell::RefCell;
 use std::collections::{BTreeMap, HashMap};
 use std::rc::Rc;
@@ -272,47 +271,76 @@ impl Field for f64 {
     }
 }
 
-/// A linear form over variable indices.
+/// A linear form over variable indices in doubled integer units: with
+/// `t_i = 2 v_i`, the value of `2 L` is `(a0 + Σ a_i t_i) / den`.
 #[derive(Clone, Debug)]
 struct CLin {
-    c0: Q,
-    t: Vec<(usize, Q)>,
+    a0: i64,
+    t: Vec<(usize, i64)>,
+    den: i64,
 }
 
 impl CLin {
     fn new(l: &Lin, index: &BTreeMap<Name, usize>) -> CLin {
+        use num_integer::Integer;
+        let mut den: i64 = 1;
+        for (_, c) in l.terms() {
+            den = den.lcm(c.denom());
+        }
+        let two_c0 = l.constant_part() * Q::from_integer(2);
+        den = den.lcm(two_c0.denom());
+        let scale = Q::from_integer(den);
         CLin {
-            c0: l.constant_part(),
-            t: l.terms().map(|(n, c)| (index[n], *c)).collect(),
+            a0: (two_c0 * scale).to_integer(),
+            t: l
+                .terms()
+                .map(|(n, c)| (index[n], (*c * scale).to_integer()))
+                .collect(),
+            den,
         }
     }
+    /// `den · 2L` at the doubled assignment.
     #[inline]
-    fn eval(&self, env: &[Q]) -> Q {
-        let mut s = self.c0;
+    fn num(&self, env: &[i64]) -> i64 {
+        let mut s = self.a0;
         for (i, c) in &self.t {
-            s += *c * env[*i];
+            s += c * env[*i];
         }
         s
     }
-    /// `a·v + b` when every other variable is assigned.
+    /// `2L` when it is an integer.
     #[inline]
-    fn split(&self, v: usize, env: &[Q], assigned: &[bool]) -> Option<(Q, Q)> {
-        let mut a = Q::zero();
-        let mut b = self.c0;
-        for (i, c) in &self.t {
-            if *i == v {
-                a = *c;
-            } else if assigned[*i] {
-                b += *c * env[*i];
-            } else {
-                return None;
-            }
-        }
-        if a.is_zero() {
-            None
+    fn doubled(&self, env: &[i64]) -> Option<i64> {
+        let n = self.num(env);
+        if self.den == 1 {
+            Some(n)
+        } else if n % self.den == 0 {
+            Some(n / self.den)
         } else {
-            Some((a, b))
+            None
         }
+    }
+    /// `L` as a rational.
+    fn value(&self, env: &[i64]) -> Q {
+        Q::new(self.num(env), 2 * self.den)
+    }
+    /// `L >= 0`.
+    #[inline]
+    fn nonneg(&self, env: &[i64]) -> bool {
+        self.num(env) >= 0
+    }
+    /// `L = 0`.
+    #[inline]
+    fn zero(&self, env: &[i64]) -> bool {
+        self.num(env) == 0
+    }
+    /// `L` is an integer.
+    #[inline]
+    fn integral(&self, env: &[i64]) -> bool {
+        self.num(env) % (2 * self.den) == 0
+    }
+    fn coeff(&self, v: usize) -> i64 {
+        self.t.iter().find(|(i, _)| *i == v).map_or(0, |(_, c)| *c)
     }
 }
 
@@ -324,143 +352,182 @@ enum CFactor {
     Symbol(SymbolKind, Vec<CLin>),
 }
 
+/// One level of the nested summation: the variable, how it is found, and
+/// the constraints whose last variable it is (checked right there).
+#[derive(Clone, Debug)]
+struct Level {
+    var: usize,
+    /// an equality that fixes it (conservation, delta), if any
+    pin: Option<CLin>,
+    eq: Vec<CLin>,
+    ge: Vec<CLin>,
+    integral: Vec<CLin>,
+}
+
 /// A term compiled for repeated evaluation.
 #[derive(Clone, Debug)]
 struct CTerm {
+    /// the summation order (`Err(var)` when a summed variable is unbounded)
+    order: Result<Vec<Level>, usize>,
     names: Vec<Name>,
     free: Vec<usize>,
-    bound: Vec<usize>,
     factors: Vec<CFactor>,
     phase: Option<(CLin, String)>,
     scalar: Surd,
-    ge: Vec<Vec<CLin>>,
-    eq: Vec<Vec<CLin>>,
-    integral: Vec<Vec<CLin>>,
 }
 
 impl CTerm {
     fn new(t: &Term) -> CTerm {
         let names: Vec<Name> = t.all_vars().into_iter().collect();
-        let index: BTreeMap<Name, usize> = names.iter().cloned().enumerate().map(|(i, n)| (n, i)).collect();
+        let index: BTreeMap<Name, usize> =
+            names.iter().cloned().enumerate().map(|(i, n)| (n, i)).collect();
         let cl = |l: &Lin| CLin::new(l, &index);
         let mut cheap = Vec::new();
         let mut powers = Vec::new();
         let mut symbols = Vec::new();
         for f in &t.factors {
+            let args = || f.lins().iter().map(|l| cl(l)).collect::<Vec<_>>();
             match f {
                 Factor::Delta(a, b) => cheap.push(CFactor::Delta(cl(a), cl(b))),
                 Factor::Tri([a, b, c]) => cheap.push(CFactor::Tri([cl(a), cl(b), cl(c)])),
                 Factor::Power(b, e) => powers.push(CFactor::Power(cl(b), *e, b.to_string())),
-                Factor::ThreeJ(_) => symbols.push(CFactor::Symbol(SymbolKind::ThreeJ, f.lins().iter().map(|l| cl(l)).collect())),
-                Factor::Cg(_) => symbols.push(CFactor::Symbol(SymbolKind::Cg, f.lins().iter().map(|l| cl(l)).collect())),
-                Factor::SixJ(_) => symbols.push(CFactor::Symbol(SymbolKind::SixJ, f.lins().iter().map(|l| cl(l)).collect())),
-                Factor::NineJ(_) => symbols.push(CFactor::Symbol(SymbolKind::NineJ, f.lins().iter().map(|l| cl(l)).collect())),
+                Factor::ThreeJ(_) => symbols.push(CFactor::Symbol(SymbolKind::ThreeJ, args())),
+                Factor::Cg(_) => symbols.push(CFactor::Symbol(SymbolKind::Cg, args())),
+                Factor::SixJ(_) => symbols.push(CFactor::Symbol(SymbolKind::SixJ, args())),
+                Factor::NineJ(_) => symbols.push(CFactor::Symbol(SymbolKind::NineJ, args())),
             }
         }
         let mut factors = cheap;
         factors.extend(powers);
         factors.extend(symbols);
         let n = names.len();
-        let mut ge = vec![Vec::new(); n];
-        let mut eq = vec![Vec::new(); n];
-        let mut integral = vec![Vec::new(); n];
-        if !t.bound.is_empty() {
-            let c = crate::algebra::selection::Constraints::of(&t.factors);
-            for (src, dst) in [(&c.ge, &mut ge), (&c.eq, &mut eq), (&c.integral, &mut integral)] {
-                for l in src {
-                    let x = cl(l);
-                    for (i, _) in &x.t {
-                        dst[*i].push(x.clone());
-                    }
-                }
-            }
-        }
         let bound: Vec<usize> = t.bound.iter().map(|b| index[b]).collect();
         let free: Vec<usize> = (0..n).filter(|i| !bound.contains(i)).collect();
+        let order = if bound.is_empty() {
+            Ok(Vec::new())
+        } else {
+            let c = crate::algebra::selection::Constraints::of(&t.factors);
+            let all_eq: Vec<CLin> = c.eq.iter().map(&cl).collect();
+            let all_ge: Vec<CLin> = c.ge.iter().map(&cl).collect();
+            let all_int: Vec<CLin> = c.integral.iter().map(&cl).collect();
+            static_order(n, &free, &bound, &all_eq, &all_ge, &all_int)
+        };
         CTerm {
+            order,
             free,
-            bound,
             factors,
             phase: (!t.phase.is_zero()).then(|| (cl(&t.phase), t.phase.to_string())),
             scalar: t.scalar(),
-            ge,
-            eq,
-            integral,
             names,
-        }
-    }
-
-    /// The values of a summed variable given the assigned ones.
-    fn range(&self, v: usize, env: &[Q], assigned: &[bool]) -> Range {
-        let mut fixed: Option<Q> = None;
-        for l in &self.eq[v] {
-            if let Some((a, b)) = l.split(v, env, assigned) {
-                let x = -b / a;
-                match fixed {
-                    None => fixed = Some(x),
-                    Some(y) if y != x => return Range::Empty,
-                    _ => {}
-                }
-            }
-        }
-        let mut lo: Option<Q> = None;
-        let mut hi: Option<Q> = None;
-        for l in &self.ge[v] {
-            if let Some((a, b)) = l.split(v, env, assigned) {
-                let bound = -b / a;
-                if a.is_positive() {
-                    lo = Some(lo.map_or(bound, |x: Q| x.max(bound)));
-                } else {
-                    hi = Some(hi.map_or(bound, |x: Q| x.min(bound)));
-                }
-            }
-        }
-        let mut parity: Option<Q> = None;
-        for l in &self.integral[v] {
-            if let Some((a, b)) = l.split(v, env, assigned) {
-                if a.abs() == Q::one() {
-                    let target = -b / a;
-                    parity = Some(target - target.floor());
-                    break;
-                }
-            }
-        }
-        let half = Q::new(1, 2);
-        let two = Q::from_integer(2);
-        if let Some(x) = fixed {
-            let ok = lo.is_none_or(|l| x >= l)
-                && hi.is_none_or(|h| x <= h)
-                && (x * two).is_integer()
-                && parity.is_none_or(|p| x - x.floor() == p);
-            return if ok { Range::Fixed(x) } else { Range::Empty };
-        }
-        match (lo, hi) {
-            (Some(l), Some(h)) => {
-                let mut start = Q::new((l * two).ceil().to_integer(), 2);
-                let step = match parity {
-                    Some(p) => {
-                        if start - start.floor() != p {
-                            start += half;
-                        }
-                        Q::one()
-                    }
-                    None => half,
-                };
-                let hi = Q::new((h * two).floor().to_integer(), 2);
-                if start > hi {
-                    Range::Empty
-                } else {
-                    Range::Steps { start, step, hi }
-                }
-            }
-            (lo, hi) => Range::Unbounded { lo, hi },
         }
     }
 }
 
+/// The summation order of a term: a variable pinned by an equality whose
+/// other variables are known first, else one bounded on both sides; every
+/// constraint is attached to the level of its last variable.
+fn static_order(
+    n: usize,
+    free: &[usize],
+    bound: &[usize],
+    eq: &[CLin],
+    ge: &[CLin],
+    integral: &[CLin],
+) -> Result<Vec<Level>, usize> {
+    let mut assigned = vec![false; n];
+    for &f in free {
+        assigned[f] = true;
+    }
+    let known_except = |l: &CLin, v: usize, a: &[bool]| {
+        l.t.iter().all(|(i, _)| *i == v || a[*i]) && l.t.iter().any(|(i, _)| *i == v)
+    };
+    let mut todo: Vec<usize> = bound.to_vec();
+    let mut out = Vec::new();
+    while !todo.is_empty() {
+        let mut pick: Option<(usize, Option<CLin>)> = None;
+        'pin: for (k, &v) in todo.iter().enumerate() {
+            for l in eq {
+                if known_except(l, v, &assigned) {
+                    pick = Some((k, Some(l.clone())));
+                    break 'pin;
+                }
+            }
+        }
+        if pick.is_none() {
+            for (k, &v) in todo.iter().enumerate() {
+                let mut lo = false;
+                let mut hi = false;
+                for l in ge {
+                    if known_except(l, v, &assigned) {
+                        if l.coeff(v) > 0 {
+                            lo = true;
+                        } else {
+                            hi = true;
+                        }
+                    }
+                }
+                if lo && hi {
+                    pick = Some((k, None));
+                    break;
+                }
+            }
+        }
+        let Some((k, pin)) = pick else {
+            return Err(todo[0]);
+        };
+        let v = todo.remove(k);
+        assigned[v] = true;
+        let last = |l: &CLin| {
+            l.t.iter().any(|(i, _)| *i == v) && l.t.iter().all(|(i, _)| assigned[*i])
+        };
+        out.push(Level {
+            var: v,
+            pin,
+            eq: eq.iter().filter(|l| last(l)).cloned().collect(),
+            ge: ge.iter().filter(|l| last(l)).cloned().collect(),
+            integral: integral.iter().filter(|l| last(l)).cloned().collect(),
+        });
+    }
+    Ok(out)
+}
+
+/// A fast multiplicative hasher for small integer keys (the symbol cache
+/// is hit once per factor per summation point).
+#[derive(Default, Clone, Copy)]
+pub struct FastHasher(u64);
+
+impl std::hash::Hasher for FastHasher {
+    #[inline]
+    fn write(&mut self, bytes: &[u8]) {
+        for chunk in bytes.chunks(8) {
+            let mut b = [0u8; 8];
+            b[..chunk.len()].copy_from_slice(chunk);
+            self.write_u64(u64::from_le_bytes(b));
+        }
+    }
+    #[inline]
+    fn write_u64(&mut self, x: u64) {
+        self.0 = (self.0.rotate_left(5) ^ x).wrapping_mul(0x51_7c_c1_b7_27_22_0a_95);
+    }
+    #[inline]
+    fn write_i64(&mut self, x: i64) {
+        self.write_u64(x as u64);
+    }
+    #[inline]
+    fn write_usize(&mut self, x: usize) {
+        self.write_u64(x as u64);
+    }
+    #[inline]
+    fn finish(&self) -> u64 {
+        self.0
+    }
+}
+
+type FastMap<K, V> = HashMap<K, V, std::hash::BuildHasherDefault<FastHasher>>;
+
 /// Evaluates expressions, caching symbol values and compiled terms.
 pub struct Evaluator<F: Field> {
-    cache: RefCell<HashMap<(SymbolKind, [i64; 9]), Option<F::Prod>>>,
+    cache: RefCell<FastMap<(SymbolKind, [i64; 9]), Option<F::Prod>>>,
     powers: RefCell<HashMap<(Q, Q), F::Prod>>,
     compiled: RefCell<HashMap<Term, Rc<CTerm>>>,
     points: RefCell<u64>,
@@ -471,7 +538,7 @@ pub struct Evaluator<F: Field> {
 impl<F: Field> Default for Evaluator<F> {
     fn default() -> Self {
         Evaluator {
-            cache: RefCell::new(HashMap::new()),
+            cache: RefCell::new(FastMap::default()),
             powers: RefCell::new(HashMap::new()),
             compiled: RefCell::new(HashMap::new()),
             points: RefCell::new(0),
@@ -543,6 +610,11 @@ impl<F: Field> Evaluator<F> {
         Self::default()
     }
 
+    /// Summation points visited by the last `eval`.
+    pub fn points_visited(&self) -> u64 {
+        *self.points.borrow()
+    }
+
     /// Evaluates after checking the assignment.
     pub fn eval_checked(&self, e: &Expr, at: &Assignment) -> Result<F, EvalError> {
         check_assignment(e, at)?;
@@ -577,20 +649,21 @@ impl<F: Field> Evaluator<F> {
     pub fn eval_term(&self, t: &Term, at: &Assignment) -> Result<F, EvalError> {
         let c = self.compiled(t);
         let n = c.names.len();
-        let mut env = vec![Q::zero(); n];
-        let mut assigned = vec![false; n];
+        let mut env = vec![0i64; n];
         for &i in &c.free {
-            match at.get(&c.names[i]) {
-                Some(v) => {
-                    env[i] = *v;
-                    assigned[i] = true;
-                }
-                None => return Err(EvalError::Unassigned(c.names[i].clone())),
-            }
+            let name = &c.names[i];
+            let v = at.get(name).ok_or_else(|| EvalError::Unassigned(name.clone()))?;
+            env[i] = doubled(*v).ok_or_else(|| EvalError::NotHalfInteger {
+                name: name.clone(),
+                value: qstr(v),
+            })?;
         }
+        let order = match &c.order {
+            Ok(o) => o,
+            Err(v) => return Err(EvalError::Unbounded(c.names[*v].clone())),
+        };
         let mut acc = F::acc_new();
-        let mut todo = c.bound.clone();
-        self.sum_over(&c, &mut env, &mut assigned, &mut todo, &mut acc)?;
+        self.level(&c, order, 0, &mut env, &mut acc)?;
         let v = F::acc_finish(acc);
         if v.is_zero() {
             return Ok(v);
@@ -598,15 +671,15 @@ impl<F: Field> Evaluator<F> {
         Ok(v.mul(&F::from_surd(&c.scalar)))
     }
 
-    fn sum_over(
+    fn level(
         &self,
         c: &CTerm,
-        env: &mut Vec<Q>,
-        assigned: &mut Vec<bool>,
-        todo: &mut Vec<usize>,
+        order: &[Level],
+        k: usize,
+        env: &mut Vec<i64>,
         acc: &mut F::Acc,
     ) -> Result<(), EvalError> {
-        if todo.is_empty() {
+        if k == order.len() {
             {
                 let mut p = self.points.borrow_mut();
                 *p += 1;
@@ -619,61 +692,97 @@ impl<F: Field> Evaluator<F> {
             }
             return Ok(());
         }
-        // the summed variable with the fewest values next
-        let mut best: Option<(usize, u64, Range)> = None;
-        for (k, &v) in todo.iter().enumerate() {
-            let r = c.range(v, env, assigned);
-            let Some(n) = r.count() else { continue };
-            if n > 10_000_000 {
-                return Err(EvalError::TooLarge);
+        let lv = &order[k];
+        let v = lv.var;
+        env[v] = 0;
+        // the candidate doubled values t = start, start+step, ..., <= hi
+        let (start, step, hi) = if let Some(pin) = &lv.pin {
+            // a t + rest = 0
+            let a = pin.coeff(v);
+            let rest = pin.num(env);
+            if rest % a != 0 {
+                return Ok(());
             }
-            if best.as_ref().is_none_or(|b| n < b.1) {
-                let stop = n <= 1;
-                best = Some((k, n, r));
-                if stop {
+            let x = -rest / a;
+            (x, 1, x)
+        } else {
+            let mut lo = i64::MIN;
+            let mut hi = i64::MAX;
+            for l in &lv.ge {
+                // a t + rest >= 0
+                let a = l.coeff(v);
+                let rest = l.num(env);
+                if a > 0 {
+                    lo = lo.max(num_integer::Integer::div_ceil(&-rest, &a));
+                } else {
+                    hi = hi.min(num_integer::Integer::div_floor(&rest, &-a));
+                }
+            }
+            if lo == i64::MIN || hi == i64::MAX {
+                return Err(EvalError::Unbounded(c.names[v].clone()));
+            }
+            let mut start = lo;
+            let mut step = 1;
+            for l in &lv.integral {
+                // L integer: num ≡ 0 (mod 2 den); with a unit coefficient
+                // (a = ±den) it fixes the parity of t
+                let a = l.coeff(v);
+                if a.abs() == l.den {
+                    let rest = l.num(env);
+                    // a t + rest ≡ 0 (mod 2 den)  ⇒  t ≡ -rest/a (mod 2)
+                    if rest % l.den != 0 {
+                        return Ok(());
+                    }
+                    let target = (-rest / a).rem_euclid(2);
+                    if start.rem_euclid(2) != target {
+                        start += 1;
+                    }
+                    step = 2;
                     break;
                 }
             }
-        }
-        let Some((k, _, r)) = best else {
-            return Err(EvalError::Unbounded(c.names[todo[0]].clone()));
-        };
-        let v = todo.remove(k);
-        assigned[v] = true;
-        let mut result = Ok(());
-        for x in r.values().unwrap() {
-            env[v] = x;
-            if let Err(e) = self.sum_over(c, env, assigned, todo, acc) {
-                result = Err(e);
-                break;
+            if hi >= start && (hi - start) / step > 20_000_000 {
+                return Err(EvalError::TooLarge);
             }
+            (start, step, hi)
+        };
+        let mut x = start;
+        while x <= hi {
+            env[v] = x;
+            let ok = lv.eq.iter().all(|l| l.zero(env))
+                && lv.ge.iter().all(|l| l.nonneg(env))
+                && lv.integral.iter().all(|l| l.integral(env));
+            if ok {
+                self.level(c, order, k + 1, env, acc)?;
+            }
+            x += step;
         }
-        assigned[v] = false;
-        todo.insert(k, v);
-        result
+        Ok(())
     }
 
     /// The product at a full assignment (`None` for zero).
-    fn product(&self, c: &CTerm, env: &[Q]) -> Result<Option<F::Prod>, EvalError> {
+    fn product(&self, c: &CTerm, env: &[i64]) -> Result<Option<F::Prod>, EvalError> {
         let mut acc = F::prod_one();
         for f in &c.factors {
             match f {
                 CFactor::Delta(a, b) => {
-                    if a.eval(env) != b.eval(env) {
+                    if a.value(env) != b.value(env) {
                         return Ok(None);
                     }
                 }
                 CFactor::Tri([a, b, cc]) => {
-                    match (doubled(a.eval(env)), doubled(b.eval(env)), doubled(cc.eval(env))) {
+                    match (a.doubled(env), b.doubled(env), cc.doubled(env)) {
                         (Some(x), Some(y), Some(z)) if triangle2(x, y, z) => {}
                         _ => return Ok(None),
                     }
                 }
                 CFactor::Power(base, e, text) => {
-                    let b = base.eval(env);
+                    let b = base.value(env);
                     if b.is_zero() {
                         if e.is_negative() {
-                            return Err(EvalError::Arithmetic(format!("division by zero: {text} is 0 here")));
+                            return Err(EvalError::Arithmetic(format!(
+                                "division by zero: {text} is 0 here"
+                            )));
                         }
                         return Ok(None);
                     }
@@ -697,7 +806,10 @@ impl<F: Field> Evaluator<F> {
                                 }
                             } else {
                                 power_of_rational(b, *e).ok_or_else(|| {
-                                    EvalError::Arithmetic(format!("cannot raise {text} to {}", qstr(e)))
+                                    EvalError::Arithmetic(format!(
+                                        "cannot raise {text} to {}",
+                                        qstr(e)
+                                    ))
                                 })?
                             };
                             let p = F::prod_of(&F::from_surd(&v));
@@ -710,7 +822,7 @@ impl<F: Field> Evaluator<F> {
                 CFactor::Symbol(kind, args) => {
                     let mut a = [0i64; 9];
                     for (i, l) in args.iter().enumerate() {
-                        match doubled(l.eval(env)) {
+                        match l.doubled(env) {
                             Some(d) => a[i] = d,
                             None => return Ok(None),
                         }
@@ -738,14 +850,15 @@ impl<F: Field> Evaluator<F> {
             }
         }
         if let Some((ph, text)) = &c.phase {
-            let p = ph.eval(env);
-            if !p.is_integer() {
+            let n = ph.num(env);
+            let d2 = 2 * ph.den;
+            if n % d2 != 0 {
                 return Err(EvalError::PhaseNotInteger {
                     exponent: text.clone(),
-                    value: qstr(&p),
+                    value: qstr(&ph.value(env)),
                 });
             }
-            if p.to_integer().rem_euclid(2) == 1 {
+            if (n / d2).rem_euclid(2) == 1 {
                 F::prod_neg(&mut acc);
             }
         }

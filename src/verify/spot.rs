@@ -90,6 +90,52 @@ pub fn points(exprs: &[&Expr], s: &SpotSettings) -> Vec<Point> {
     out
 }
 
+/// Compares at up to `s.samples` points while the summation points visited
+/// stay within `total` (at least `min_points` points when any fit): the
+/// comparison for inputs whose sums are expensive. `TooLarge` when not even
+/// one point fits.
+pub fn compare_within(
+    lhs: &Expr,
+    rhs: &Expr,
+    s: &SpotSettings,
+    total: u64,
+    min_points: usize,
+) -> Result<SpotReport, EvalError> {
+    let pts = points(&[lhs, rhs], s);
+    let mut ev = Evaluator::<Surd>::new();
+    ev.budget = total;
+    let mut rep = SpotReport {
+        checked: 0,
+        nonzero: 0,
+        mismatches: Vec::new(),
+        values: Vec::new(),
+    };
+    let mut spent: u64 = 0;
+    for p in &pts {
+        if spent >= total && rep.checked >= min_points {
+            break;
+        }
+        let a = ev.eval(lhs, p)?;
+        spent += ev.points_visited();
+        let b = ev.eval(rhs, p)?;
+        spent += ev.points_visited();
+        rep.checked += 1;
+        if !a.is_zero() || !b.is_zero() {
+            rep.nonzero += 1;
+        }
+        if a != b {
+            rep.mismatches.push(Mismatch {
+                at: p.clone(),
+                lhs: a.clone(),
+                rhs: b.clone(),
+            });
+        }
+        rep.values.push((p.clone(), a, b));
+    }
+    rep.mismatches.sort_by_key(|x| point_size(&x.at));
+    Ok(rep)
+}
+
 /// "Size" of a point, to report the smallest counterexample.
 pub fn point_size(p: &Point) -> Q {
     p.values()
