@@ -11,10 +11,17 @@ fn main() {
     match p.apply_first(t, &Default::default(), false) {
         Some((m, out)) => {
             println!("match in {:?}: {:?}\n=> {out}", t0.elapsed(), m.factors);
-            let s = SpotSettings { max_j: recoup::expr::Q::from_integer(2), samples: 20, exhaustive: false, seed: 4 };
+            let s = SpotSettings {
+                max_j: recoup::expr::Q::from_integer(2),
+                samples: 20,
+                exhaustive: false,
+                seed: 4,
+            };
             let r = compare(&e, &out, &s).unwrap();
             println!("agrees: {} ({} / {})", r.agrees(), r.nonzero, r.checked);
-            if let Some(mm) = r.mismatches.first() { println!("{mm:?}"); }
+            if let Some(mm) = r.mismatches.first() {
+                println!("{mm:?}");
+            }
         }
         None => println!("no match ({:?})", t0.elapsed()),
     }

@@ -183,13 +183,16 @@ impl PhaseLattice {
         // than M is eliminated through conservation
         let pri = |n: &Name| first.iter().position(|f| f == n).unwrap_or(usize::MAX);
         columns.sort_by(|a, b| {
-            pri(&a.1).cmp(&pri(&b.1)).then_with(|| rank(a.0).cmp(&rank(b.0))).then_with(|| {
-                if a.0 == Kind::Projection {
-                    b.1.cmp(&a.1)
-                } else {
-                    a.1.cmp(&b.1)
-                }
-            })
+            pri(&a.1)
+                .cmp(&pri(&b.1))
+                .then_with(|| rank(a.0).cmp(&rank(b.0)))
+                .then_with(|| {
+                    if a.0 == Kind::Projection {
+                        b.1.cmp(&a.1)
+                    } else {
+                        a.1.cmp(&b.1)
+                    }
+                })
         });
         let kinds_v: Vec<Kind> = columns.iter().map(|c| c.0).collect();
         let names: Vec<Name> = columns.into_iter().map(|c| c.1).collect();
@@ -336,7 +339,8 @@ impl PhaseLattice {
                         *c = x + sign * y;
                     }
                     let b = self.vec_badness(&cand);
-                    if b < best || (b == best && badness(&self.lin(&cand)) < badness(&self.lin(&v))) {
+                    if b < best || (b == best && badness(&self.lin(&cand)) < badness(&self.lin(&v)))
+                    {
                         if b == best && cand == v {
                             continue;
                         }

@@ -172,7 +172,9 @@ pub fn substitute_free_deltas(t: &Term) -> Term {
     loop {
         let mut changed = false;
         for i in 0..cur.factors.len() {
-            let Factor::Delta(a, b) = &cur.factors[i] else { continue };
+            let Factor::Delta(a, b) = &cur.factors[i] else {
+                continue;
+            };
             let d = a - b;
             // the latest-named free variable with a unit coefficient
             let v = d
@@ -326,7 +328,9 @@ pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
     for t in &e.terms {
         for f in &t.factors {
             for (j, m) in f.columns() {
-                let Some((v, _)) = m.as_signed_var() else { continue };
+                let Some((v, _)) = m.as_signed_var() else {
+                    continue;
+                };
                 if t.bound.contains(v) || j.vars().any(|x| t.bound.contains(x)) {
                     continue;
                 }

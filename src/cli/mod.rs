@@ -6,6 +6,7 @@
 
 mod check;
 mod eval;
+mod graph;
 mod simplify;
 mod table;
 
@@ -66,6 +67,13 @@ enum Command {
     /// or when nothing nonzero was found. Agreement at the points checked
     /// is strong evidence, not a proof for all quantum numbers.
     Check(check::CheckArgs),
+    /// The projection-sum graph of an expression (Graphviz DOT, or --json).
+    ///
+    /// Each 3j (or Clebsch-Gordan coefficient, drawn as its 3j) is a
+    /// vertex; a summed projection shared by two of them is a line labelled
+    /// with its j, drawn from the +m end to the -m end (dashed when both
+    /// ends carry the same sign); other slots are external legs.
+    Graph(graph::GraphArgs),
     /// LaTeX (amsmath) for an expression, for a paper.
     Latex {
         /// the expression (`-` reads standard input)
@@ -99,6 +107,7 @@ pub fn run() -> i32 {
         Command::Table(a) => table::run(a).map(|_| 0),
         Command::Simplify(a) => simplify::run(a).map(|_| 0),
         Command::Check(a) => check::run(a),
+        Command::Graph(a) => graph::run(a).map(|_| 0),
         Command::Latex { expr } => read_arg(&expr)
             .and_then(|t| parse_expr(&t))
             .map(|e| println!("{}", recoup::render::latex::expr(&e)))

@@ -285,12 +285,21 @@ impl Term {
                     }
                     // canonical spelling among delta(a,b), delta(b,a),
                     // delta(-a,-b), delta(-b,-a): no leading minus first
-                    let forms = [(a.clone(), b.clone()), (b.clone(), a.clone()), (-&a, -&b), (-&b, -&a)];
+                    let forms = [
+                        (a.clone(), b.clone()),
+                        (b.clone(), a.clone()),
+                        (-&a, -&b),
+                        (-&b, -&a),
+                    ];
                     let best = forms
                         .into_iter()
                         .min_by(|x, y| {
-                            (x.0.leading_negative(), x.1.leading_negative(), &x.0, &x.1)
-                                .cmp(&(y.0.leading_negative(), y.1.leading_negative(), &y.0, &y.1))
+                            (x.0.leading_negative(), x.1.leading_negative(), &x.0, &x.1).cmp(&(
+                                y.0.leading_negative(),
+                                y.1.leading_negative(),
+                                &y.0,
+                                &y.1,
+                            ))
                         })
                         .unwrap();
                     others.push(Factor::Delta(best.0, best.1));

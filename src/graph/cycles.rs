@@ -115,5 +115,7 @@ pub fn shortest_cycle(g: &Graph) -> Option<Cycle> {
 /// Every shortest cycle through each line (one per line), for choosing.
 pub fn cycles_by_line(g: &Graph) -> Vec<Cycle> {
     let pg = to_petgraph(g);
-    (0..g.lines.len()).filter_map(|e| cycle_through(&pg, g, e)).collect()
+    (0..g.lines.len())
+        .filter_map(|e| cycle_through(&pg, g, e))
+        .collect()
 }

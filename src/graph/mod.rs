@@ -97,7 +97,10 @@ impl Graph {
                     }
                 }
             }
-            let elsewhere = t.factors.iter().any(|f| !matches!(f, Factor::ThreeJ(_) | Factor::Power(..)) && f.has(v));
+            let elsewhere = t
+                .factors
+                .iter()
+                .any(|f| !matches!(f, Factor::ThreeJ(_) | Factor::Power(..)) && f.has(v));
             if compound || elsewhere {
                 g.notes.push(format!(
                     "the summed projection {v} appears inside a compound argument or outside a 3j; it is left as it is"
@@ -180,7 +183,11 @@ impl Graph {
                 members.push(v);
                 for l in self.lines_at(v) {
                     let line = &self.lines[l];
-                    let w = if line.tail.0 == v { line.head.0 } else { line.tail.0 };
+                    let w = if line.tail.0 == v {
+                        line.head.0
+                    } else {
+                        line.tail.0
+                    };
                     if comp[w] == usize::MAX {
                         comp[w] = id;
                         stack.push(w);

@@ -41,7 +41,8 @@ struct Patterns {
 fn patterns() -> &'static Patterns {
     static P: OnceLock<Patterns> = OnceLock::new();
     P.get_or_init(|| {
-        let p = |n: &str| Pattern::new(rule(n)).unwrap_or_else(|| panic!("rule {n} is not a pattern"));
+        let p =
+            |n: &str| Pattern::new(rule(n)).unwrap_or_else(|| panic!("rule {n} is not a pattern"));
         Patterns {
             cg: p("cg-to-3j"),
             theta: p("theta"),
@@ -119,7 +120,8 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
     let ps = patterns();
     let none = Subst::new();
     let comps = g.components();
-    let factors_of = |vs: &[usize]| -> Vec<usize> { vs.iter().map(|&v| g.vertices[v].factor).collect() };
+    let factors_of =
+        |vs: &[usize]| -> Vec<usize> { vs.iter().map(|&v| g.vertices[v].factor).collect() };
     // closed pieces recognised whole
     for c in &comps {
         if g.legs_of(c) != 0 {
@@ -175,4 +177,49 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
         }
     }
     None
+}
+
+/// The expression with every Clebsch–Gordan coefficient written as its 3j
+/// (cg-to-3j), for drawing.
+pub fn with_cg_as_3j(e: &Expr) -> Expr {
+    let p = &patterns().cg;
+    let mut out = Expr::zero();
+    for t in &e.terms {
+        let mut cur = Expr::from_term(t.clone());
+        loop {
+            let mut next = Expr::zero();
+            let mut changed = false;
+            for u in &cur.terms {
+                let idx = u.factors.iter().position(|f| matches!(f, Factor::Cg(_)));
+                let Some(idx) = idx else {
+                    next.push(u.clone());
+                    continue;
+                };
+                let Factor::Cg(a) = &u.factors[idx] else {
+                    unreachable!()
+                };
+                let mut req = Subst::new();
+                for (name, l) in ["j1", "m1", "j2", "m2", "J", "M"].iter().zip(a.iter()) {
+                    req.insert(p.var(name), l.clone());
+                }
+                match p.apply_first(u, &req, false) {
+                    Some((_, r)) => {
+                        for x in r.terms {
+                            next.push(x);
+                        }
+                        changed = true;
+                    }
+                    None => next.push(u.clone()),
+                }
+            }
+            cur = next;
+            if !changed {
+                break;
+            }
+        }
+        for x in cur.terms {
+            out.push(x);
+        }
+    }
+    out
 }

@@ -292,8 +292,7 @@ impl CLin {
         let scale = Q::from_integer(den);
         CLin {
             a0: (two_c0 * scale).to_integer(),
-            t: l
-                .terms()
+            t: l.terms()
                 .map(|(n, c)| (index[n], (*c * scale).to_integer()))
                 .collect(),
             den,
@@ -379,8 +378,12 @@ struct CTerm {
 impl CTerm {
     fn new(t: &Term) -> CTerm {
         let names: Vec<Name> = t.all_vars().into_iter().collect();
-        let index: BTreeMap<Name, usize> =
-            names.iter().cloned().enumerate().map(|(i, n)| (n, i)).collect();
+        let index: BTreeMap<Name, usize> = names
+            .iter()
+            .cloned()
+            .enumerate()
+            .map(|(i, n)| (n, i))
+            .collect();
         let cl = |l: &Lin| CLin::new(l, &index);
         let mut cheap = Vec::new();
         let mut powers = Vec::new();
@@ -477,9 +480,8 @@ fn static_order(
         };
         let v = todo.remove(k);
         assigned[v] = true;
-        let last = |l: &CLin| {
-            l.t.iter().any(|(i, _)| *i == v) && l.t.iter().all(|(i, _)| assigned[*i])
-        };
+        let last =
+            |l: &CLin| l.t.iter().any(|(i, _)| *i == v) && l.t.iter().all(|(i, _)| assigned[*i]);
         out.push(Level {
             var: v,
             pin,
@@ -652,7 +654,9 @@ impl<F: Field> Evaluator<F> {
         let mut env = vec![0i64; n];
         for &i in &c.free {
             let name = &c.names[i];
-            let v = at.get(name).ok_or_else(|| EvalError::Unassigned(name.clone()))?;
+            let v = at
+                .get(name)
+                .ok_or_else(|| EvalError::Unassigned(name.clone()))?;
             env[i] = doubled(*v).ok_or_else(|| EvalError::NotHalfInteger {
                 name: name.clone(),
                 value: qstr(v),

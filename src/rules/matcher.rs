@@ -94,7 +94,11 @@ impl Solver {
         }
         let ps: Vec<&Lin> = self.pending.iter().map(|(p, _)| p).collect();
         let ts: Vec<&Lin> = self.pending.iter().map(|(_, t)| t).collect();
-        let rest: BTreeSet<Name> = vars.iter().filter(|v| !self.subst.contains_key(*v)).cloned().collect();
+        let rest: BTreeSet<Name> = vars
+            .iter()
+            .filter(|v| !self.subst.contains_key(*v))
+            .cloned()
+            .collect();
         let (s2, complete) = unify_partial(&ps, &ts, &rest)?;
         let mut out = self.subst.clone();
         for (k, v) in s2 {
@@ -248,7 +252,15 @@ impl Pattern {
             })
             .collect();
         let mut done = false;
-        self.search(t, &images, &solver, &mut used, &mut chosen, accept, &mut done);
+        self.search(
+            t,
+            &images,
+            &solver,
+            &mut used,
+            &mut chosen,
+            accept,
+            &mut done,
+        );
     }
 
     #[allow(clippy::too_many_arguments)]
@@ -314,7 +326,9 @@ impl Pattern {
                         _ => return false,
                     }
                 }
-            } else if p.is_constant() && (!x.is_constant() || x.constant_part() != p.constant_part()) {
+            } else if p.is_constant()
+                && (!x.is_constant() || x.constant_part() != p.constant_part())
+            {
                 return false;
             }
         }

@@ -9,13 +9,13 @@
 use crate::algebra::normal::{canonical_expr_assuming, free_projection_facts};
 use crate::expr::Q;
 use crate::expr::{Expr, Factor, Term};
+use crate::graph::reduce::next_step;
+use crate::graph::Graph;
 use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
 use crate::rules::apply::Prepared;
 use crate::rules::{catalog, Rule, RuleKind};
 use crate::verify::sample::Point;
-use crate::graph::reduce::next_step;
-use crate::graph::Graph;
 use crate::verify::spot::{compare, compare_within, SpotSettings};
 
 /// One verified rewrite.
@@ -258,7 +258,13 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
             let Some(r) = next_step(t, opts.regge) else {
                 continue;
             };
-            let local = verified_step(&r.rule, &r.source, &r.instance.0, &r.instance.1, &opts.step_spot)?;
+            let local = verified_step(
+                &r.rule,
+                &r.source,
+                &r.instance.0,
+                &r.instance.1,
+                &opts.step_spot,
+            )?;
             let mut next = Expr::zero();
             for (k, u) in cur.terms.iter().enumerate() {
                 if k == i {
