@@ -212,3 +212,39 @@ fn simplify_text_steps_and_json() {
     assert!(out.starts_with("\\begin{align*}"));
     assert!(out.contains("\\text{6j-zero}"));
 }
+
+#[test]
+fn graph_dot_and_json() {
+    // recouple-3 as four CGs (IDENTITIES.md), drawn as its 3j graph
+    let input = "sum(m1, m2, m3, m12, m23: <j1, m1; j2, m2 | j12, m12> <j12, m12; j3, m3 | J, M> <j2, m2; j3, m3 | j23, m23> <j1, m1; j23, m23 | J, M>)";
+    let (code, out, _) = run(&["graph", input], None);
+    assert_eq!(code, 0);
+    insta::assert_snapshot!("graph_recouple_3", out);
+    let (code, out, _) = run(&["graph", input, "--json"], None);
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    let t = &v["terms"][0];
+    assert_eq!(t["vertices"].as_array().unwrap().len(), 4);
+    assert_eq!(t["lines"].as_array().unwrap().len(), 5);
+    assert_eq!(t["legs"].as_array().unwrap().len(), 2);
+}
+
+#[test]
+fn simplify_reduces_a_projection_sum_with_a_trace() {
+    // three-3j-contraction (Edmonds 6.2.8) written with CGs
+    let (code, out, _) = run(
+        &[
+            "simplify",
+            "--steps",
+            "sum(m1, m2: <j1, m1; j2, m2 | J, M> <j1, m1; j2, m2 | J', M'>)",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert!(out.contains("cg-to-3j") && out.contains("bubble"), "{out}");
+    assert!(
+        out.trim_end()
+            .ends_with("delta(J, J') delta(M, M') tri(j1, j2, J)"),
+        "{out}"
+    );
+}

@@ -343,9 +343,12 @@ fn random_cubic_graphs_up_to_20_vertices_reduce_completely() {
 
 /// A cubic multigraph with external legs: `adj[v][s]` is `Some((w, t))`
 /// when slot s of v is joined to slot t of w, `None` for an external leg.
+/// `(vertex, slot)` at the other end of a line, `None` for an external leg.
+type End = Option<(usize, usize)>;
+
 #[derive(Clone, Debug)]
 struct Bare {
-    adj: Vec<Option<[Option<(usize, usize)>; 3]>>,
+    adj: Vec<Option<[End; 3]>>,
 }
 
 impl Bare {
@@ -601,7 +604,8 @@ fn sums_match_the_fewest_over_every_reduction_order() {
     }
     // graphs without triangles, where the order matters most: the cube,
     // the twisted prism, K3,3 and the Petersen graph (common practice)
-    let named: [(&str, usize, Vec<(usize, usize)>); 4] = [
+    type Named = (&'static str, usize, Vec<(usize, usize)>);
+    let named: [Named; 4] = [
         (
             "cube",
             8,

@@ -352,12 +352,12 @@ impl PhaseLattice {
             }
             let neg: Vec<i128> = v.iter().map(|x| -x).collect();
             let b = self.vec_badness(&neg);
-            if b < best || (b == best && badness(&self.lin(&neg)) < badness(&self.lin(&v))) {
-                if neg != v {
-                    best = b;
-                    v = neg;
-                    improved = true;
-                }
+            if (b < best || (b == best && badness(&self.lin(&neg)) < badness(&self.lin(&v))))
+                && neg != v
+            {
+                best = b;
+                v = neg;
+                improved = true;
             }
             if !improved {
                 break;

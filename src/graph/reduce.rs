@@ -223,3 +223,39 @@ pub fn with_cg_as_3j(e: &Expr) -> Expr {
     }
     out
 }
+
+/// The expression with every 3j whose projections are all free written as
+/// a Clebsch–Gordan coefficient (3j-to-cg), or `None` when there is none.
+pub fn with_3j_as_cg(e: &Expr) -> Option<Expr> {
+    let p = Pattern::new(rule("3j-to-cg"))?;
+    let mut out = Expr::zero();
+    let mut changed = false;
+    for t in &e.terms {
+        let mut cur = t.clone();
+        loop {
+            let idx = cur.factors.iter().position(|f| {
+                matches!(f, Factor::ThreeJ(_))
+                    && f.m_slots()
+                        .iter()
+                        .all(|l| !l.has_any(&cur.bound.iter().cloned().collect()))
+            });
+            let Some(idx) = idx else { break };
+            let Factor::ThreeJ(a) = &cur.factors[idx] else {
+                unreachable!()
+            };
+            let mut req = Subst::new();
+            for (name, l) in ["j1", "j2", "J", "m1", "m2", "M"].iter().zip(a.iter()) {
+                req.insert(p.var(name), l.clone());
+            }
+            match p.apply_first(&cur, &req, false) {
+                Some((_, r)) if r.len() == 1 => {
+                    cur = r.terms[0].clone();
+                    changed = true;
+                }
+                _ => break,
+            }
+        }
+        out.push(cur);
+    }
+    changed.then_some(out)
+}

@@ -527,9 +527,12 @@ impl std::hash::Hasher for FastHasher {
 
 type FastMap<K, V> = HashMap<K, V, std::hash::BuildHasherDefault<FastHasher>>;
 
+/// Cached symbol values: `None` for a symbol that is zero.
+type SymbolCache<P> = FastMap<(SymbolKind, [i64; 9]), Option<P>>;
+
 /// Evaluates expressions, caching symbol values and compiled terms.
 pub struct Evaluator<F: Field> {
-    cache: RefCell<FastMap<(SymbolKind, [i64; 9]), Option<F::Prod>>>,
+    cache: RefCell<SymbolCache<F::Prod>>,
     powers: RefCell<HashMap<(Q, Q), F::Prod>>,
     compiled: RefCell<HashMap<Term, Rc<CTerm>>>,
     points: RefCell<u64>,
@@ -683,14 +686,15 @@ impl<F: Field> Evaluator<F> {
         env: &mut Vec<i64>,
         acc: &mut F::Acc,
     ) -> Result<(), EvalError> {
-        if k == order.len() {
-            {
-                let mut p = self.points.borrow_mut();
-                *p += 1;
-                if *p > self.budget {
-                    return Err(EvalError::TooLarge);
-                }
+        // every node of the summation tree counts against the budget
+        {
+            let mut p = self.points.borrow_mut();
+            *p += 1;
+            if *p > self.budget {
+                return Err(EvalError::TooLarge);
             }
+        }
+        if k == order.len() {
             if let Some(p) = self.product(c, env)? {
                 F::acc_add(acc, &p);
             }

@@ -55,7 +55,7 @@ pub struct Outcome {
 
 /// Summation points the final comparison may visit in all (it checks
 /// fewer points, at least 3, when the input's sums are expensive).
-pub const FINAL_BUDGET: u64 = 2_000_000;
+pub const FINAL_BUDGET: u64 = 600_000;
 
 /// Settings of a simplification.
 #[derive(Clone, Debug)]
@@ -300,6 +300,30 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
             continue;
         }
         break;
+    }
+    // where the user wrote Clebsch-Gordan coefficients and no 3j, the 3j
+    // left with free projections read better as CGs again
+    let wrote_cg = input
+        .terms
+        .iter()
+        .any(|t| t.factors.iter().any(|f| matches!(f, Factor::Cg(_))));
+    let wrote_3j = input
+        .terms
+        .iter()
+        .any(|t| t.factors.iter().any(|f| matches!(f, Factor::ThreeJ(_))));
+    if wrote_cg && !wrote_3j {
+        if let Some(next) = crate::graph::reduce::with_3j_as_cg(&cur) {
+            let next = canonical_expr(&next, opts.regge);
+            let r = crate::rules::rule("3j-to-cg");
+            steps.push(verified_step(
+                &r.name,
+                &r.source,
+                &cur,
+                &next,
+                &opts.step_spot,
+            )?);
+            cur = next;
+        }
     }
     let mut notes: Vec<String> = Vec::new();
     for t in &cur.terms {
