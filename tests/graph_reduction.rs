@@ -7,14 +7,14 @@
 //! and the number of sums is compared with the fewest over every reduction
 //! order, found by an independent search on the bare graphs.
 
-use recoup::algebra::symmetry::classical_images;
-use recoup::expr::{Expr, Kind, Name, Term, Q};
+mod common;
+
+use recoup::expr::{Expr, Kind, Q};
 use recoup::simplify::{simplify, Options};
 use recoup::syntax::parse;
 use recoup::verify::check::{check, Verdict};
 use recoup::verify::rng::Rng;
 use recoup::verify::spot::SpotSettings;
-use std::collections::BTreeMap;
 
 fn projection_sums_left(e: &Expr) -> usize {
     e.terms
@@ -34,54 +34,8 @@ fn momentum_sums_left(e: &Expr) -> usize {
     e.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
 }
 
-/// A disguise: variables renamed, factors shuffled, each symbol replaced by
-/// a random image under its symmetry group (with the phase it costs).
 fn disguise(text: &str, rng: &mut Rng) -> Expr {
-    let e = parse(text).unwrap();
-    let mut out = Expr::zero();
-    for t in &e.terms {
-        let mut vars: Vec<Name> = t.all_vars().into_iter().collect();
-        vars.sort();
-        let map: BTreeMap<Name, Name> = vars
-            .iter()
-            .enumerate()
-            .map(|(i, v)| {
-                (
-                    v.clone(),
-                    Name::new(format!(
-                        "{}{}",
-                        if v.as_str().starts_with('m') {
-                            "q"
-                        } else {
-                            "k"
-                        },
-                        i + 1
-                    )),
-                )
-            })
-            .collect();
-        let mut u: Term = t.rename(&map);
-        let mut phase = u.phase.clone();
-        let mut fs = Vec::new();
-        for f in &u.factors {
-            if f.is_symbol() {
-                let imgs = classical_images(f);
-                let img = &imgs[rng.below(imgs.len() as u64) as usize];
-                phase = &phase + &img.phase;
-                fs.push(img.factor.clone());
-            } else {
-                fs.push(f.clone());
-            }
-        }
-        for i in (1..fs.len()).rev() {
-            let k = rng.below(i as u64 + 1) as usize;
-            fs.swap(i, k);
-        }
-        u.factors = fs;
-        u.phase = phase;
-        out.push(u.normalized());
-    }
-    out
+    common::disguise(text, rng)
 }
 
 fn settings(seed: u64) -> SpotSettings {

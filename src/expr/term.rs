@@ -293,13 +293,14 @@ impl Term {
                     ];
                     let best = forms
                         .into_iter()
-                        .min_by(|x, y| {
-                            (x.0.leading_negative(), x.1.leading_negative(), &x.0, &x.1).cmp(&(
-                                y.0.leading_negative(),
-                                y.1.leading_negative(),
-                                &y.0,
-                                &y.1,
-                            ))
+                        .min_by_key(|x| {
+                            (
+                                x.0.is_constant(),
+                                x.0.leading_negative(),
+                                x.1.leading_negative(),
+                                x.0.clone(),
+                                x.1.clone(),
+                            )
                         })
                         .unwrap();
                     others.push(Factor::Delta(best.0, best.1));

@@ -61,6 +61,19 @@ impl Rule {
         lhs: &str,
         rhs: &str,
     ) -> Result<Rule, RuleError> {
+        Self::with_unused(name, kind, source, lhs, rhs, &[])
+    }
+
+    /// `new`, allowing the listed left-side variables to be absent on the
+    /// right (declared, so an accidental omission is still an error).
+    pub fn with_unused(
+        name: &str,
+        kind: RuleKind,
+        source: &str,
+        lhs: &str,
+        rhs: &str,
+        unused: &[Name],
+    ) -> Result<Rule, RuleError> {
         let err = |m: String| RuleError {
             name: name.to_string(),
             message: m,
@@ -80,7 +93,15 @@ impl Rule {
             return Err(err("the left side must be a single term".into()));
         }
         let lv: BTreeSet<Name> = l.free_vars();
-        let rv: BTreeSet<Name> = r.free_vars();
+        let mut rv: BTreeSet<Name> = r.free_vars();
+        for u in unused {
+            if !lv.contains(u) || rv.contains(u) {
+                return Err(err(format!(
+                    "{u} is declared unused but is not a left-side variable missing on the right"
+                )));
+            }
+            rv.insert(u.clone());
+        }
         if lv != rv {
             let only_l: Vec<String> = lv.difference(&rv).map(|n| n.to_string()).collect();
             let only_r: Vec<String> = rv.difference(&lv).map(|n| n.to_string()).collect();
@@ -116,15 +137,23 @@ pub fn rule(name: &str) -> &'static Rule {
 /// Parses catalog text (the format of `catalog.txt`).
 pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
     let mut out = Vec::new();
-    let mut head: Option<(String, RuleKind, String)> = None;
+    type Head = (String, RuleKind, String, Vec<Name>);
+    let mut head: Option<Head> = None;
     let mut lhs = String::new();
-    let flush = |head: &mut Option<(String, RuleKind, String)>,
+    let flush = |head: &mut Option<Head>,
                  lhs: &mut String,
                  rhs: &str,
                  out: &mut Vec<Rule>|
      -> Result<(), RuleError> {
-        if let Some((n, k, s)) = head.take() {
-            out.push(Rule::new(&n, k, &s, lhs.trim(), rhs.trim())?);
+        if let Some((n, k, s, unused)) = head.take() {
+            out.push(Rule::with_unused(
+                &n,
+                k,
+                &s,
+                lhs.trim(),
+                rhs.trim(),
+                &unused,
+            )?);
         }
         lhs.clear();
         Ok(())
@@ -152,7 +181,17 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
                     })
                 }
             };
-            head = Some((name.to_string(), kind, source.trim().to_string()));
+            let (source, unused) = match source.split_once("| unused:") {
+                Some((s, u)) => (
+                    s,
+                    u.split(',')
+                        .map(|x| Name::new(x.trim()))
+                        .filter(|n| !n.as_str().is_empty())
+                        .collect(),
+                ),
+                None => (source, Vec::new()),
+            };
+            head = Some((name.to_string(), kind, source.trim().to_string(), unused));
         } else if let Some(r) = line.strip_prefix("==") {
             flush(&mut head, &mut lhs, r, &mut out)?;
         } else {

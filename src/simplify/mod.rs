@@ -196,6 +196,70 @@ fn sums_stay_bounded(e: &Expr) -> bool {
     })
 }
 
+/// The catalog's sum identities as prepared patterns.
+fn sum_patterns() -> &'static [crate::rules::matcher::Pattern] {
+    static P: std::sync::OnceLock<Vec<crate::rules::matcher::Pattern>> = std::sync::OnceLock::new();
+    P.get_or_init(|| {
+        catalog()
+            .iter()
+            .filter(|r| r.kind == RuleKind::MomentumSum)
+            .filter_map(crate::rules::matcher::Pattern::new)
+            .collect()
+    })
+}
+
+/// One application of a sum identity to some term (classical symmetries
+/// first, then Regge's), verified on its instance.
+fn momentum_sum_step(cur: &Expr, opts: &Options) -> Result<Option<(Step, Expr)>, SimplifyError> {
+    let extra: Vec<crate::rules::matcher::Pattern> = opts
+        .extra_rules
+        .iter()
+        .filter(|r| r.kind == RuleKind::MomentumSum)
+        .filter_map(crate::rules::matcher::Pattern::new)
+        .collect();
+    for regge in [false, true] {
+        for (i, t) in cur.terms.iter().enumerate() {
+            if t.bound.is_empty() {
+                continue;
+            }
+            for p in extra.iter().chain(sum_patterns().iter()) {
+                let Some((m, replacement)) = p.apply_first(t, &Default::default(), regge) else {
+                    continue;
+                };
+                let (il, ir) = p.instance(t, &m);
+                let local = verified_step(&p.name, &p.source, &il, &ir, &opts.step_spot)?;
+                let mut next = Expr::zero();
+                for (k, u) in cur.terms.iter().enumerate() {
+                    if k == i {
+                        for x in &replacement.terms {
+                            next.push(x.clone());
+                        }
+                    } else {
+                        next.push(u.clone());
+                    }
+                }
+                let source = if regge {
+                    format!("{} (matched through a Regge symmetry)", p.source)
+                } else {
+                    p.source.clone()
+                };
+                return Ok(Some((
+                    Step {
+                        rule: p.name.clone(),
+                        source,
+                        before: cur.clone(),
+                        after: next.clone(),
+                        checked: local.checked,
+                        nonzero: local.nonzero,
+                    },
+                    next,
+                )));
+            }
+        }
+    }
+    Ok(None)
+}
+
 /// Simplifies an expression with the catalog's rules, verifying each step.
 pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
     let mut steps = Vec::new();
@@ -287,6 +351,12 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
             cur = next;
             continue 'outer;
         }
+        // sums over angular momenta: the catalog's identities
+        if let Some((step, next)) = momentum_sum_step(&cur, opts)? {
+            steps.push(step);
+            cur = canonical_expr(&next, opts.regge);
+            continue;
+        }
         if let Some(next) = exact_values(&cur) {
             let next = canonical_expr(&next, opts.regge);
             steps.push(verified_step(
@@ -328,6 +398,22 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
     let mut notes: Vec<String> = Vec::new();
     for t in &cur.terms {
         for n in Graph::of_term(t).notes {
+            if !notes.contains(&n) {
+                notes.push(n);
+            }
+        }
+        let kinds = t.kinds();
+        let left: Vec<String> = t
+            .bound
+            .iter()
+            .filter(|b| kinds.get(*b) == Some(&crate::expr::Kind::AngularMomentum))
+            .map(|b| b.to_string())
+            .collect();
+        if !left.is_empty() {
+            let n = format!(
+                "no identity of the catalog applies to the sum over {}; it is left in canonical form",
+                left.join(", ")
+            );
             if !notes.contains(&n) {
                 notes.push(n);
             }

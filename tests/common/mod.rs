@@ -1,0 +1,78 @@
+//! Helpers shared by the simplification tests: disguising an expression
+//! (renamed variables, shuffled factors, symbols in random symmetric
+//! spellings) and spot-check settings.
+
+#![allow(dead_code)]
+
+use recoup::algebra::symmetry::classical_images;
+use recoup::expr::{Expr, Name, Term, Q};
+use recoup::syntax::parse;
+use recoup::verify::rng::Rng;
+use recoup::verify::spot::SpotSettings;
+use std::collections::BTreeMap;
+
+/// Renames every variable (`m…` to `q1, q2, …`, others to `k1, k2, …`).
+pub fn rename_all(e: &Expr) -> Expr {
+    let mut out = Expr::zero();
+    for t in &e.terms {
+        let vars: Vec<Name> = t.all_vars().into_iter().collect();
+        let map: BTreeMap<Name, Name> = vars
+            .iter()
+            .enumerate()
+            .map(|(i, v)| {
+                let p = if v.as_str().starts_with('m') {
+                    "q"
+                } else {
+                    "k"
+                };
+                (v.clone(), Name::new(format!("{p}{}", i + 1)))
+            })
+            .collect();
+        out.push(t.rename(&map));
+    }
+    out
+}
+
+/// Every symbol replaced by a random image under its group (with its
+/// phase), factors shuffled.
+pub fn respell(e: &Expr, rng: &mut Rng) -> Expr {
+    let mut out = Expr::zero();
+    for t in &e.terms {
+        let mut u: Term = t.clone();
+        let mut phase = u.phase.clone();
+        let mut fs = Vec::new();
+        for f in &u.factors {
+            if f.is_symbol() {
+                let imgs = classical_images(f);
+                let img = &imgs[rng.below(imgs.len() as u64) as usize];
+                phase = &phase + &img.phase;
+                fs.push(img.factor.clone());
+            } else {
+                fs.push(f.clone());
+            }
+        }
+        for i in (1..fs.len()).rev() {
+            let k = rng.below(i as u64 + 1) as usize;
+            fs.swap(i, k);
+        }
+        u.factors = fs;
+        u.phase = phase;
+        out.push(u.normalized());
+    }
+    out
+}
+
+/// Renamed and respelled.
+pub fn disguise(text: &str, rng: &mut Rng) -> Expr {
+    respell(&rename_all(&parse(text).unwrap()), rng)
+}
+
+/// Spot-check settings with small j.
+pub fn settings(seed: u64) -> SpotSettings {
+    SpotSettings {
+        max_j: Q::from_integer(2),
+        samples: 24,
+        exhaustive: false,
+        seed,
+    }
+}
