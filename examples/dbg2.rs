@@ -1,5 +1,7 @@
 fn main() {
     let e = recoup::syntax::parse(&std::env::args().nth(1).unwrap()).unwrap();
-    let t = recoup::algebra::normal::substitute_free_deltas(&e.terms[0]);
-    println!("{}", recoup::expr::Expr::from_term(t));
+    for _ in 0..10 {
+        let out = recoup::simplify::simplify(&e, &recoup::simplify::Options::default()).unwrap();
+        std::hint::black_box(out);
+    }
 }

@@ -229,6 +229,53 @@ impl Pattern {
                 *u = !a.contains(&i);
             }
         }
+        // a quick count: the term needs at least the pattern's symbols of
+        // each kind among the allowed factors
+        for pat in &self.symbols {
+            let need = self
+                .symbols
+                .iter()
+                .filter(|p| std::mem::discriminant(*p) == std::mem::discriminant(pat))
+                .count();
+            let have = t
+                .factors
+                .iter()
+                .enumerate()
+                .filter(|(i, f)| {
+                    !used[*i] && std::mem::discriminant(*f) == std::mem::discriminant(pat)
+                })
+                .count();
+            if have < need {
+                return;
+            }
+        }
+        // each summed pattern variable needs a summed term variable found in
+        // exactly as many symbols (it may appear in no others)
+        let mut need: Vec<usize> = self
+            .bound
+            .iter()
+            .map(|b| self.symbols.iter().filter(|f| f.has(b)).count())
+            .collect();
+        let mut have: Vec<usize> = t
+            .bound
+            .iter()
+            .map(|b| {
+                t.factors
+                    .iter()
+                    .filter(|f| f.is_symbol() && f.has(b))
+                    .count()
+            })
+            .collect();
+        need.sort_unstable();
+        have.sort_unstable();
+        for n in need {
+            match have.iter().position(|h| *h == n) {
+                Some(p) => {
+                    have.remove(p);
+                }
+                None => return,
+            }
+        }
         let mut solver = Solver::default();
         for (k, v) in required {
             if !solver.add(&Lin::var(k.clone()), v, &self.vars) {
@@ -236,11 +283,15 @@ impl Pattern {
             }
         }
         let mut chosen: Vec<(usize, Image)> = Vec::new();
+        // images only for the factors the pattern can use
+        let kinds: Vec<std::mem::Discriminant<Factor>> =
+            self.symbols.iter().map(std::mem::discriminant).collect();
         let images: Vec<Vec<Image>> = t
             .factors
             .iter()
-            .map(|f| {
-                if f.is_symbol() {
+            .enumerate()
+            .map(|(i, f)| {
+                if f.is_symbol() && !used[i] && kinds.contains(&std::mem::discriminant(f)) {
                     if regge {
                         regge_images(f)
                     } else {

@@ -1,0 +1,33 @@
+//! Every entry of the built-in identity catalog (src/rules/catalog.txt,
+//! sources beside each entry there) is spot-evaluated exactly: left side
+//! against right side at random admissible points, so a wrong entry cannot
+//! ship.
+
+use recoup::expr::Q;
+use recoup::rules::catalog;
+use recoup::verify::spot::{compare, SpotSettings};
+
+#[test]
+fn every_catalog_entry_holds() {
+    let all = catalog();
+    assert!(all.len() >= 20, "{} entries", all.len());
+    for r in all {
+        let heavy = r.lhs.terms[0].bound.len() > 5;
+        let s = SpotSettings {
+            max_j: Q::from_integer(if heavy { 2 } else { 3 }),
+            samples: if heavy { 10 } else { 30 },
+            exhaustive: false,
+            seed: 17,
+        };
+        let rep = compare(&r.lhs, &r.rhs, &s).unwrap_or_else(|e| panic!("{}: {e}", r.name));
+        assert!(
+            rep.mismatches.is_empty(),
+            "{} ({}) fails: {:?}",
+            r.name,
+            r.source,
+            rep.mismatches[0]
+        );
+        assert!(rep.nonzero > 0, "{}: nothing nonzero", r.name);
+        assert!(!r.source.is_empty(), "{} has no source", r.name);
+    }
+}
