@@ -22,6 +22,7 @@ pub mod algebra;
 pub mod expr;
 pub mod graph;
 pub mod numeric;
+pub mod recouple;
 pub mod render;
 pub mod rules;
 pub mod simplify;

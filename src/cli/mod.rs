@@ -7,6 +7,7 @@
 mod check;
 mod eval;
 mod graph;
+mod recouple;
 mod simplify;
 mod table;
 
@@ -74,6 +75,13 @@ enum Command {
     /// with its j, drawn from the +m end to the -m end (dashed when both
     /// ends carry the same sign); other slots are external legs.
     Graph(graph::GraphArgs),
+    /// The recoupling coefficient between two coupling schemes.
+    ///
+    /// FROM and TO are binary coupling trees such as "((j1, j2) j12, j3) J"
+    /// and "(j1, (j2, j3) j23) J"; the result is <FROM|TO> in hats, phases,
+    /// 6j/9j symbols and the fewest sums found, every step verified.
+    /// --matrix with numeric leaves prints the exact transformation matrix.
+    Recouple(recouple::RecoupleArgs),
     /// LaTeX (amsmath) for an expression, for a paper.
     Latex {
         /// the expression (`-` reads standard input)
@@ -108,6 +116,7 @@ pub fn run() -> i32 {
         Command::Simplify(a) => simplify::run(a).map(|_| 0),
         Command::Check(a) => check::run(a),
         Command::Graph(a) => graph::run(a).map(|_| 0),
+        Command::Recouple(a) => recouple::run(a).map(|_| 0),
         Command::Latex { expr } => read_arg(&expr)
             .and_then(|t| parse_expr(&t))
             .map(|e| println!("{}", recoup::render::latex::expr(&e)))

@@ -1,0 +1,233 @@
+//! The exact transformation matrix between two coupled bases for numeric
+//! leaves: for each allowed total J, rows are labelled by the first
+//! scheme's intermediate values and columns by the second's; entries are
+//! exact recoupling coefficients; each matrix is checked to be orthogonal
+//! before it is shown.
+
+use super::{recouple, RecoupleError};
+use crate::expr::{CouplingTree, Name, Q};
+use crate::numeric::eval::{Assignment, Evaluator};
+use crate::numeric::Surd;
+use crate::simplify::Options;
+use num_traits::One;
+
+/// Largest basis a matrix is printed for.
+pub const MAX_DIM: usize = 200;
+
+/// One block of the matrix, for one total J.
+#[derive(Clone, Debug)]
+pub struct Block {
+    /// the total
+    pub total: Q,
+    /// the intermediate names of the first scheme
+    pub row_names: Vec<Name>,
+    /// the intermediate names of the second scheme
+    pub col_names: Vec<Name>,
+    /// row labels (values of the first scheme's intermediates)
+    pub rows: Vec<Vec<Q>>,
+    /// column labels
+    pub cols: Vec<Vec<Q>>,
+    /// entries
+    pub entries: Vec<Vec<Surd>>,
+}
+
+fn qstr(q: &Q) -> String {
+    crate::expr::lin::fmt_q(q)
+}
+
+/// Every assignment of a tree's intermediate labels allowed by the triangle
+/// rules, for a given total (leaves numeric).
+fn labelings(t: &CouplingTree) -> Vec<Vec<(Name, Q)>> {
+    // returns (value of this node, assignments below) pairs
+    fn go(t: &CouplingTree) -> Vec<(Q, Vec<(Name, Q)>)> {
+        match t {
+            CouplingTree::Leaf(l) => vec![(l.constant_part(), Vec::new())],
+            CouplingTree::Node(a, b, l) => {
+                let mut out = Vec::new();
+                for (va, sa) in go(a) {
+                    for (vb, sb) in go(b) {
+                        let lo = if va > vb { va - vb } else { vb - va };
+                        let mut v = lo;
+                        while v <= va + vb {
+                            let mut s = sa.clone();
+                            s.extend(sb.iter().cloned());
+                            match l.as_var() {
+                                Some(n) => {
+                                    s.push((n.clone(), v));
+                                    out.push((v, s));
+                                }
+                                None => {
+                                    if l.constant_part() == v {
+                                        out.push((v, s));
+                                    }
+                                }
+                            }
+                            v += Q::one();
+                        }
+                    }
+                }
+                out
+            }
+        }
+    }
+    go(t).into_iter().map(|(v, mut s)| {
+        // the root's own value goes last under the key ""
+        s.push((Name::new("\u{3}total"), v));
+        s
+    }).collect()
+}
+
+/// The matrices for every total J.
+pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, RecoupleError> {
+    for l in from.leaves() {
+        if !l.is_constant() {
+            return Err(RecoupleError::Label(format!(
+                "{l}: --matrix needs numeric leaves such as (1/2, (1, 1/2) x) J"
+            )));
+        }
+    }
+    let r = recouple(from, to, &Options::default())?;
+    let f = &r.outcome.result;
+    let root = from.label().as_var().cloned();
+    let lf = labelings(from);
+    let lt = labelings(to);
+    let total_of = |s: &Vec<(Name, Q)>| s.last().unwrap().1;
+    let mut totals: Vec<Q> = lf.iter().map(total_of).collect();
+    totals.sort();
+    totals.dedup();
+    let ev = Evaluator::<Surd>::new();
+    let mut out = Vec::new();
+    for jt in totals {
+        let rows: Vec<&Vec<(Name, Q)>> = lf.iter().filter(|s| total_of(s) == jt).collect();
+        let cols: Vec<&Vec<(Name, Q)>> = lt.iter().filter(|s| total_of(s) == jt).collect();
+        if rows.len() > MAX_DIM {
+            return Err(RecoupleError::Label(format!(
+                "the basis for J = {} has {} states; at most {MAX_DIM} are printed",
+                qstr(&jt),
+                rows.len()
+            )));
+        }
+        let mut entries = Vec::new();
+        for rs in &rows {
+            let mut line = Vec::new();
+            for cs in &cols {
+                let mut at = Assignment::new();
+                for (n, v) in rs.iter().chain(cs.iter()) {
+                    if !n.as_str().starts_with('\u{3}') {
+                        at.insert(n.clone(), *v);
+                    }
+                }
+                if let Some(rn) = &root {
+                    at.insert(rn.clone(), jt);
+                }
+                // the total projection, if it survived, is set to J
+                for v in f.free_vars() {
+                    at.entry(v).or_insert(jt);
+                }
+                let v = ev.eval(f, &at).map_err(|e| RecoupleError::Label(e.to_string()))?;
+                line.push(v);
+            }
+            entries.push(line);
+        }
+        // orthogonality: Σ_k A_ik A_jk = δ_ij (real orthogonal)
+        let n = rows.len();
+        if cols.len() != n {
+            return Err(RecoupleError::Label(format!(
+                "the two bases for J = {} have {} and {} states",
+                qstr(&jt),
+                n,
+                cols.len()
+            )));
+        }
+        for i in 0..n {
+            for k in 0..n {
+                let mut s = Surd::zero();
+                for c in 0..n {
+                    s = &s + &(&entries[i][c] * &entries[k][c]);
+                }
+                let want = if i == k { Surd::one() } else { Surd::zero() };
+                if s != want {
+                    return Err(RecoupleError::Label(format!(
+                        "internal error: the matrix for J = {} is not orthogonal (row {i} with row {k} gives {s})",
+                        qstr(&jt)
+                    )));
+                }
+            }
+        }
+        let shown = |n: &Name| !n.as_str().starts_with('\u{3}') && Some(n) != root.as_ref();
+        let names = |s: &Vec<(Name, Q)>| -> Vec<Name> {
+            s.iter().filter(|(n, _)| shown(n)).map(|(n, _)| n.clone()).collect()
+        };
+        out.push(Block {
+            total: jt,
+            row_names: rows.first().map(|s| names(s)).unwrap_or_default(),
+            col_names: cols.first().map(|s| names(s)).unwrap_or_default(),
+            rows: rows.iter().map(|s| s.iter().filter(|(n, _)| shown(n)).map(|(_, v)| *v).collect()).collect(),
+            cols: cols.iter().map(|s| s.iter().filter(|(n, _)| shown(n)).map(|(_, v)| *v).collect()).collect(),
+            entries,
+        });
+    }
+    Ok(out)
+}
+
+fn label(names: &[Name], vals: &[Q]) -> String {
+    names
+        .iter()
+        .zip(vals)
+        .map(|(n, v)| format!("{n}={}", qstr(v)))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// The matrices as text: one block per total, rows and columns labelled.
+pub fn text(blocks: &[Block]) -> String {
+    let mut s = String::new();
+    for b in blocks {
+        s.push_str(&format!(
+            "J = {}: rows {} (first scheme), columns {} (second scheme); orthogonality checked\n",
+            qstr(&b.total),
+            if b.row_names.is_empty() { "-".to_string() } else { b.row_names.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ") },
+            if b.col_names.is_empty() { "-".to_string() } else { b.col_names.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ") },
+        ));
+        let rl: Vec<String> = b.rows.iter().map(|r| label(&b.row_names, r)).collect();
+        let cl: Vec<String> = b.cols.iter().map(|c| label(&b.col_names, c)).collect();
+        let cells: Vec<Vec<String>> = b.entries.iter().map(|r| r.iter().map(|v| v.to_string()).collect()).collect();
+        let w0 = rl.iter().map(|x| x.len()).max().unwrap_or(0).max(1);
+        let mut widths: Vec<usize> = cl.iter().map(|c| c.len()).collect();
+        for r in &cells {
+            for (k, c) in r.iter().enumerate() {
+                widths[k] = widths[k].max(c.len());
+            }
+        }
+        s.push_str(&format!("  {:w0$}", "", w0 = w0));
+        for (k, c) in cl.iter().enumerate() {
+            s.push_str(&format!("  {:>w$}", c, w = widths[k]));
+        }
+        s.push('\n');
+        for (i, r) in cells.iter().enumerate() {
+            s.push_str(&format!("  {:<w0$}", rl[i], w0 = w0));
+            for (k, c) in r.iter().enumerate() {
+                s.push_str(&format!("  {:>w$}", c, w = widths[k]));
+            }
+            s.push('\n');
+        }
+        s.push('\n');
+    }
+    s
+}
+
+/// The matrices as JSON.
+pub fn json(blocks: &[Block]) -> serde_json::Value {
+    let bs: Vec<serde_json::Value> = blocks
+        .iter()
+        .map(|b| {
+            serde_json::json!({
+                "J": qstr(&b.total),
+                "rows": b.rows.iter().map(|r| b.row_names.iter().zip(r).map(|(n, v)| (n.to_string(), serde_json::Value::String(qstr(v)))).collect::<serde_json::Map<_, _>>()).collect::<Vec<_>>(),
+                "columns": b.cols.iter().map(|r| b.col_names.iter().zip(r).map(|(n, v)| (n.to_string(), serde_json::Value::String(qstr(v)))).collect::<serde_json::Map<_, _>>()).collect::<Vec<_>>(),
+                "entries": b.entries.iter().map(|r| r.iter().map(|v| v.to_string()).collect::<Vec<_>>()).collect::<Vec<_>>(),
+            })
+        })
+        .collect();
+    serde_json::json!({ "blocks": bs })
+}
