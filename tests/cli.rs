@@ -248,3 +248,101 @@ fn simplify_reduces_a_projection_sum_with_a_trace() {
         "{out}"
     );
 }
+
+#[test]
+fn recouple_results_and_errors() {
+    // recouple-3 (Edmonds 6.1.5)
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "((j1, j2) j12, j3) J",
+            "(j1, (j2, j3) j23) J",
+            "--json",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["sums"], 0);
+    assert_eq!(v["symbols"]["6j"], 1);
+    // recouple-4 with --only-6j: the 9j becomes a sum over x of three 6j
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "((j1, j2) j12, (j3, j4) j34) J",
+            "((j1, j3) j13, (j2, j4) j24) J",
+            "--only-6j",
+            "--json",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    let v: serde_json::Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["sums"], 1);
+    assert_eq!(v["symbols"]["9j"], 0);
+    assert_eq!(v["symbols"]["6j"], 3);
+    // an exact value with --at: stretched couplings give 1
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "((j1, j2) j12, j3) J",
+            "(j1, (j2, j3) j23) J",
+            "--at",
+            "j1=1/2,j2=1/2,j3=1,j12=1,j23=3/2,J=2",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert!(out.ends_with("1\t1\n"), "{out}");
+    // the matrix for numeric leaves
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "--matrix",
+            "((1/2, 1/2) s, 1/2) J",
+            "(1/2, (1/2, 1/2) t) J",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    insta::assert_snapshot!("recouple_matrix_three_spins", out);
+    // errors: exit 2 with a message
+    for (f, t, what) in [
+        (
+            "((j1, j2) j12, j3) J",
+            "(j1, (j2, j4) j23) J",
+            "same angular momenta",
+        ),
+        (
+            "((j1, j1) j12, j3) J",
+            "(j1, (j1, j3) j23) J",
+            "coupled twice",
+        ),
+        (
+            "((j1, j2) j12, j3) J",
+            "(j1, (j2, j3) j23) K",
+            "total angular momenta differ",
+        ),
+        (
+            "((j1, j2) j12, j3) J",
+            "(j1, (j2, j3) j12) J",
+            "two different couplings",
+        ),
+        (
+            "((j1, j2, j4) j12, j3) J",
+            "(j1, (j2, j3) j23) J",
+            "exactly two",
+        ),
+        (
+            "((j1, j2), j3) J",
+            "(j1, (j2, j3) j23) J",
+            "name of its resultant",
+        ),
+        ("((j1, j2) j12, j3", "(j1, (j2, j3) j23) J", "line 1"),
+    ] {
+        let (code, out, err) = run(&["recouple", f, t], None);
+        assert_eq!(code, 2, "{f} | {t}");
+        assert!(out.is_empty());
+        assert!(err.contains(what), "{f} | {t}: {err}");
+    }
+}

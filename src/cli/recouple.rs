@@ -38,7 +38,8 @@ pub struct RecoupleArgs {
 }
 
 fn tree(s: &str) -> Result<recoup::expr::CouplingTree, Failure> {
-    recoup::syntax::parse_tree(&read_arg(s)?).map_err(|e| Failure::input(format!("parse error at {e}")))
+    recoup::syntax::parse_tree(&read_arg(s)?)
+        .map_err(|e| Failure::input(format!("parse error at {e}")))
 }
 
 pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
@@ -54,7 +55,11 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
         return Ok(());
     }
     let r = recouple(&from, &to, &Options::default()).map_err(|e| Failure::input(e.to_string()))?;
-    let result = if a.only_6j { only_6j(&r.outcome.result) } else { r.outcome.result.clone() };
+    let result = if a.only_6j {
+        only_6j(&r.outcome.result)
+    } else {
+        r.outcome.result.clone()
+    };
     let value = match &a.at {
         Some(s) => {
             let at = parse_assignment(s)?;
@@ -66,9 +71,19 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
         None => None,
     };
     if a.json {
-        let sums = result.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0);
+        let sums = result
+            .terms
+            .iter()
+            .map(|t| t.bound.len())
+            .max()
+            .unwrap_or(0);
         let count = |k: fn(&recoup::expr::Factor) -> bool| {
-            result.terms.iter().map(|t| t.factors.iter().filter(|f| k(f)).count()).max().unwrap_or(0)
+            result
+                .terms
+                .iter()
+                .map(|t| t.factors.iter().filter(|f| k(f)).count())
+                .max()
+                .unwrap_or(0)
         };
         let six = count(|f| matches!(f, recoup::expr::Factor::SixJ(_)));
         let nine = count(|f| matches!(f, recoup::expr::Factor::NineJ(_)));
@@ -89,7 +104,14 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
     if a.steps {
         println!("overlap: {}", r.overlap);
         for (i, s) in r.outcome.steps.iter().enumerate() {
-            println!("step {}: {} ({}) [verified at {} points, {} nonzero]", i + 1, s.rule, s.source, s.checked, s.nonzero);
+            println!(
+                "step {}: {} ({}) [verified at {} points, {} nonzero]",
+                i + 1,
+                s.rule,
+                s.source,
+                s.checked,
+                s.nonzero
+            );
             println!("  = {}", s.after);
         }
         for n in &r.outcome.notes {

@@ -70,11 +70,14 @@ fn labelings(t: &CouplingTree) -> Vec<Vec<(Name, Q)>> {
             }
         }
     }
-    go(t).into_iter().map(|(v, mut s)| {
-        // the root's own value goes last under the key ""
-        s.push((Name::new("\u{3}total"), v));
-        s
-    }).collect()
+    go(t)
+        .into_iter()
+        .map(|(v, mut s)| {
+            // the root's own value goes last under the key ""
+            s.push((Name::new("\u{3}total"), v));
+            s
+        })
+        .collect()
 }
 
 /// The matrices for every total J.
@@ -124,7 +127,9 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
                 for v in f.free_vars() {
                     at.entry(v).or_insert(jt);
                 }
-                let v = ev.eval(f, &at).map_err(|e| RecoupleError::Label(e.to_string()))?;
+                let v = ev
+                    .eval(f, &at)
+                    .map_err(|e| RecoupleError::Label(e.to_string()))?;
                 line.push(v);
             }
             entries.push(line);
@@ -156,14 +161,33 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
         }
         let shown = |n: &Name| !n.as_str().starts_with('\u{3}') && Some(n) != root.as_ref();
         let names = |s: &Vec<(Name, Q)>| -> Vec<Name> {
-            s.iter().filter(|(n, _)| shown(n)).map(|(n, _)| n.clone()).collect()
+            s.iter()
+                .filter(|(n, _)| shown(n))
+                .map(|(n, _)| n.clone())
+                .collect()
         };
         out.push(Block {
             total: jt,
             row_names: rows.first().map(|s| names(s)).unwrap_or_default(),
             col_names: cols.first().map(|s| names(s)).unwrap_or_default(),
-            rows: rows.iter().map(|s| s.iter().filter(|(n, _)| shown(n)).map(|(_, v)| *v).collect()).collect(),
-            cols: cols.iter().map(|s| s.iter().filter(|(n, _)| shown(n)).map(|(_, v)| *v).collect()).collect(),
+            rows: rows
+                .iter()
+                .map(|s| {
+                    s.iter()
+                        .filter(|(n, _)| shown(n))
+                        .map(|(_, v)| *v)
+                        .collect()
+                })
+                .collect(),
+            cols: cols
+                .iter()
+                .map(|s| {
+                    s.iter()
+                        .filter(|(n, _)| shown(n))
+                        .map(|(_, v)| *v)
+                        .collect()
+                })
+                .collect(),
             entries,
         });
     }
@@ -186,12 +210,32 @@ pub fn text(blocks: &[Block]) -> String {
         s.push_str(&format!(
             "J = {}: rows {} (first scheme), columns {} (second scheme); orthogonality checked\n",
             qstr(&b.total),
-            if b.row_names.is_empty() { "-".to_string() } else { b.row_names.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ") },
-            if b.col_names.is_empty() { "-".to_string() } else { b.col_names.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(", ") },
+            if b.row_names.is_empty() {
+                "-".to_string()
+            } else {
+                b.row_names
+                    .iter()
+                    .map(|n| n.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            },
+            if b.col_names.is_empty() {
+                "-".to_string()
+            } else {
+                b.col_names
+                    .iter()
+                    .map(|n| n.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            },
         ));
         let rl: Vec<String> = b.rows.iter().map(|r| label(&b.row_names, r)).collect();
         let cl: Vec<String> = b.cols.iter().map(|c| label(&b.col_names, c)).collect();
-        let cells: Vec<Vec<String>> = b.entries.iter().map(|r| r.iter().map(|v| v.to_string()).collect()).collect();
+        let cells: Vec<Vec<String>> = b
+            .entries
+            .iter()
+            .map(|r| r.iter().map(|v| v.to_string()).collect())
+            .collect();
         let w0 = rl.iter().map(|x| x.len()).max().unwrap_or(0).max(1);
         let mut widths: Vec<usize> = cl.iter().map(|c| c.len()).collect();
         for r in &cells {

@@ -74,7 +74,11 @@ pub fn validate(from: &CouplingTree, to: &CouplingTree) -> Result<(), RecoupleEr
         let only_a: Vec<&str> = a.difference(&b).map(|s| s.as_str()).collect();
         let only_b: Vec<&str> = b.difference(&a).map(|s| s.as_str()).collect();
         let msg = if only_a.is_empty() && only_b.is_empty() {
-            format!("the numeric leaves differ ({} against {})", lf.join(", "), lt.join(", "))
+            format!(
+                "the numeric leaves differ ({} against {})",
+                lf.join(", "),
+                lt.join(", ")
+            )
         } else {
             format!(
                 "only in the first: [{}]; only in the second: [{}]",
@@ -85,7 +89,10 @@ pub fn validate(from: &CouplingTree, to: &CouplingTree) -> Result<(), RecoupleEr
         return Err(RecoupleError::Leaves(msg));
     }
     if from.label() != to.label() {
-        return Err(RecoupleError::Roots(leaf_text(from.label()), leaf_text(to.label())));
+        return Err(RecoupleError::Roots(
+            leaf_text(from.label()),
+            leaf_text(to.label()),
+        ));
     }
     // an intermediate name used in both trees must name the same coupling
     let subtrees_from = labelled_subtrees(from);
@@ -201,7 +208,11 @@ fn cancel_common(from: &CouplingTree, to: &CouplingTree) -> (CouplingTree, Coupl
 
 fn add_common_factors(a: &CouplingTree, b: &CouplingTree, acc: &mut Term) {
     if let (CouplingTree::Node(a1, a2, la), CouplingTree::Node(b1, b2, _lb)) = (a, b) {
-        acc.factors.push(Factor::Tri([a1.label().clone(), a2.label().clone(), la.clone()]));
+        acc.factors.push(Factor::Tri([
+            a1.label().clone(),
+            a2.label().clone(),
+            la.clone(),
+        ]));
         let swapped = key(a1) != key(b1);
         if swapped {
             // <x; y | z> = (-1)^(x+y-z) <y; x | z>
@@ -231,7 +242,10 @@ struct Names {
 
 impl Names {
     fn fresh(&mut self, hint: &str) -> Name {
-        let base: String = hint.chars().filter(|c| c.is_ascii_alphanumeric() || *c == '_').collect();
+        let base: String = hint
+            .chars()
+            .filter(|c| c.is_ascii_alphanumeric() || *c == '_')
+            .collect();
         let mut n = Name::new(format!("m_{base}"));
         while self.taken.contains(&n) {
             self.count += 1;
@@ -244,7 +258,14 @@ impl Names {
 
 /// The coupled state of a tree as CG factors: returns the projection of
 /// the node's label and pushes the CGs and summed projections.
-fn expand(t: &CouplingTree, names: &mut Names, cgs: &mut Vec<Factor>, bound: &mut Vec<Name>, root_m: Option<Lin>, leaf_ms: &mut BTreeMap<String, Lin>) -> Lin {
+fn expand(
+    t: &CouplingTree,
+    names: &mut Names,
+    cgs: &mut Vec<Factor>,
+    bound: &mut Vec<Name>,
+    root_m: Option<Lin>,
+    leaf_ms: &mut BTreeMap<String, Lin>,
+) -> Lin {
     match t {
         CouplingTree::Leaf(l) => {
             let k = leaf_text(l);
@@ -268,7 +289,14 @@ fn expand(t: &CouplingTree, names: &mut Names, cgs: &mut Vec<Factor>, bound: &mu
                     Lin::var(n)
                 }
             };
-            cgs.push(Factor::Cg([a.label().clone(), ma, b.label().clone(), mb, l.clone(), m.clone()]));
+            cgs.push(Factor::Cg([
+                a.label().clone(),
+                ma,
+                b.label().clone(),
+                mb,
+                l.clone(),
+                m.clone(),
+            ]));
             m
         }
     }
@@ -304,8 +332,22 @@ pub fn overlap(from: &CouplingTree, to: &CouplingTree) -> Expr {
             // everything cancelled: the overlap is the factor itself
         }
         _ => {
-            expand(&f, &mut names, &mut cgs, &mut bound, Some(big_m.clone()), &mut leaf_ms);
-            expand(&t, &mut names, &mut cgs, &mut bound, Some(big_m), &mut leaf_ms);
+            expand(
+                &f,
+                &mut names,
+                &mut cgs,
+                &mut bound,
+                Some(big_m.clone()),
+                &mut leaf_ms,
+            );
+            expand(
+                &t,
+                &mut names,
+                &mut cgs,
+                &mut bound,
+                Some(big_m),
+                &mut leaf_ms,
+            );
         }
     }
     let mut term = factor;
@@ -326,15 +368,29 @@ pub struct Recoupling {
 impl Recoupling {
     /// Number of sums over angular momenta left.
     pub fn sums(&self) -> usize {
-        self.outcome.result.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
+        self.outcome
+            .result
+            .terms
+            .iter()
+            .map(|t| t.bound.len())
+            .max()
+            .unwrap_or(0)
     }
 
     /// Number of 6j and 9j symbols (in the term with the most).
     pub fn symbols(&self) -> (usize, usize) {
         let mut best = (0, 0);
         for t in &self.outcome.result.terms {
-            let six = t.factors.iter().filter(|f| matches!(f, Factor::SixJ(_))).count();
-            let nine = t.factors.iter().filter(|f| matches!(f, Factor::NineJ(_))).count();
+            let six = t
+                .factors
+                .iter()
+                .filter(|f| matches!(f, Factor::SixJ(_)))
+                .count();
+            let nine = t
+                .factors
+                .iter()
+                .filter(|f| matches!(f, Factor::NineJ(_)))
+                .count();
             if six + nine > best.0 + best.1 {
                 best = (six, nine);
             }
@@ -346,8 +402,15 @@ impl Recoupling {
 /// Numeric leaves as placeholder names (the k-th leaf of a value in one
 /// tree is the k-th leaf of that value in the other), so equal numbers
 /// stay distinct particles; returns the trees and the placeholders.
-fn name_numeric_leaves(from: &CouplingTree, to: &CouplingTree) -> (CouplingTree, CouplingTree, Vec<(Name, Lin)>) {
-    fn go(t: &CouplingTree, seen: &mut BTreeMap<String, usize>, out: &mut Vec<(Name, Lin)>) -> CouplingTree {
+fn name_numeric_leaves(
+    from: &CouplingTree,
+    to: &CouplingTree,
+) -> (CouplingTree, CouplingTree, Vec<(Name, Lin)>) {
+    fn go(
+        t: &CouplingTree,
+        seen: &mut BTreeMap<String, usize>,
+        out: &mut Vec<(Name, Lin)>,
+    ) -> CouplingTree {
         match t {
             CouplingTree::Leaf(l) if l.is_constant() => {
                 let k = seen.entry(l.to_string()).or_insert(0);
@@ -373,7 +436,11 @@ fn name_numeric_leaves(from: &CouplingTree, to: &CouplingTree) -> (CouplingTree,
 }
 
 /// Derives the recoupling coefficient `<FROM | TO>`.
-pub fn recouple(from: &CouplingTree, to: &CouplingTree, opts: &Options) -> Result<Recoupling, RecoupleError> {
+pub fn recouple(
+    from: &CouplingTree,
+    to: &CouplingTree,
+    opts: &Options,
+) -> Result<Recoupling, RecoupleError> {
     validate(from, to)?;
     let (f, t, placeholders) = name_numeric_leaves(from, to);
     let mut ov = overlap(&f, &t);
@@ -389,7 +456,10 @@ pub fn recouple(from: &CouplingTree, to: &CouplingTree, opts: &Options) -> Resul
     if !placeholders.is_empty() {
         outcome.result = crate::algebra::normal::canonical_expr(&outcome.result, false);
     }
-    Ok(Recoupling { overlap: ov, outcome })
+    Ok(Recoupling {
+        overlap: ov,
+        outcome,
+    })
 }
 
 /// Every 9j written as a sum over x of three 6j (9j-as-6j-sum, Edmonds
@@ -406,7 +476,9 @@ pub fn only_6j(e: &Expr) -> Expr {
                     next.push(u);
                     continue;
                 };
-                let Factor::NineJ(a) = &u.factors[i] else { unreachable!() };
+                let Factor::NineJ(a) = &u.factors[i] else {
+                    unreachable!()
+                };
                 let mut rest = u.clone();
                 rest.factors.remove(i);
                 let text = format!(

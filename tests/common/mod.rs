@@ -4,6 +4,8 @@
 
 #![allow(dead_code)]
 
+pub mod bare;
+
 use recoup::algebra::symmetry::classical_images;
 use recoup::expr::{Expr, Name, Term, Q};
 use recoup::syntax::parse;
