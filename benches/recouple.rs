@@ -3,33 +3,11 @@
 //! the number of sums left. Run: `cargo bench --bench recouple`. A
 //! benchmark: it asserts nothing about time.
 
-use recoup::recouple::recouple;
+use recoup::recouple::{random_tree, recouple};
 use recoup::simplify::Options;
 use recoup::syntax::parse_tree;
 use recoup::verify::rng::Rng;
 use std::time::Instant;
-
-fn random_tree(n: usize, prefix: &str, rng: &mut Rng) -> String {
-    let mut items: Vec<String> = (1..=n).map(|k| format!("j{k}")).collect();
-    for i in (1..items.len()).rev() {
-        let k = rng.below(i as u64 + 1) as usize;
-        items.swap(i, k);
-    }
-    let mut count = 0;
-    while items.len() > 1 {
-        let i = rng.below(items.len() as u64 - 1) as usize;
-        let a = items.remove(i);
-        let b = items.remove(i);
-        count += 1;
-        let label = if items.is_empty() {
-            "J".to_string()
-        } else {
-            format!("{prefix}{count}")
-        };
-        items.insert(i, format!("({a}, {b}) {label}"));
-    }
-    items.pop().unwrap()
-}
 
 fn main() {
     let mut rng = Rng::new(99);

@@ -130,28 +130,8 @@ fn brute_overlap(from: &CouplingTree, to: &CouplingTree, vals: &BTreeMap<String,
         .sum()
 }
 
-/// A random binary tree over the given leaves (in a random order), with
-/// intermediate names prefix1, prefix2, ... and root J.
 fn random_tree(leaves: &[String], prefix: &str, rng: &mut Rng) -> String {
-    let mut items: Vec<String> = leaves.to_vec();
-    for i in (1..items.len()).rev() {
-        let k = rng.below(i as u64 + 1) as usize;
-        items.swap(i, k);
-    }
-    let mut count = 0;
-    while items.len() > 1 {
-        let i = rng.below(items.len() as u64 - 1) as usize;
-        let a = items.remove(i);
-        let b = items.remove(i);
-        count += 1;
-        let label = if items.is_empty() {
-            "J".to_string()
-        } else {
-            format!("{prefix}{count}")
-        };
-        items.insert(i, format!("({a}, {b}) {label}"));
-    }
-    items.pop().unwrap()
+    recoup::recouple::random_tree_over(leaves, prefix, rng)
 }
 
 /// Random admissible values of every label of a tree (returns the root's).

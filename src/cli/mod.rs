@@ -102,6 +102,24 @@ pub fn read_arg(s: &str) -> Result<String, Failure> {
     }
 }
 
+/// Prints a derivation's steps and notes (for --steps).
+pub fn print_steps(steps: &[recoup::simplify::Step], notes: &[String]) {
+    for (i, s) in steps.iter().enumerate() {
+        println!(
+            "step {}: {} ({}) [verified at {} points, {} nonzero]",
+            i + 1,
+            s.rule,
+            s.source,
+            s.checked,
+            s.nonzero
+        );
+        println!("  = {}", s.after);
+    }
+    for n in notes {
+        println!("note: {n}");
+    }
+}
+
 /// Parses an expression, mapping parse errors to bad input.
 pub fn parse_expr(text: &str) -> Result<recoup::expr::Expr, Failure> {
     recoup::syntax::parse(text).map_err(|e| Failure::input(format!("parse error at {e}")))

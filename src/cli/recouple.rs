@@ -103,20 +103,7 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
     }
     if a.steps {
         println!("overlap: {}", r.overlap);
-        for (i, s) in r.outcome.steps.iter().enumerate() {
-            println!(
-                "step {}: {} ({}) [verified at {} points, {} nonzero]",
-                i + 1,
-                s.rule,
-                s.source,
-                s.checked,
-                s.nonzero
-            );
-            println!("  = {}", s.after);
-        }
-        for n in &r.outcome.notes {
-            println!("note: {n}");
-        }
+        super::print_steps(&r.outcome.steps, &r.outcome.notes);
     }
     if a.latex {
         println!("{}", latex::expr(&result));

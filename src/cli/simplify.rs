@@ -87,20 +87,7 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
     }
     if a.steps {
         println!("input: {}", out.input);
-        for (i, s) in out.steps.iter().enumerate() {
-            println!(
-                "step {}: {} ({}) [verified at {} points, {} nonzero]",
-                i + 1,
-                s.rule,
-                s.source,
-                s.checked,
-                s.nonzero
-            );
-            println!("  = {}", s.after);
-        }
-        for n in &out.notes {
-            println!("note: {n}");
-        }
+        super::print_steps(&out.steps, &out.notes);
         println!(
             "result (verified against the input at {} points, {} nonzero):",
             out.checked, out.nonzero

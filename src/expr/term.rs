@@ -203,6 +203,18 @@ impl Term {
         t.normalized()
     }
 
+    /// How a summed term is written: the factors inside the sum (those
+    /// with a summed variable), those outside, and whether the phase goes
+    /// inside. Printing and LaTeX share this layout.
+    pub fn sum_layout(&self) -> (Vec<&Factor>, Vec<&Factor>, bool) {
+        let bound: BTreeSet<Name> = self.bound.iter().cloned().collect();
+        let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = self
+            .factors
+            .iter()
+            .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
+        (inner, outer, self.phase.has_any(&bound))
+    }
+
     /// Kinds of the variables of this term (bound ones included).
     pub fn kinds(&self) -> BTreeMap<Name, Kind> {
         let mut out = BTreeMap::new();

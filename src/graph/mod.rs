@@ -9,6 +9,7 @@
 pub mod cycles;
 pub mod dot;
 pub mod reduce;
+pub mod samples;
 
 use crate::expr::{Factor, Kind, Lin, Name, Term};
 

@@ -164,20 +164,7 @@ impl PrimeExps {
         if m == 1 || times == 0 {
             return;
         }
-        ensure(m as usize);
-        TABLE.with(|t| {
-            let t = t.borrow();
-            let mut m = m as usize;
-            while m > 1 {
-                let p = t.spf[m] as usize;
-                let i = t.index[p] as usize;
-                if self.exps.len() <= i {
-                    self.exps.resize(i + 1, 0);
-                }
-                self.exps[i] += times;
-                m /= p;
-            }
-        });
+        self.add_integers(&[m], times);
     }
 
     /// Multiplies by `Π m_i^times` (one table lookup for all).

@@ -507,3 +507,38 @@ pub fn only_6j(e: &Expr) -> Expr {
 pub fn q(n: i64, d: i64) -> Q {
     Q::new(n, d)
 }
+
+/// A random binary coupling tree over `j1 … jn` (leaves in random order,
+/// random shape), intermediates named `prefix1, prefix2, …`, root `J`: for
+/// tests, benchmarks and experiments.
+pub fn random_tree(n: usize, prefix: &str, rng: &mut crate::verify::rng::Rng) -> String {
+    let leaves: Vec<String> = (1..=n).map(|k| format!("j{k}")).collect();
+    random_tree_over(&leaves, prefix, rng)
+}
+
+/// `random_tree` over the given leaf names.
+pub fn random_tree_over(
+    leaves: &[String],
+    prefix: &str,
+    rng: &mut crate::verify::rng::Rng,
+) -> String {
+    let mut items: Vec<String> = leaves.to_vec();
+    for i in (1..items.len()).rev() {
+        let k = rng.below(i as u64 + 1) as usize;
+        items.swap(i, k);
+    }
+    let mut count = 0;
+    while items.len() > 1 {
+        let i = rng.below(items.len() as u64 - 1) as usize;
+        let a = items.remove(i);
+        let b = items.remove(i);
+        count += 1;
+        let label = if items.is_empty() {
+            "J".to_string()
+        } else {
+            format!("{prefix}{count}")
+        };
+        items.insert(i, format!("({a}, {b}) {label}"));
+    }
+    items.pop().unwrap_or_default()
+}

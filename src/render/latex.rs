@@ -240,12 +240,7 @@ pub fn term(t: &Term) -> String {
         let fs: Vec<&Factor> = t.factors.iter().collect();
         return product(&t.coef, &t.root, Some(&t.phase), &fs);
     }
-    let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
-    let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = t
-        .factors
-        .iter()
-        .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
-    let inside_phase = t.phase.has_any(&bound);
+    let (inner, outer, inside_phase) = t.sum_layout();
     let out = product(
         &t.coef,
         &t.root,

@@ -153,12 +153,7 @@ pub fn print_term(t: &Term) -> String {
         let fs: Vec<&Factor> = t.factors.iter().collect();
         return print_product(&t.coef, &t.root, Some(&t.phase), &fs);
     }
-    let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
-    let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = t
-        .factors
-        .iter()
-        .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
-    let phase_inside = t.phase.has_any(&bound);
+    let (inner, outer, phase_inside) = t.sum_layout();
     let outside = print_product(
         &t.coef,
         &t.root,
