@@ -8,7 +8,6 @@ use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, Zero};
-use std::collections::BTreeSet;
 
 const GREEK: &[&str] = &[
     "alpha", "beta", "gamma", "delta", "epsilon", "zeta", "eta", "theta", "iota", "kappa",

@@ -3,12 +3,11 @@
 //! summed variable are printed outside the `sum(...)`.
 
 use crate::expr::factor::is_hat_base;
-use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
+use crate::expr::{Expr, Factor, Lin, Term, Q};
 use crate::numeric::surd::fmt_rational;
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, Zero};
-use std::collections::BTreeSet;
 use std::fmt;
 
 fn row(ls: &[Lin]) -> String {
