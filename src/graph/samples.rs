@@ -40,7 +40,7 @@ pub fn cubic_graph_sum(n: usize, edges: &[(usize, usize)]) -> String {
 /// by pairing half-edges at random until the pairing is simple and connected.
 pub fn random_cubic(n: usize, rng: &mut Rng) -> Vec<(usize, usize)> {
     assert!(
-        n >= 4 && n % 2 == 0,
+        n >= 4 && n.is_multiple_of(2),
         "a cubic graph needs an even number >= 4 of vertices"
     );
     loop {
