@@ -328,6 +328,9 @@ impl Term {
                         }
                         return self.zeroed();
                     }
+                    // the triangle rule is symmetric: one spelling
+                    let mut t = t;
+                    t.sort();
                     others.push(Factor::Tri(t));
                 }
                 other => others.push(other),

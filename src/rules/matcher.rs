@@ -551,6 +551,44 @@ impl Pattern {
         found
     }
 
+    /// Of the matches that rewrite (at most `limit` tried), the one whose
+    /// pattern variables take the simplest values (fewest terms, integer
+    /// coefficients): through Regge's symmetries many images fit, and the
+    /// plain one reads best.
+    pub fn apply_simplest(
+        &self,
+        t: &Term,
+        required: &Subst,
+        regge: bool,
+        limit: usize,
+    ) -> Option<(Match, Expr)> {
+        let score = |m: &Match| -> usize {
+            self.free
+                .iter()
+                .filter_map(|v| m.subst.get(v))
+                .map(|l| {
+                    l.terms().count()
+                        + l.terms().filter(|(_, c)| !c.is_integer()).count() * 2
+                        + usize::from(!l.constant_part().is_integer())
+                })
+                .sum()
+        };
+        let ideal = self.free.len();
+        let mut best: Option<(usize, Match, Expr)> = None;
+        let mut tries = 0;
+        self.each_match_in(t, required, regge, None, &mut |m| {
+            tries += 1;
+            if let Some(e) = self.rewrite(t, &m) {
+                let sc = score(&m);
+                if best.as_ref().is_none_or(|b| sc < b.0) {
+                    best = Some((sc, m, e));
+                }
+            }
+            best.as_ref().is_some_and(|b| b.0 <= ideal) || tries >= limit
+        });
+        best.map(|(_, m, e)| (m, e))
+    }
+
     /// The local identity this match applies, for verification: the
     /// matched factors with the pattern's sums, and its right side.
     pub fn instance(&self, t: &Term, m: &Match) -> (Expr, Expr) {

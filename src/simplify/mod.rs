@@ -223,7 +223,12 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Result<Option<(Step, Expr)>,
                 continue;
             }
             for p in extra.iter().chain(sum_patterns().iter()) {
-                let Some((m, replacement)) = p.apply_first(t, &Default::default(), regge) else {
+                let found = if regge {
+                    p.apply_simplest(t, &Default::default(), true, 512)
+                } else {
+                    p.apply_first(t, &Default::default(), false)
+                };
+                let Some((m, replacement)) = found else {
                     continue;
                 };
                 let (il, ir) = p.instance(t, &m);
