@@ -30,7 +30,10 @@ pub fn three_j_raw(tj: [i64; 3], tm: [i64; 3]) -> RawValue {
 
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)`, doubled arguments.
 pub fn three_j(tj: [i64; 3], tm: [i64; 3]) -> Surd {
-    canonical(&three_j_raw(tj, tm))
+    match three_j_formula(tj, tm) {
+        None => Surd::zero(),
+        Some(f) => f.exact_fast().unwrap_or_else(|| canonical(&f.exact_raw())),
+    }
 }
 
 /// The Clebsch–Gordan coefficient `<j1 m1; j2 m2 | J M>`, doubled arguments
@@ -57,7 +60,10 @@ pub fn six_j_raw(t: [i64; 6]) -> RawValue {
 
 /// The 6j symbol `{j1 j2 j3; j4 j5 j6}`, doubled arguments.
 pub fn six_j(t: [i64; 6]) -> Surd {
-    canonical(&six_j_raw(t))
+    match six_j_formula(t) {
+        None => Surd::zero(),
+        Some(f) => f.exact_fast().unwrap_or_else(|| canonical(&f.exact_raw())),
+    }
 }
 
 /// The range of the doubled summation variable of 9j-as-6j-sum.

@@ -400,6 +400,154 @@ impl RacahFormula {
     }
 }
 
+/// Factorial arguments up to this use the stack-only fast path.
+const FAST_LIMIT: i64 = 96;
+/// Primes below `FAST_LIMIT + 2`.
+const FAST_PRIMES: [u64; 25] = [
+    2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59, 61, 67, 71, 73, 79, 83, 89, 97,
+];
+
+/// Exponents of `n!` and of `n` for `n <= FAST_LIMIT + 1`, by prime position.
+struct FastTables {
+    fact: Vec<[i16; 25]>,
+    int: Vec<[i16; 25]>,
+}
+
+fn fast_tables() -> &'static FastTables {
+    static T: std::sync::OnceLock<FastTables> = std::sync::OnceLock::new();
+    T.get_or_init(|| {
+        let n = (FAST_LIMIT + 2) as usize;
+        let mut int = vec![[0i16; 25]; n + 1];
+        for (m, row) in int.iter_mut().enumerate().skip(2) {
+            let mut x = m as u64;
+            for (i, &p) in FAST_PRIMES.iter().enumerate() {
+                while x.is_multiple_of(p) {
+                    row[i] += 1;
+                    x /= p;
+                }
+            }
+        }
+        let mut fact = vec![[0i16; 25]; n + 1];
+        for m in 2..=n {
+            let mut row = fact[m - 1];
+            for i in 0..25 {
+                row[i] += int[m][i];
+            }
+            fact[m] = row;
+        }
+        FastTables { fact, int }
+    })
+}
+
+impl RacahFormula {
+    /// The exact value without heap work until the result is built, when
+    /// every factorial argument is at most `FAST_LIMIT` and the sum fits
+    /// `i128` (`None` otherwise: the general path takes over).
+    pub fn exact_fast(&self) -> Option<Surd> {
+        let s = &self.sum;
+        if s.kmin > s.kmax {
+            return Some(Surd::zero());
+        }
+        for &a in self.root_num.iter().chain(&self.root_den) {
+            if a > FAST_LIMIT {
+                return None;
+            }
+        }
+        for a in s.num.iter().chain(&s.den) {
+            if a.c + a.s * s.kmin > FAST_LIMIT || a.c + a.s * s.kmax > FAST_LIMIT {
+                return None;
+            }
+        }
+        let (a, _) = s.horner_ratio_i128()?;
+        if a == 0 {
+            return Some(Surd::zero());
+        }
+        let t = fast_tables();
+        // only primes up to the largest number involved can appear
+        let mut top = 2i64;
+        for &x in self.root_num.iter().chain(&self.root_den) {
+            top = top.max(x);
+        }
+        for f in s.num.iter().chain(&s.den) {
+            top = top.max(f.c + f.s * s.kmin + 1).max(f.c + f.s * s.kmax + 1);
+        }
+        let width = FAST_PRIMES.partition_point(|&p| p as i64 <= top);
+        let mut e = [0i32; 25];
+        let mut add = |row: &[i16; 25], times: i32| {
+            for i in 0..width {
+                e[i] += times * row[i] as i32;
+            }
+        };
+        for &x in &self.root_num {
+            add(&t.fact[x as usize], 1);
+        }
+        for &x in &self.root_den {
+            add(&t.fact[x as usize], -1);
+        }
+        for f in &s.num {
+            add(&t.fact[(f.c + f.s * s.kmin) as usize], 2);
+        }
+        for f in &s.den {
+            add(&t.fact[(f.c + f.s * s.kmin) as usize], -2);
+        }
+        for k in s.kmin..s.kmax {
+            let mut bad = false;
+            s.for_each_denominator_factor(k, |f| {
+                if f as usize >= t.int.len() {
+                    bad = true;
+                } else {
+                    add(&t.int[f as usize], -2);
+                }
+            });
+            if bad {
+                return None;
+            }
+        }
+        let negative = (a < 0) != ((s.kmin & 1 == 1) != self.negative);
+        let mut a = a.unsigned_abs();
+        let (mut num, mut den, mut free): (u128, u128, u128) = (1, 1, 1);
+        for (i, &ex) in e.iter().enumerate().take(width) {
+            if ex == 0 {
+                continue;
+            }
+            let p = FAST_PRIMES[i] as u128;
+            let h = ex.div_euclid(2);
+            if ex.rem_euclid(2) == 1 {
+                free = free.checked_mul(p)?;
+            }
+            if h > 0 {
+                num = num.checked_mul(p.checked_pow(h as u32)?)?;
+            } else if h < 0 {
+                let mut left = -h;
+                // 64-bit division where the numerator allows (much cheaper)
+                while left > 0 {
+                    let divisible = match u64::try_from(a) {
+                        Ok(a64) => a64.is_multiple_of(p as u64),
+                        Err(_) => a.is_multiple_of(p),
+                    };
+                    if !divisible {
+                        break;
+                    }
+                    a /= p;
+                    left -= 1;
+                }
+                if left > 0 {
+                    den = den.checked_mul(p.checked_pow(left as u32)?)?;
+                }
+            }
+        }
+        // num and den share no prime (den only holds primes a lacked), so
+        // the fraction is already reduced
+        let n = num.checked_mul(a)?;
+        let d = den;
+        let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(d));
+        if negative {
+            q = -q;
+        }
+        Some(Surd::monomial_squarefree(q, BigUint::from(free)))
+    }
+}
+
 fn half(x: i64) -> i64 {
     x / 2
 }
