@@ -89,14 +89,19 @@ enum Command {
     },
 }
 
-/// Reads an EXPR argument, `-` meaning standard input.
+/// Reads an EXPR argument, `-` meaning standard input (where lines that
+/// start with `#` are comments, as in the sample files).
 pub fn read_arg(s: &str) -> Result<String, Failure> {
     if s == "-" {
         let mut buf = String::new();
         std::io::stdin()
             .read_to_string(&mut buf)
             .map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
-        Ok(buf.trim_end().to_string())
+        let text: Vec<&str> = buf
+            .lines()
+            .filter(|l| !l.trim_start().starts_with('#'))
+            .collect();
+        Ok(text.join("\n").trim_end().to_string())
     } else {
         Ok(s.to_string())
     }

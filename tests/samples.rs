@@ -1,0 +1,63 @@
+//! The sample files the README points to run as their first lines say.
+
+use std::io::Write;
+use std::process::{Command, Stdio};
+
+fn run(args: &[&str], stdin: Option<&str>) -> (i32, String) {
+    let mut child = Command::new(env!("CARGO_BIN_EXE_recoup"))
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .unwrap();
+    if let Some(s) = stdin {
+        child.stdin.take().unwrap().write_all(s.as_bytes()).unwrap();
+    }
+    drop(child.stdin.take());
+    let out = child.wait_with_output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8(out.stdout).unwrap(),
+    )
+}
+
+fn line(text: &str, n: usize) -> String {
+    text.lines().nth(n - 1).unwrap().to_string()
+}
+
+#[test]
+fn the_readme_example_reduces_to_one_6j() {
+    let text = include_str!("../samples/toy-overlap.txt");
+    let (code, out) = run(&["simplify", "--steps", "-"], Some(text));
+    assert_eq!(code, 0);
+    // recouple-3 (Edmonds 6.1.5, IDENTITIES.md) in canonical form
+    assert!(
+        out.trim_end()
+            .ends_with("(-1)^(J+j1+j2+j3) hat(j12) hat(j23) {J, j1, j23; j2, j3, j12}"),
+        "{out}"
+    );
+}
+
+#[test]
+fn the_other_samples() {
+    let values = include_str!("../samples/toy-nucleus-values.txt");
+    let (code, out) = run(&["eval", "--batch"], Some(values));
+    assert_eq!(code, 0);
+    assert_eq!(
+        out.lines().count(),
+        values.lines().filter(|l| !l.starts_with('#')).count()
+    );
+    let claims = include_str!("../samples/toy-claims.txt");
+    let (code, _) = run(&["check", &line(claims, 3), &line(claims, 4)], None);
+    assert_eq!(code, 0);
+    let (code, _) = run(&["check", &line(claims, 3), "1"], None);
+    assert_eq!(code, 1);
+    let schemes = include_str!("../samples/toy-schemes.txt");
+    let (code, out) = run(&["recouple", &line(schemes, 2), &line(schemes, 3)], None);
+    assert_eq!(code, 0);
+    assert!(
+        out.contains("; j1, l1, s1; j2, l2, s2}") && out.contains("hat(L) hat(S)"),
+        "{out}"
+    );
+}
