@@ -23,6 +23,14 @@ pub type Assignment = BTreeMap<Name, Q>;
 /// Most summation points one evaluation may visit.
 pub const MAX_POINTS: u64 = 50_000_000;
 
+/// Largest j (or |m|) of a symbol evaluated exactly (an exact 3j at
+/// j = 10^4 takes about 0.4 s; beyond 2·10^4 the exact path is refused).
+pub const MAX_EXACT_J: i64 = 20_000;
+
+/// Largest j of a symbol evaluated in floating point (a 6j at j = 10^5 with
+/// heavy cancellation needs about 25 s of big-integer fixed point).
+pub const MAX_FLOAT_J: i64 = 50_000;
+
 /// Why an expression could not be evaluated.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 pub enum EvalError {
@@ -71,6 +79,9 @@ pub enum EvalError {
     /// A square root of a negative number or a division by zero.
     #[error("{0}")]
     Arithmetic(String),
+    /// A symbol too large to evaluate this way.
+    #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
+    SymbolTooLarge(String, i64),
     /// A sum with too many points.
     #[error("the sums visit more points than the evaluation budget allows; refusing to go on")]
     TooLarge,
@@ -108,6 +119,9 @@ pub trait Field: Clone {
     fn from_surd(s: &Surd) -> Self;
     /// a symbol value (doubled arguments)
     fn symbol(kind: SymbolKind, args: &[i64]) -> Self;
+    /// the largest doubled argument a symbol is evaluated for (beyond it
+    /// the evaluation is refused rather than left to run for minutes)
+    fn max_doubled_arg() -> i64;
     /// the empty product
     fn prod_one() -> Self::Prod;
     /// a nonzero value as a product factor
@@ -165,6 +179,9 @@ impl Field for Surd {
             SymbolKind::SixJ => exact::six_j(a.try_into().unwrap()),
             SymbolKind::NineJ => exact::nine_j(a.try_into().unwrap()),
         }
+    }
+    fn max_doubled_arg() -> i64 {
+        2 * MAX_EXACT_J
     }
     fn prod_one() -> SurdProd {
         SurdProd::Fast(Factored::one())
@@ -240,6 +257,9 @@ impl Field for f64 {
             SymbolKind::SixJ => float::six_j_f64(a.try_into().unwrap()),
             SymbolKind::NineJ => float::nine_j_f64(a.try_into().unwrap()),
         }
+    }
+    fn max_doubled_arg() -> i64 {
+        2 * MAX_FLOAT_J
     }
     fn prod_one() -> f64 {
         1.0
@@ -834,6 +854,14 @@ impl<F: Field> Evaluator<F> {
                             Some(d) => a[i] = d,
                             None => return Ok(None),
                         }
+                    }
+                    let limit = F::max_doubled_arg();
+                    if a.iter().any(|x| x.abs() > limit) {
+                        let biggest = a.iter().map(|x| x.abs()).max().unwrap_or(0);
+                        return Err(EvalError::SymbolTooLarge(
+                            crate::expr::lin::fmt_q(&Q::new(biggest, 2)),
+                            limit / 2,
+                        ));
                     }
                     let key = (*kind, a);
                     let cached = self.cache.borrow().get(&key).cloned();

@@ -17,6 +17,7 @@ use crate::rules::apply::Prepared;
 use crate::rules::{catalog, Rule, RuleKind};
 use crate::verify::sample::Point;
 use crate::verify::spot::{compare, compare_within, SpotSettings};
+use num_traits::Signed;
 
 /// One verified rewrite.
 #[derive(Clone, Debug)]
@@ -156,6 +157,9 @@ pub fn verified_step(
 const NORMAL_FORM_SOURCE: &str =
     "DESIGN.md (phases modulo integrality; canonical symbols); IDENTITIES.md Symmetries";
 
+/// Numeric symbols up to this j are replaced by their exact values.
+pub const EXACT_VALUE_J: i64 = 60;
+
 /// Replaces every symbol whose arguments are all numbers by its value.
 fn exact_values(e: &Expr) -> Option<Expr> {
     let ev = Evaluator::<Surd>::new();
@@ -165,7 +169,12 @@ fn exact_values(e: &Expr) -> Option<Expr> {
         let mut nt = t.clone();
         let mut keep = Vec::new();
         for f in &t.factors {
-            if f.is_symbol() && f.lins().iter().all(|l| l.is_constant()) {
+            // numeric symbols of moderate size become numbers (larger ones
+            // stay symbols: their exact values are long and slow)
+            let small = f.lins().iter().all(|l| {
+                l.is_constant() && l.constant_part().abs() <= Q::from_integer(EXACT_VALUE_J)
+            });
+            if f.is_symbol() && small {
                 let single = Expr::from_term(Term::factor(f.clone()));
                 match ev.eval(&single, &Default::default()) {
                     Ok(v) if v.terms().count() <= 1 => {
