@@ -183,3 +183,64 @@ fn a_sum_that_is_not_an_identity_stays_a_sum_with_the_same_value() {
     assert_eq!(j_sums_left(&out.result), 1, "{}", out.result);
     assert!(equal(&out.result, &input, 6));
 }
+
+#[test]
+fn the_graphical_route_works_without_the_closed_form_identities() {
+    // with the closed forms switched off, the driver's graphical route (a
+    // 6j written out as its tetrahedral projection sum, then 3j-completeness
+    // or the interchange read backwards, then the graph reduction) still
+    // removes the sum, and the result is verified
+    let skip: Vec<String> = [
+        "6j-orthogonality",
+        "6j-orthogonality-crossed",
+        "racah-sum-rule",
+        "6j-sum-plain",
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect();
+    let opts = Options {
+        skip_rules: skip,
+        ..Options::default()
+    };
+    let mut rng = Rng::new(77);
+    for (name, lhs, rhs) in IDENTITIES.iter().filter(|(n, _, _)| {
+        [
+            "6j-orthogonality",
+            "6j-orthogonality-crossed",
+            "racah-sum-rule",
+            "6j-sum-plain",
+        ]
+        .contains(n)
+    }) {
+        for variant in 0..2 {
+            let input = if variant == 0 {
+                parse(lhs).unwrap()
+            } else {
+                disguise(lhs, &mut rng)
+            };
+            let out = simplify(&input, &opts).unwrap_or_else(|e| panic!("{name}: {e}"));
+            assert_eq!(
+                sums_left(&out.result),
+                0,
+                "{name} variant {variant}: {}",
+                out.result
+            );
+            assert!(
+                used_rule(&out, "graphical-route"),
+                "{name}: {:?}",
+                out.steps.iter().map(|s| &s.rule).collect::<Vec<_>>()
+            );
+            let want = if variant == 0 {
+                parse(rhs).unwrap()
+            } else {
+                input.clone()
+            };
+            assert!(
+                equal(&out.result, &want, 11),
+                "{name} variant {variant}: {}",
+                out.result
+            );
+        }
+    }
+}

@@ -71,6 +71,12 @@ pub struct Options {
     pub extra_rules: Vec<Rule>,
     /// most steps before stopping
     pub max_steps: usize,
+    /// try the graphical route on sums no catalog identity fits
+    pub graphical: bool,
+    /// catalog rules not to use (by name; for experiments and tests)
+    pub skip_rules: Vec<String>,
+    /// inside the graphical route: also read the interchange backwards
+    pub backwards_interchange: bool,
 }
 
 impl Default for Options {
@@ -91,6 +97,9 @@ impl Default for Options {
             regge: false,
             extra_rules: Vec::new(),
             max_steps: 200,
+            graphical: true,
+            skip_rules: Vec::new(),
+            backwards_interchange: false,
         }
     }
 }
@@ -220,18 +229,27 @@ fn sum_patterns() -> &'static [crate::rules::matcher::Pattern] {
 /// One application of a sum identity to some term (classical symmetries
 /// first, then Regge's), verified on its instance.
 fn momentum_sum_step(cur: &Expr, opts: &Options) -> Result<Option<(Step, Expr)>, SimplifyError> {
-    let extra: Vec<crate::rules::matcher::Pattern> = opts
+    let mut extra: Vec<crate::rules::matcher::Pattern> = opts
         .extra_rules
         .iter()
         .filter(|r| r.kind == RuleKind::MomentumSum)
         .filter_map(crate::rules::matcher::Pattern::new)
         .collect();
+    if opts.backwards_interchange {
+        extra.extend(crate::rules::matcher::Pattern::new(crate::rules::rule(
+            "interchange-backwards",
+        )));
+    }
     for regge in [false, true] {
         for (i, t) in cur.terms.iter().enumerate() {
             if t.bound.is_empty() {
                 continue;
             }
-            for p in extra.iter().chain(sum_patterns().iter()) {
+            for p in extra
+                .iter()
+                .chain(sum_patterns().iter())
+                .filter(|p| !opts.skip_rules.contains(&p.name))
+            {
                 let found = if regge {
                     p.apply_simplest(t, &Default::default(), true, 512)
                 } else {
@@ -274,6 +292,168 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Result<Option<(Step, Expr)>,
     Ok(None)
 }
 
+/// Number of sums and of symbols of the most complex term.
+fn weight(e: &Expr) -> (usize, usize) {
+    e.terms
+        .iter()
+        .map(|t| {
+            (
+                t.bound.len(),
+                t.factors.iter().filter(|f| f.is_symbol()).count(),
+            )
+        })
+        .max()
+        .unwrap_or((0, 0))
+}
+
+/// A cheap test before the graphical route: with one 6j, completeness
+/// needs the two triads holding x to share their other entries; with two,
+/// the interchange read backwards needs them to share four entries besides
+/// x.
+fn graphical_route_may_fit(t: &Term, x: &crate::expr::Name, with_x: &[usize]) -> bool {
+    let entries =
+        |k: usize| -> Vec<crate::expr::Lin> { t.factors[k].lins().into_iter().cloned().collect() };
+    match with_x {
+        [k] => {
+            let f = &t.factors[*k];
+            let triads: Vec<Vec<crate::expr::Lin>> = f
+                .triads()
+                .into_iter()
+                .filter(|tr| tr.iter().any(|l| l.has(x)))
+                .map(|tr| {
+                    let mut v: Vec<crate::expr::Lin> = tr
+                        .iter()
+                        .filter(|l| !l.has(x))
+                        .map(|l| (*l).clone())
+                        .collect();
+                    v.sort();
+                    v
+                })
+                .collect();
+            triads.len() == 2 && triads[0] == triads[1]
+        }
+        [k1, k2] => {
+            let a = entries(*k1);
+            let mut b = entries(*k2);
+            let mut shared = 0;
+            for l in a.iter().filter(|l| !l.has(x)) {
+                if let Some(p) = b.iter().position(|m| m == l) {
+                    b.remove(p);
+                    shared += 1;
+                }
+            }
+            shared >= 4
+        }
+        _ => false,
+    }
+}
+
+/// The graphical route for a sum over an angular momentum x that no
+/// catalog identity fits: of the (one or two) 6j containing x, one is
+/// written as its tetrahedral projection sum, so that 3j-completeness or
+/// the interchange read backwards can remove the sum over x, and the graph
+/// reduction finishes. The rewritten term is simplified on its own and
+/// kept only when it has fewer sums, or as many sums and fewer symbols;
+/// the replacement is verified against the term.
+fn graphical_route(
+    cur: &Expr,
+    opts: &Options,
+    tried: &mut std::collections::HashSet<Term>,
+) -> Result<Option<(Step, Expr)>, SimplifyError> {
+    let expand = crate::rules::matcher::Pattern::new(crate::rules::rule("6j-as-projection-sum"))
+        .expect("the 6j definition is a pattern");
+    for (i, t) in cur.terms.iter().enumerate() {
+        if !tried.insert(t.clone()) {
+            continue;
+        }
+        // small pure sums over angular momenta only (the route simplifies a
+        // whole term again, which is worth it only there)
+        if crate::graph::reduce::has_projection_sum(t)
+            || t.factors.iter().filter(|f| f.is_symbol()).count() > 4
+        {
+            continue;
+        }
+        let kinds = t.kinds();
+        for x in t
+            .bound
+            .iter()
+            .filter(|b| kinds.get(*b) == Some(&crate::expr::Kind::AngularMomentum))
+        {
+            let with_x: Vec<usize> = (0..t.factors.len())
+                .filter(|&k| t.factors[k].is_symbol() && t.factors[k].has(x))
+                .collect();
+            if with_x.is_empty()
+                || with_x.len() > 2
+                || with_x
+                    .iter()
+                    .any(|&k| !matches!(t.factors[k], Factor::SixJ(_)))
+            {
+                continue;
+            }
+            if !graphical_route_may_fit(t, x, &with_x) {
+                continue;
+            }
+            for &k in with_x.iter().rev() {
+                let Factor::SixJ(a) = &t.factors[k] else {
+                    continue;
+                };
+                let mut req = crate::algebra::unify::Subst::new();
+                for (name, l) in ["j1", "j2", "j3", "j4", "j5", "j6"].iter().zip(a.iter()) {
+                    req.insert(expand.var(name), l.clone());
+                }
+                let Some((_, expanded)) = expand.apply_first(t, &req, false) else {
+                    continue;
+                };
+                let sub_opts = Options {
+                    graphical: false,
+                    backwards_interchange: true,
+                    max_steps: 40,
+                    ..opts.clone()
+                };
+                let Ok(sub) = simplify(&expanded, &sub_opts) else {
+                    continue;
+                };
+                let before = Expr::from_term(t.clone());
+                if weight(&sub.result) >= weight(&before) {
+                    continue;
+                }
+                let rules: Vec<String> = {
+                    let mut r: Vec<String> = sub.steps.iter().map(|s| s.rule.clone()).collect();
+                    r.dedup();
+                    r
+                };
+                let local =
+                    verified_step("graphical-route", "", &before, &sub.result, &opts.step_spot)?;
+                let mut next = Expr::zero();
+                for (k2, u) in cur.terms.iter().enumerate() {
+                    if k2 == i {
+                        for r in &sub.result.terms {
+                            next.push(r.clone());
+                        }
+                    } else {
+                        next.push(u.clone());
+                    }
+                }
+                return Ok(Some((
+                    Step {
+                        rule: "graphical-route".into(),
+                        source: format!(
+                            "6j-as-projection-sum, then {} (GRAPH-PRIMITIVES.md; Yutsis, Levinson and Vanagas 1960, from memory)",
+                            rules.join(", ")
+                        ),
+                        before: cur.clone(),
+                        after: next.clone(),
+                        checked: local.checked,
+                        nonzero: local.nonzero,
+                    },
+                    next,
+                )));
+            }
+        }
+    }
+    Ok(None)
+}
+
 /// Simplifies an expression with the catalog's rules, verifying each step.
 pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
     let mut steps = Vec::new();
@@ -300,6 +480,7 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
         .filter(|r| r.kind == RuleKind::Special)
         .collect();
     let prepared: Vec<Prepared> = rules.iter().filter_map(|r| Prepared::new(r)).collect();
+    let mut tried_graphical: std::collections::HashSet<Term> = std::collections::HashSet::new();
     'outer: while steps.len() < opts.max_steps {
         for p in &prepared {
             for (i, t) in cur.terms.iter().enumerate() {
@@ -329,6 +510,16 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
                 )?);
                 cur = next;
                 continue 'outer;
+            }
+        }
+        // inside the graphical route the sum identities go first (so the
+        // 6j just written out is not recognised again before the
+        // interchange read backwards can act); elsewhere the graph first
+        if opts.backwards_interchange {
+            if let Some((step, next)) = momentum_sum_step(&cur, opts)? {
+                steps.push(step);
+                cur = canonical_expr(&next, opts.regge);
+                continue;
             }
         }
         // the graph reduction of projection sums
@@ -370,6 +561,14 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
             steps.push(step);
             cur = canonical_expr(&next, opts.regge);
             continue;
+        }
+        // and, where none fits, the graphical route
+        if opts.graphical {
+            if let Some((step, next)) = graphical_route(&cur, opts, &mut tried_graphical)? {
+                steps.push(step);
+                cur = canonical_expr(&next, opts.regge);
+                continue;
+            }
         }
         if let Some(next) = exact_values(&cur) {
             let next = canonical_expr(&next, opts.regge);
@@ -462,4 +661,71 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
         nonzero,
         notes,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::syntax::parse;
+
+    /// The graphical route on its own (without the catalog's sum
+    /// identities) derives the standard sums.
+    #[test]
+    fn the_graphical_route_derives_orthogonality_and_the_plain_sum() {
+        for (text, want) in [
+            // 6j-orthogonality (Edmonds 6.2.9)
+            (
+                "sum(x: (2*x+1) (2*p+1) {a, b, x; c, d, p} {a, b, x; c, d, q})",
+                "delta(p, q) tri(a, d, p) tri(b, c, p)",
+            ),
+            // 6j-sum-plain (IDENTITIES.md)
+            (
+                "sum(x: (2*x+1) {a, b, x; a, b, c})",
+                "(-1)^(2*a+2*b) tri(a, b, c)",
+            ),
+            // racah-sum-rule (Edmonds 6.2.10)
+            (
+                "sum(x: (-1)^(p+q+x) (2*x+1) {a, b, x; c, d, p} {a, b, x; d, c, q})",
+                "{a, c, q; b, d, p}",
+            ),
+        ] {
+            let e = parse(text).unwrap();
+            let mut tried = std::collections::HashSet::new();
+            // without the closed-form sum identities: only 3j-completeness
+            // and the interchange read backwards remain
+            let opts = Options {
+                skip_rules: [
+                    "6j-orthogonality",
+                    "6j-orthogonality-crossed",
+                    "racah-sum-rule",
+                    "biedenharn-elliott",
+                    "6j-sum-phase",
+                    "6j-sum-plain",
+                    "9j-orthogonality",
+                    "9j-from-6j-sum",
+                ]
+                .iter()
+                .map(|s| s.to_string())
+                .collect(),
+                ..Options::default()
+            };
+            let (step, next) = graphical_route(&e, &opts, &mut tried)
+                .unwrap()
+                .unwrap_or_else(|| panic!("no graphical route for {text}"));
+            assert_eq!(step.rule, "graphical-route");
+            assert!(
+                !step.source.contains("orthogonality,") && !step.source.contains("racah"),
+                "{}",
+                step.source
+            );
+            assert_eq!(weight(&next).0, 0, "{text}: {next}");
+            let rep = crate::verify::spot::compare(
+                &next,
+                &parse(want).unwrap(),
+                &Options::default().step_spot,
+            )
+            .unwrap();
+            assert!(rep.agrees(), "{text}: {next}");
+        }
+    }
 }
