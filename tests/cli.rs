@@ -244,7 +244,7 @@ fn simplify_reduces_a_projection_sum_with_a_trace() {
     assert!(out.contains("cg-to-3j") && out.contains("bubble"), "{out}");
     assert!(
         out.trim_end()
-            .ends_with("delta(J, J') delta(M, M') tri(J, j1, j2)"),
+            .ends_with("delta(J, J') delta(M, M') tri(j1, j2, J)"),
         "{out}"
     );
 }

@@ -31,10 +31,10 @@ fn the_readme_example_reduces_to_one_6j() {
     let text = include_str!("../samples/toy-overlap.txt");
     let (code, out) = run(&["simplify", "--steps", "-"], Some(text));
     assert_eq!(code, 0);
-    // recouple-3 (Edmonds 6.1.5, IDENTITIES.md) in canonical form
+    // recouple-3 (Edmonds 6.1.5, IDENTITIES.md), in its textbook arrangement
     assert!(
         out.trim_end()
-            .ends_with("(-1)^(J+j1+j2+j3) hat(j12) hat(j23) {J, j1, j23; j2, j3, j12}"),
+            .ends_with("(-1)^(j1+j2+j3+J) hat(j12) hat(j23) {j1, j2, j12; j3, J, j23}"),
         "{out}"
     );
 }
@@ -57,7 +57,7 @@ fn the_other_samples() {
     let (code, out) = run(&["recouple", &line(schemes, 2), &line(schemes, 3)], None);
     assert_eq!(code, 0);
     assert!(
-        out.contains("; j1, l1, s1; j2, l2, s2}") && out.contains("hat(L) hat(S)"),
+        out.contains("hat(j1) hat(j2) hat(L) hat(S) {j1, j2, J; l1, l2, L; s1, s2, S}"),
         "{out}"
     );
 }

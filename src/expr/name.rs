@@ -1,5 +1,6 @@
 //! Variable names with the natural order theorists expect (`j2 < j10`,
-//! `j < j'`), used as keys everywhere a canonical order is needed.
+//! `j < j'`, `j1 < J < M`), used as keys everywhere a canonical order is
+//! needed.
 
 use std::cmp::Ordering;
 use std::fmt;
@@ -76,7 +77,12 @@ fn natural_cmp(a: &[u8], b: &[u8]) -> Ordering {
                 Ordering::Less
             };
         } else {
-            let o = x.cmp(&y);
+            // letters compare without case first, then lower before upper
+            // (j1 < j2 < J < M, as papers order them)
+            let o = x
+                .to_ascii_lowercase()
+                .cmp(&y.to_ascii_lowercase())
+                .then_with(|| y.is_ascii_lowercase().cmp(&x.is_ascii_lowercase()));
             if o != Ordering::Equal {
                 return o;
             }
@@ -119,6 +125,6 @@ mod tests {
             .collect();
         v.sort();
         let s: Vec<&str> = v.iter().map(|n| n.as_str()).collect();
-        assert_eq!(s, ["J", "a", "j1", "j1'", "j2", "j10"]);
+        assert_eq!(s, ["a", "j1", "j1'", "j2", "j10", "J"]);
     }
 }
