@@ -5,7 +5,9 @@
 //! whose arguments break a triangle rule, a projection range or an
 //! integrality condition is exactly 0.
 
-use super::racah::{canonical, six_j_formula, sum_raw, three_j_formula, RawValue};
+use super::racah::{
+    canonical, six_j_formula, sum_raw, three_j_formula, FastRaw, FastSum, RawValue,
+};
 use super::surd::Surd;
 use num_bigint::BigInt;
 
@@ -95,8 +97,13 @@ pub fn nine_j(t: [i64; 9]) -> Surd {
     if !nine_j_triads_ok(&t) {
         return Surd::zero();
     }
-    let [a, b, c, d, e, f, g, h, i] = t;
-    let (lo, hi) = nine_j_x_range(&t);
+    nine_j_fast(&t).unwrap_or_else(|| nine_j_general(&t))
+}
+
+/// The 9j sum in heap big integers (any size).
+fn nine_j_general(t: &[i64; 9]) -> Surd {
+    let [a, b, c, d, e, f, g, h, i] = *t;
+    let (lo, hi) = nine_j_x_range(t);
     let mut terms = Vec::new();
     let mut x = lo;
     while x <= hi {
@@ -122,6 +129,35 @@ pub fn nine_j(t: [i64; 9]) -> Surd {
     sum_raw(&terms)
 }
 
+/// The 9j sum on the stack (`None` outside the fast path: some 6j with a
+/// factorial argument above the fast limit, or numbers beyond the stack).
+pub fn nine_j_fast(t: &[i64; 9]) -> Option<Surd> {
+    let [a, b, c, d, e, f, g, h, i] = *t;
+    let (lo, hi) = nine_j_x_range(t);
+    let six = |args: [i64; 6]| match six_j_formula(args) {
+        Some(formula) => formula.fast_raw(),
+        None => Some(FastRaw::zero()),
+    };
+    let mut total = FastSum::new();
+    let mut x = lo;
+    while x <= hi {
+        let s1 = six([a, b, c, f, i, x])?;
+        if !s1.a.is_zero() {
+            let s2 = six([d, e, f, b, x, h])?;
+            if !s2.a.is_zero() {
+                let s3 = six([g, h, i, x, a, d])?;
+                if !s3.a.is_zero() {
+                    let mut term = s1.mul(&s2)?.mul(&s3)?;
+                    term.scale(if x % 2 != 0 { -(x + 1) } else { x + 1 })?;
+                    total.add(&term)?;
+                }
+            }
+        }
+        x += 2;
+    }
+    total.to_surd()
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -141,6 +177,74 @@ mod tests {
         assert_eq!(s(&clebsch_gordan(2, 0, 2, 0, 2, 0)), "0");
         assert_eq!(s(&clebsch_gordan(2, -2, 2, 2, 2, 0)), "-sqrt(1/2)");
         assert_eq!(s(&clebsch_gordan(2, 0, 1, 1, 1, 1)), "-sqrt(1/3)");
+    }
+
+    /// Random doubled arguments near `j` that satisfy `ok`.
+    fn random_args<const N: usize>(
+        rng: &mut crate::verify::rng::Rng,
+        j: i64,
+        ok: impl Fn(&[i64; N]) -> bool,
+    ) -> [i64; N] {
+        loop {
+            let mut t = [0i64; N];
+            for x in t.iter_mut() {
+                *x = (2 * j - rng.below(j as u64 + 1) as i64).max(0);
+            }
+            if ok(&t) {
+                return t;
+            }
+        }
+    }
+
+    #[test]
+    fn the_stack_path_agrees_with_the_big_integer_path() {
+        // Both paths compute the same Racah sums; they share only the
+        // formulas, so a slip in the stack arithmetic, the factorial rows
+        // or the prime cancellation shows up as a difference. The range
+        // of j crosses the i128 limit of Horner's sum and FAST_LIMIT.
+        let mut rng = crate::verify::rng::Rng::new(7);
+        let mut stack_used = [0usize; 3];
+        for round in 0..600 {
+            let j = 1 + (round % 40) as i64;
+            let t6: [i64; 6] = random_args(&mut rng, j, |t| {
+                triangle2(t[0], t[1], t[2])
+                    && triangle2(t[0], t[4], t[5])
+                    && triangle2(t[3], t[1], t[5])
+                    && triangle2(t[3], t[4], t[2])
+            });
+            let f = six_j_formula(t6).unwrap();
+            let general = canonical(&f.exact_raw());
+            if let Some(fast) = f.exact_fast() {
+                assert_eq!(fast, general, "6j {t6:?}");
+                stack_used[1] += 1;
+            }
+            let mut tj: [i64; 3] = random_args(&mut rng, j, |t| triangle2(t[0], t[1], t[2]));
+            tj[2] += (tj[0] + tj[1] + tj[2]) % 2;
+            let mut tm = [0i64; 3];
+            tm[0] = -tj[0] + 2 * rng.below(tj[0] as u64 + 1) as i64;
+            tm[1] = -tj[1] + 2 * rng.below(tj[1] as u64 + 1) as i64;
+            tm[2] = -tm[0] - tm[1];
+            if let Some(f) = three_j_formula(tj, tm) {
+                let general = canonical(&f.exact_raw());
+                if let Some(fast) = f.exact_fast() {
+                    assert_eq!(fast, general, "3j {tj:?} {tm:?}");
+                    stack_used[0] += 1;
+                }
+            }
+            if round % 3 == 0 {
+                let j9 = 1 + (round % 32) as i64;
+                let t9: [i64; 9] = random_args(&mut rng, j9, nine_j_triads_ok);
+                if let Some(fast) = nine_j_fast(&t9) {
+                    assert_eq!(fast, nine_j_general(&t9), "9j {t9:?}");
+                    stack_used[2] += 1;
+                }
+            }
+        }
+        // the stack path really ran, on most cases
+        assert!(
+            stack_used[0] > 300 && stack_used[1] > 500 && stack_used[2] > 150,
+            "{stack_used:?}"
+        );
     }
 
     #[test]

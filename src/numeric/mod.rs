@@ -7,6 +7,7 @@ pub mod factored;
 pub mod primes;
 pub mod racah;
 pub mod surd;
+pub mod wide;
 
 pub use surd::Surd;
 pub mod dd;

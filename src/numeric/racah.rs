@@ -7,7 +7,8 @@
 
 use super::primes::{prime_at, PrimeExps};
 use super::surd::Surd;
-use num_bigint::{BigInt, BigUint};
+use super::wide::{SignedWide, Wide};
+use num_bigint::{BigInt, BigUint, Sign};
 use num_rational::BigRational;
 use num_traits::{One, Signed, Zero};
 
@@ -401,24 +402,45 @@ impl RacahFormula {
 }
 
 /// Factorial arguments up to this use the stack-only fast path.
-const FAST_LIMIT: i64 = 96;
-/// Primes below `FAST_LIMIT + 2`.
-const FAST_PRIMES: [u64; 25] = [
+const FAST_LIMIT: i64 = 127;
+/// Primes up to `FAST_LIMIT`.
+const FAST_PRIMES: [u64; 31] = [
     2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59, 61, 67, 71, 73, 79, 83, 89, 97,
+    101, 103, 107, 109, 113, 127,
 ];
+/// `p^-1 mod 2^64` for each odd fast prime (0 for 2).
+const ODD_INVERSES: [u64; 31] = {
+    let mut out = [0u64; 31];
+    let mut i = 1;
+    while i < 31 {
+        let p = FAST_PRIMES[i];
+        // Newton's iteration doubles the correct low bits: 3, 6, ..., 96
+        let mut x = p;
+        let mut step = 0;
+        while step < 5 {
+            x = x.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(x)));
+            step += 1;
+        }
+        out[i] = x;
+        i += 1;
+    }
+    out
+};
 
-/// Exponents of `n!` and of `n` for `n <= FAST_LIMIT + 1`, by prime position.
-struct FastTables {
-    fact: Vec<[i16; 25]>,
-    int: Vec<[i16; 25]>,
-}
+/// Exponent lanes (the primes padded to a vector-friendly width).
+const LANES: usize = 32;
 
-fn fast_tables() -> &'static FastTables {
-    static T: std::sync::OnceLock<FastTables> = std::sync::OnceLock::new();
+/// Exponents of the fast primes, by position.
+pub type FastExps = [i16; LANES];
+
+/// Exponents of `n!` for `n <= FAST_LIMIT`, by prime position.
+fn fast_factorials() -> &'static [FastExps] {
+    static T: std::sync::OnceLock<Vec<FastExps>> = std::sync::OnceLock::new();
     T.get_or_init(|| {
-        let n = (FAST_LIMIT + 2) as usize;
-        let mut int = vec![[0i16; 25]; n + 1];
-        for (m, row) in int.iter_mut().enumerate().skip(2) {
+        let n = FAST_LIMIT as usize;
+        let mut fact = vec![[0i16; LANES]; n + 1];
+        for m in 2..=n {
+            let mut row = fact[m - 1];
             let mut x = m as u64;
             for (i, &p) in FAST_PRIMES.iter().enumerate() {
                 while x.is_multiple_of(p) {
@@ -426,125 +448,396 @@ fn fast_tables() -> &'static FastTables {
                     x /= p;
                 }
             }
-        }
-        let mut fact = vec![[0i16; 25]; n + 1];
-        for m in 2..=n {
-            let mut row = fact[m - 1];
-            for i in 0..25 {
-                row[i] += int[m][i];
-            }
             fact[m] = row;
         }
-        FastTables { fact, int }
+        fact
     })
 }
 
-impl RacahFormula {
-    /// The exact value without heap work until the result is built, when
-    /// every factorial argument is at most `FAST_LIMIT` and the sum fits
-    /// `i128` (`None` otherwise: the general path takes over).
-    pub fn exact_fast(&self) -> Option<Surd> {
-        let s = &self.sum;
-        if s.kmin > s.kmax {
+/// `e += times * row`, lane by lane (vectorised by the compiler).
+fn add_row(e: &mut FastExps, row: &FastExps, times: i16) {
+    for (x, &r) in e.iter_mut().zip(row) {
+        *x += times * r;
+    }
+}
+
+/// `a * sqrt(Π p_i^e_i)` over the fast primes: the stack form of
+/// `RawValue`, unreduced.
+#[derive(Clone, Copy, Debug)]
+pub struct FastRaw {
+    /// the integer multiplier with its sign
+    pub a: SignedWide,
+    /// exponents of the radicand
+    pub e: FastExps,
+}
+
+impl FastRaw {
+    /// The value 0.
+    pub fn zero() -> Self {
+        FastRaw {
+            a: SignedWide::zero(),
+            e: [0; LANES],
+        }
+    }
+
+    /// The product (`None` beyond the stack capacity).
+    pub fn mul(&self, other: &FastRaw) -> Option<FastRaw> {
+        let mag = self.a.mag.mul(&other.a.mag)?;
+        let mut e = [0i16; LANES];
+        for (i, x) in e.iter_mut().enumerate() {
+            *x = self.e[i].checked_add(other.e[i])?;
+        }
+        Some(FastRaw {
+            a: SignedWide {
+                neg: (self.a.neg != other.a.neg) && !mag.is_zero(),
+                mag,
+            },
+            e,
+        })
+    }
+
+    /// The product with an integer.
+    pub fn scale(&mut self, m: i64) -> Option<()> {
+        self.a.mag.mul_small(m.unsigned_abs())?;
+        self.a.neg = (self.a.neg != (m < 0)) && !self.a.mag.is_zero();
+        Some(())
+    }
+
+    /// The canonical `Surd` `q sqrt(s)`: the square part of the radicand
+    /// leaves the root and the denominator's primes cancel against `a`,
+    /// several odd primes per pass (one remainder by their product gives
+    /// every valuation), 2 by its trailing zeros. `None` beyond the stack
+    /// capacity.
+    pub fn to_surd(&self) -> Option<Surd> {
+        if self.a.is_zero() {
             return Some(Surd::zero());
         }
-        for &a in self.root_num.iter().chain(&self.root_den) {
-            if a > FAST_LIMIT {
-                return None;
-            }
+        if let Some(v) = self.surd_in_u128() {
+            return Some(v);
         }
-        for a in s.num.iter().chain(&s.den) {
-            if a.c + a.s * s.kmin > FAST_LIMIT || a.c + a.s * s.kmax > FAST_LIMIT {
-                return None;
-            }
-        }
-        let (a, _) = s.horner_ratio_i128()?;
-        if a == 0 {
-            return Some(Surd::zero());
-        }
-        let t = fast_tables();
-        // only primes up to the largest number involved can appear
-        let mut top = 2i64;
-        for &x in self.root_num.iter().chain(&self.root_den) {
-            top = top.max(x);
-        }
-        for f in s.num.iter().chain(&s.den) {
-            top = top.max(f.c + f.s * s.kmin + 1).max(f.c + f.s * s.kmax + 1);
-        }
-        let width = FAST_PRIMES.partition_point(|&p| p as i64 <= top);
-        let mut e = [0i32; 25];
-        let mut add = |row: &[i16; 25], times: i32| {
-            for i in 0..width {
-                e[i] += times * row[i] as i32;
-            }
-        };
-        for &x in &self.root_num {
-            add(&t.fact[x as usize], 1);
-        }
-        for &x in &self.root_den {
-            add(&t.fact[x as usize], -1);
-        }
-        for f in &s.num {
-            add(&t.fact[(f.c + f.s * s.kmin) as usize], 2);
-        }
-        for f in &s.den {
-            add(&t.fact[(f.c + f.s * s.kmin) as usize], -2);
-        }
-        for k in s.kmin..s.kmax {
-            let mut bad = false;
-            s.for_each_denominator_factor(k, |f| {
-                if f as usize >= t.int.len() {
-                    bad = true;
-                } else {
-                    add(&t.int[f as usize], -2);
-                }
-            });
-            if bad {
-                return None;
-            }
-        }
-        let negative = (a < 0) != ((s.kmin & 1 == 1) != self.negative);
-        let mut a = a.unsigned_abs();
-        let (mut num, mut den, mut free): (u128, u128, u128) = (1, 1, 1);
-        for (i, &ex) in e.iter().enumerate().take(width) {
+        let mut a = self.a.mag;
+        let mut den = Wide::one();
+        let mut free = Wide::one();
+        // (prime position, exponent still to cancel against a)
+        let mut pending = [(0usize, 0u32); LANES];
+        let mut count = 0;
+        for (i, &p) in FAST_PRIMES.iter().enumerate() {
+            let ex = self.e[i] as i32;
             if ex == 0 {
                 continue;
             }
-            let p = FAST_PRIMES[i] as u128;
+            if ex.rem_euclid(2) == 1 {
+                free.mul_small(p)?;
+            }
             let h = ex.div_euclid(2);
+            if h < 0 {
+                pending[count] = (i, (-h) as u32);
+                count += 1;
+            }
+        }
+        let pending = &mut pending[..count];
+        if let Some((0, need)) = pending.first_mut() {
+            let take = a.trailing_zeros().min(*need);
+            a.shr(take);
+            den.mul_pow(2, *need - take)?;
+            *need = 0;
+        }
+        loop {
+            // pack the pending odd prime powers into one modulus
+            let mut modulus: u64 = 1;
+            let mut chunk = [(0usize, 0u32, 1u64); LANES];
+            let mut parts = 0;
+            for (slot, &mut (i, need)) in pending.iter_mut().enumerate() {
+                if need == 0 {
+                    continue;
+                }
+                let p = FAST_PRIMES[i];
+                let room = u64::MAX / modulus / p;
+                let (mut c, mut pc) = (0u32, 1u64);
+                while c < need && pc <= room {
+                    pc *= p;
+                    c += 1;
+                }
+                if c > 0 {
+                    modulus *= pc;
+                    chunk[parts] = (slot, c, pc);
+                    parts += 1;
+                }
+            }
+            if parts == 0 {
+                break;
+            }
+            let r = a.rem_small(modulus);
+            let mut divisor: u64 = 1;
+            for &(slot, c, pc) in &chunk[..parts] {
+                let (i, need) = pending[slot];
+                let p = FAST_PRIMES[i];
+                let mut rp = r % pc;
+                let mut v = c;
+                if rp != 0 {
+                    v = 0;
+                    loop {
+                        // exact division test by the inverse (rp < 2^64)
+                        let q = rp.wrapping_mul(ODD_INVERSES[i]);
+                        if q > u64::MAX / p {
+                            break;
+                        }
+                        rp = q;
+                        v += 1;
+                    }
+                }
+                divisor *= p.pow(v);
+                if v < c {
+                    den.mul_pow(p, need - v)?;
+                    pending[slot].1 = 0;
+                } else {
+                    pending[slot].1 = need - c;
+                }
+            }
+            if divisor > 1 {
+                a.div_small(divisor);
+            }
+        }
+        // the square part of the radicand leaves the root; num and den
+        // share no prime (den only holds primes a lacked), so the fraction
+        // is already reduced
+        for (i, &p) in FAST_PRIMES.iter().enumerate() {
+            let h = (self.e[i] as i32).div_euclid(2);
+            if h > 0 {
+                a.mul_pow(p, h as u32)?;
+            }
+        }
+        let n = a.to_biguint();
+        let sign = if self.a.neg { Sign::Minus } else { Sign::Plus };
+        let q = BigRational::new_raw(
+            BigInt::from_biguint(sign, n),
+            BigInt::from_biguint(Sign::Plus, den.to_biguint()),
+        );
+        Some(Surd::monomial_squarefree(q, free.to_biguint()))
+    }
+}
+
+impl FastRaw {
+    /// `to_surd` in `u128` scalars when every number fits (the common
+    /// case at small j; `None` otherwise).
+    fn surd_in_u128(&self) -> Option<Surd> {
+        let mut a = self.a.mag.to_u128()?;
+        let (mut num, mut den, mut free) = (1u128, 1u128, 1u128);
+        for (i, &p) in FAST_PRIMES.iter().enumerate() {
+            let ex = self.e[i] as i32;
+            if ex == 0 {
+                continue;
+            }
+            let p = p as u128;
             if ex.rem_euclid(2) == 1 {
                 free = free.checked_mul(p)?;
             }
+            let h = ex.div_euclid(2);
             if h > 0 {
                 num = num.checked_mul(p.checked_pow(h as u32)?)?;
             } else if h < 0 {
-                let mut left = -h;
-                // 64-bit division where the numerator allows (much cheaper)
-                while left > 0 {
-                    let divisible = match u64::try_from(a) {
-                        Ok(a64) => a64.is_multiple_of(p as u64),
-                        Err(_) => a.is_multiple_of(p),
-                    };
-                    if !divisible {
-                        break;
+                let mut left = (-h) as u32;
+                if p == 2 {
+                    let take = a.trailing_zeros().min(left);
+                    a >>= take;
+                    left -= take;
+                } else {
+                    let inverse = ODD_INVERSES[i];
+                    while left > 0 {
+                        match u64::try_from(a) {
+                            // exact division by an odd p in 64 bits: a is a
+                            // multiple of p iff a * p^-1 mod 2^64 <= MAX / p
+                            Ok(a64) => {
+                                let q = a64.wrapping_mul(inverse);
+                                if q > u64::MAX / p as u64 {
+                                    break;
+                                }
+                                a = q as u128;
+                            }
+                            Err(_) => {
+                                if a % p != 0 {
+                                    break;
+                                }
+                                a /= p;
+                            }
+                        }
+                        left -= 1;
                     }
-                    a /= p;
-                    left -= 1;
                 }
                 if left > 0 {
-                    den = den.checked_mul(p.checked_pow(left as u32)?)?;
+                    den = den.checked_mul(p.checked_pow(left)?)?;
                 }
             }
         }
-        // num and den share no prime (den only holds primes a lacked), so
-        // the fraction is already reduced
         let n = num.checked_mul(a)?;
-        let d = den;
-        let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(d));
-        if negative {
+        let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(den));
+        if self.a.neg {
             q = -q;
         }
         Some(Surd::monomial_squarefree(q, BigUint::from(free)))
+    }
+}
+
+/// A running sum of fast raw values that may carry different radicands
+/// (the stack form of `sum_raw`): one accumulator per square class (the
+/// parity of the exponents), each over the least exponents seen so far;
+/// a term with a smaller exponent scales the accumulator up instead.
+#[derive(Default)]
+pub struct FastSum {
+    groups: Vec<(u32, FastRaw)>,
+}
+
+impl FastSum {
+    /// An empty sum.
+    pub fn new() -> Self {
+        FastSum::default()
+    }
+
+    /// Adds a term (`None` beyond the stack capacity).
+    pub fn add(&mut self, term: &FastRaw) -> Option<()> {
+        if term.a.is_zero() {
+            return Some(());
+        }
+        let class = term
+            .e
+            .iter()
+            .enumerate()
+            .fold(0u32, |m, (i, &x)| m | (((x & 1) as u32) << i));
+        let Some((_, acc)) = self.groups.iter_mut().find(|(c, _)| *c == class) else {
+            self.groups.push((class, *term));
+            return Some(());
+        };
+        let mut scaled = term.a;
+        for (i, &p) in FAST_PRIMES.iter().enumerate() {
+            let (have, new) = (acc.e[i], term.e[i]);
+            if new < have {
+                acc.a.mag.mul_pow(p, ((have - new) / 2) as u32)?;
+                acc.e[i] = new;
+            } else if new > have {
+                scaled.mag.mul_pow(p, ((new - have) / 2) as u32)?;
+            }
+        }
+        acc.a.add_assign(&scaled)
+    }
+
+    /// The exact sum (`None` beyond the stack capacity).
+    pub fn to_surd(&self) -> Option<Surd> {
+        let mut out = Surd::zero();
+        for (_, acc) in &self.groups {
+            out = &out + &acc.to_surd()?;
+        }
+        Some(out)
+    }
+}
+
+impl RacahSum {
+    /// `ratio` in `u64`, exact on the fast path (at most nine factors,
+    /// each at most `FAST_LIMIT + 1`, so every product is below `2^63`).
+    fn ratio_fast(&self, k: i64) -> (u64, u64) {
+        let mut n: u64 = 1;
+        let mut d: u64 = 1;
+        for f in &self.num {
+            if f.s > 0 {
+                n *= (f.at(k) + 1) as u64;
+            } else {
+                d *= f.at(k) as u64;
+            }
+        }
+        for f in &self.den {
+            if f.s > 0 {
+                d *= (f.at(k) + 1) as u64;
+            } else {
+                n *= f.at(k) as u64;
+            }
+        }
+        (n, d)
+    }
+
+    /// Horner's sum relative to its first term, `A` of `A / P`: in `i128`
+    /// and, on overflow, on the stack in `SignedWide`.
+    fn horner_fast(&self) -> Option<SignedWide> {
+        let small = (|| {
+            let mut a: i128 = 1;
+            let mut p: i128 = 1;
+            let mut k = self.kmax - 1;
+            while k >= self.kmin {
+                let (n, d) = self.ratio_fast(k);
+                let dp = (d as i128).checked_mul(p)?;
+                a = dp.checked_sub((n as i128).checked_mul(a)?)?;
+                p = dp;
+                k -= 1;
+            }
+            Some(a)
+        })();
+        if let Some(a) = small {
+            return Some(SignedWide::from_i128(a));
+        }
+        let mut a = SignedWide::from_i128(1);
+        let mut p = Wide::one();
+        let mut k = self.kmax - 1;
+        while k >= self.kmin {
+            let (n, d) = self.ratio_fast(k);
+            p.mul_small(d)?;
+            a.mag.mul_small(n)?;
+            a.rsub_from(&p)?;
+            k -= 1;
+        }
+        Some(a)
+    }
+}
+
+impl RacahFormula {
+    /// The value as a `FastRaw`, without heap work, when every factorial
+    /// argument is at most `FAST_LIMIT` and the numbers fit the stack
+    /// (`None` otherwise: the general path takes over). The denominator
+    /// `P` of Horner's sum is a product of ranges of integers, so its
+    /// exponents are differences of factorial rows: each factorial of the
+    /// summand enters once, at the end of the range where it is largest.
+    pub fn fast_raw(&self) -> Option<FastRaw> {
+        let s = &self.sum;
+        if s.kmin > s.kmax {
+            return Some(FastRaw::zero());
+        }
+        let in_range = |x: i64| (0..=FAST_LIMIT).contains(&x);
+        if !self
+            .root_num
+            .iter()
+            .chain(&self.root_den)
+            .all(|&x| in_range(x))
+            || !s
+                .num
+                .iter()
+                .chain(&s.den)
+                .all(|f| in_range(f.at(s.kmin)) && in_range(f.at(s.kmax)))
+        {
+            return None;
+        }
+        let fact = fast_factorials();
+        let mut e = [0i16; LANES];
+        for &x in &self.root_num {
+            add_row(&mut e, &fact[x as usize], 1);
+        }
+        for &x in &self.root_den {
+            add_row(&mut e, &fact[x as usize], -1);
+        }
+        for f in &s.num {
+            let at = if f.s > 0 { s.kmin } else { s.kmax };
+            add_row(&mut e, &fact[f.at(at) as usize], 2);
+        }
+        for f in &s.den {
+            let at = if f.s > 0 { s.kmax } else { s.kmin };
+            add_row(&mut e, &fact[f.at(at) as usize], -2);
+        }
+        let mut a = s.horner_fast()?;
+        if (s.kmin & 1 == 1) != self.negative && !a.is_zero() {
+            a.neg = !a.neg;
+        }
+        Some(FastRaw { a, e })
+    }
+
+    /// The exact value by the fast path (`None` outside it).
+    pub fn exact_fast(&self) -> Option<Surd> {
+        self.fast_raw()?.to_surd()
     }
 }
 
@@ -650,4 +943,34 @@ pub fn six_j_formula(t: [i64; 6]) -> Option<RacahFormula> {
         root_den: Short::of(&root_den),
         negative: false,
     })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_odd_inverses_invert_modulo_two_to_the_64() {
+        for (i, &p) in FAST_PRIMES.iter().enumerate().skip(1) {
+            assert_eq!(p.wrapping_mul(ODD_INVERSES[i]), 1, "p = {p}");
+        }
+    }
+
+    #[test]
+    fn the_factorial_rows_follow_legendres_formula() {
+        // v_p(n!) = Σ floor(n / p^k) (Legendre; common practice, no source)
+        let rows = fast_factorials();
+        for n in [0u64, 1, 2, 10, 64, 100, 127] {
+            for (i, &p) in FAST_PRIMES.iter().enumerate() {
+                let mut v = 0;
+                let mut q = p;
+                while q <= n {
+                    v += n / q;
+                    q *= p;
+                }
+                assert_eq!(rows[n as usize][i] as u64, v, "{p} in {n}!");
+            }
+            assert_eq!(rows[n as usize][31], 0);
+        }
+    }
 }
