@@ -1,7 +1,7 @@
 //! The choice of the next graph step for a term with projection sums:
 //! Clebsch–Gordan coefficients to 3j first, then closed pieces recognised
-//! whole (theta, tetrahedron = one 6j, K3,3 = one 9j), bubbles and
-//! triangles, and otherwise an interchange on a shortest cycle that puts
+//! whole (theta, tetrahedron = one 6j, K3,3 = one 9j), loops (separation
+//! on one line), bubbles and triangles, and otherwise an interchange on a shortest cycle that puts
 //! the cycle's two legs on one vertex (shortening it by one, at the cost of
 //! one sum over a new angular momentum and a 6j). Each step is a catalog
 //! rule applied by the matcher; the driver verifies it.
@@ -31,6 +31,7 @@ pub struct GraphRewrite {
 struct Patterns {
     cg: Pattern,
     theta: Pattern,
+    self_loop: Pattern,
     bubble: Pattern,
     triangle: Pattern,
     tetrahedron: Pattern,
@@ -46,6 +47,7 @@ fn patterns() -> &'static Patterns {
         Patterns {
             cg: p("cg-to-3j"),
             theta: p("theta"),
+            self_loop: p("loop"),
             bubble: p("bubble"),
             triangle: p("triangle"),
             tetrahedron: p("tetrahedron"),
@@ -134,6 +136,19 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
             _ => continue,
         };
         if let Some(r) = rewrite_in(p, t, &none, regge, Some(&factors_of(c))) {
+            return Some(r);
+        }
+    }
+    // a line from a vertex to itself: separation on one line (the
+    // vertex's third leg must carry j = 0)
+    for l in g.lines.iter().filter(|l| l.tail.0 == l.head.0) {
+        if let Some(r) = rewrite_in(
+            &ps.self_loop,
+            t,
+            &none,
+            regge,
+            Some(&factors_of(&[l.tail.0])),
+        ) {
             return Some(r);
         }
     }
