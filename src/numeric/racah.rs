@@ -734,23 +734,8 @@ impl RacahSum {
     /// `ratio` in `u64`, exact on the fast path (at most nine factors,
     /// each at most `FAST_LIMIT + 1`, so every product is below `2^63`).
     fn ratio_fast(&self, k: i64) -> (u64, u64) {
-        let mut n: u64 = 1;
-        let mut d: u64 = 1;
-        for f in &self.num {
-            if f.s > 0 {
-                n *= (f.at(k) + 1) as u64;
-            } else {
-                d *= f.at(k) as u64;
-            }
-        }
-        for f in &self.den {
-            if f.s > 0 {
-                d *= (f.at(k) + 1) as u64;
-            } else {
-                n *= f.at(k) as u64;
-            }
-        }
-        (n, d)
+        let (n, d) = self.ratio(k);
+        (n as u64, d as u64)
     }
 
     /// Horner's sum relative to its first term, `A` of `A / P`: in `i128`
