@@ -1,9 +1,12 @@
 //! The exact single-sum engine behind the Racah formulas: a value
 //! `sign * sqrt(R) * Σ_k (-1)^k Π num_i(k)! / Π den_i(k)!` with factorial
 //! arguments affine in `k`, summed by Horner's rule from the last term (no
-//! big factorials are ever built), first in `i128` and, on overflow, in
-//! `num-bigint`. The result is a `RawValue` `A * sqrt(Π p^e_p)` that
-//! `canonical` turns into a `Surd`.
+//! big factorials are ever built). Two paths give the same values: the
+//! stack path (`FastRaw`, `FastSum`) while every factorial argument is at
+//! most 127 — exponents over the 31 primes below 128, Horner in `i128`
+//! then in `wide` integers — and the general path (`RawValue`, any primes,
+//! `num-bigint`). `canonical` and `FastRaw::to_surd` turn either
+//! `A * sqrt(Π p^e_p)` into a `Surd`.
 
 use super::primes::{prime_at, PrimeExps};
 use super::surd::Surd;
