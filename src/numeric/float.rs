@@ -137,7 +137,8 @@ fn f64_sum_with_bound(s: &RacahSum) -> Option<f64> {
         if n >= (1u128 << 53) || d >= (1u128 << 53) {
             return None;
         }
-        t = -t * (n as f64 / d as f64);
+        // below 2^53: the u64 conversion is one instruction, the u128 one a call
+        t = -t * ((n as u64) as f64 / (d as u64) as f64);
         steps += 1;
         sum += t;
         abs += t.abs();
@@ -166,7 +167,7 @@ fn dd_sum_plain(s: &RacahSum) -> Option<f64> {
         if n >= (1u128 << 53) || d >= (1u128 << 53) {
             return None;
         }
-        t = -(t.mul_f64(n as f64).div_f64(d as f64));
+        t = -(t.mul_f64((n as u64) as f64).div_f64((d as u64) as f64));
         sum = sum + t;
         abs += t.hi.abs();
         if abs.is_nan() || abs >= 1e270 {
