@@ -6,7 +6,7 @@
 //! integrality condition is exactly 0.
 
 use super::racah::{
-    canonical, six_j_formula, sum_raw, three_j_formula, FastRaw, FastSum, RawValue,
+    canonical, six_j_formula, sum_raw, three_j_formula, FastRaw, FastSum, RawValue, PRODUCT_LIMBS,
 };
 use super::surd::Surd;
 use num_bigint::BigInt;
@@ -147,7 +147,8 @@ pub fn nine_j_fast(t: &[i64; 9]) -> Option<Surd> {
             if !s2.a.is_zero() {
                 let s3 = six([g, h, i, x, a, d])?;
                 if !s3.a.is_zero() {
-                    let mut term = s1.mul(&s2)?.mul(&s3)?;
+                    let pair: FastRaw<PRODUCT_LIMBS> = s1.mul(&s2)?;
+                    let mut term: FastRaw<PRODUCT_LIMBS> = pair.mul(&s3)?;
                     term.scale(if x % 2 != 0 { -(x + 1) } else { x + 1 })?;
                     total.add(&term)?;
                 }

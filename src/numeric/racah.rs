@@ -464,17 +464,22 @@ fn add_row(e: &mut FastExps, row: &FastExps, times: i16) {
     }
 }
 
-/// `a * sqrt(Π p_i^e_i)` over the fast primes: the stack form of
-/// `RawValue`, unreduced.
+/// Limbs for one symbol's Horner sum on the stack (1024 bits).
+pub const SYMBOL_LIMBS: usize = 16;
+/// Limbs for products and sums of symbols, as in a 9j (3072 bits).
+pub const PRODUCT_LIMBS: usize = 48;
+
+/// `a * sqrt(Π p_i^e_i)` over the fast primes, with `a` in `N` limbs: the
+/// stack form of `RawValue`, unreduced.
 #[derive(Clone, Copy, Debug)]
-pub struct FastRaw {
+pub struct FastRaw<const N: usize = SYMBOL_LIMBS> {
     /// the integer multiplier with its sign
-    pub a: SignedWide,
+    pub a: SignedWide<N>,
     /// exponents of the radicand
     pub e: FastExps,
 }
 
-impl FastRaw {
+impl<const N: usize> FastRaw<N> {
     /// The value 0.
     pub fn zero() -> Self {
         FastRaw {
@@ -483,8 +488,8 @@ impl FastRaw {
         }
     }
 
-    /// The product (`None` beyond the stack capacity).
-    pub fn mul(&self, other: &FastRaw) -> Option<FastRaw> {
+    /// The product, in `R` limbs (`None` beyond them).
+    pub fn mul<const M: usize, const R: usize>(&self, other: &FastRaw<M>) -> Option<FastRaw<R>> {
         let mag = self.a.mag.mul(&other.a.mag)?;
         let mut e = [0i16; LANES];
         for (i, x) in e.iter_mut().enumerate() {
@@ -519,8 +524,8 @@ impl FastRaw {
             return Some(v);
         }
         let mut a = self.a.mag;
-        let mut den = Wide::one();
-        let mut free = Wide::one();
+        let mut den = Wide::<N>::one();
+        let mut free = Wide::<N>::one();
         // (prime position, exponent still to cancel against a)
         let mut pending = [(0usize, 0u32); LANES];
         let mut count = 0;
@@ -620,7 +625,7 @@ impl FastRaw {
     }
 }
 
-impl FastRaw {
+impl<const N: usize> FastRaw<N> {
     /// `to_surd` in `u128` scalars when every number fits (the common
     /// case at small j; `None` otherwise).
     fn surd_in_u128(&self) -> Option<Surd> {
@@ -687,7 +692,7 @@ impl FastRaw {
 /// a term with a smaller exponent scales the accumulator up instead.
 #[derive(Default)]
 pub struct FastSum {
-    groups: Vec<(u32, FastRaw)>,
+    groups: Vec<(u32, FastRaw<PRODUCT_LIMBS>)>,
 }
 
 impl FastSum {
@@ -697,7 +702,7 @@ impl FastSum {
     }
 
     /// Adds a term (`None` beyond the stack capacity).
-    pub fn add(&mut self, term: &FastRaw) -> Option<()> {
+    pub fn add(&mut self, term: &FastRaw<PRODUCT_LIMBS>) -> Option<()> {
         if term.a.is_zero() {
             return Some(());
         }
@@ -743,7 +748,7 @@ impl RacahSum {
 
     /// Horner's sum relative to its first term, `A` of `A / P`: in `i128`
     /// and, on overflow, on the stack in `SignedWide`.
-    fn horner_fast(&self) -> Option<SignedWide> {
+    fn horner_fast(&self) -> Option<SignedWide<SYMBOL_LIMBS>> {
         let small = (|| {
             let mut a: i128 = 1;
             let mut p: i128 = 1;
@@ -760,8 +765,8 @@ impl RacahSum {
         if let Some(a) = small {
             return Some(SignedWide::from_i128(a));
         }
-        let mut a = SignedWide::from_i128(1);
-        let mut p = Wide::one();
+        let mut a = SignedWide::<SYMBOL_LIMBS>::from_i128(1);
+        let mut p = Wide::<SYMBOL_LIMBS>::one();
         let mut k = self.kmax - 1;
         while k >= self.kmin {
             let (n, d) = self.ratio_fast(k);

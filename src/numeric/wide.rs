@@ -1,34 +1,33 @@
 //! Fixed-capacity multiword integers on the stack (`Wide`, `SignedWide`)
 //! for the exact fast paths: Horner sums that overflow `i128` and the
-//! products of a 9j. Every operation that could exceed the capacity
+//! products of a 9j, with the capacity in limbs as a type parameter.
+//! Every operation that could exceed the capacity
 //! returns `None`, and the caller falls back to the heap big-integer path,
 //! so capacity is a speed limit, never a correctness one.
 
 use num_bigint::BigUint;
 use std::cmp::Ordering;
 
-/// Limbs of 64 bits held by a `Wide` (3072 bits).
-pub const WIDE_LIMBS: usize = 48;
-
-/// An unsigned integer below `2^(64 WIDE_LIMBS)`, little-endian limbs;
-/// `len` counts the significant limbs (0 for zero).
+/// An unsigned integer below `2^(64 N)`, in `N` little-endian limbs of 64
+/// bits; `len` counts the significant limbs (0 for zero). The capacity is a
+/// type parameter so that small values are cheap to move.
 #[derive(Clone, Copy)]
-pub struct Wide {
-    limbs: [u64; WIDE_LIMBS],
+pub struct Wide<const N: usize> {
+    limbs: [u64; N],
     len: usize,
 }
 
-impl std::fmt::Debug for Wide {
+impl<const N: usize> std::fmt::Debug for Wide<N> {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         write!(f, "{}", self.to_biguint())
     }
 }
 
-impl Wide {
+impl<const N: usize> Wide<N> {
     /// Zero.
     pub fn zero() -> Self {
         Wide {
-            limbs: [0; WIDE_LIMBS],
+            limbs: [0; N],
             len: 0,
         }
     }
@@ -88,7 +87,7 @@ impl Wide {
             carry = (x >> 64) as u64;
         }
         if carry != 0 {
-            if self.len == WIDE_LIMBS {
+            if self.len == N {
                 return None;
             }
             self.limbs[self.len] = carry;
@@ -97,15 +96,15 @@ impl Wide {
         Some(())
     }
 
-    /// `self * other` (`None` beyond the capacity).
-    pub fn mul(&self, other: &Wide) -> Option<Wide> {
+    /// `self * other` into a capacity of `R` limbs (`None` beyond it).
+    pub fn mul<const M: usize, const R: usize>(&self, other: &Wide<M>) -> Option<Wide<R>> {
         if self.is_zero() || other.is_zero() {
             return Some(Wide::zero());
         }
-        if self.len + other.len > WIDE_LIMBS {
+        if self.len + other.len > R {
             return None;
         }
-        let mut out = Wide::zero();
+        let mut out = Wide::<R>::zero();
         for (i, &x) in self.limbs().iter().enumerate() {
             let mut carry: u64 = 0;
             for (j, &y) in other.limbs().iter().enumerate() {
@@ -120,8 +119,19 @@ impl Wide {
         Some(out)
     }
 
+    /// The same value in a capacity of `M` limbs (`None` if it does not fit).
+    pub fn resize<const M: usize>(&self) -> Option<Wide<M>> {
+        if self.len > M {
+            return None;
+        }
+        let mut out = Wide::<M>::zero();
+        out.limbs[..self.len].copy_from_slice(self.limbs());
+        out.len = self.len;
+        Some(out)
+    }
+
     /// `self += other` (`None` beyond the capacity).
-    pub fn add_assign(&mut self, other: &Wide) -> Option<()> {
+    pub fn add_assign(&mut self, other: &Wide<N>) -> Option<()> {
         let len = self.len.max(other.len);
         let mut carry = false;
         for i in 0..len {
@@ -132,7 +142,7 @@ impl Wide {
         }
         self.len = len;
         if carry {
-            if len == WIDE_LIMBS {
+            if len == N {
                 return None;
             }
             self.limbs[len] = 1;
@@ -142,7 +152,7 @@ impl Wide {
     }
 
     /// `self -= other`; requires `self >= other`.
-    pub fn sub_assign(&mut self, other: &Wide) {
+    pub fn sub_assign(&mut self, other: &Wide<N>) {
         debug_assert!(self.cmp_mag(other) != Ordering::Less);
         let mut borrow = false;
         for i in 0..self.len {
@@ -155,7 +165,7 @@ impl Wide {
     }
 
     /// `self = other - self`; requires `other >= self`.
-    pub fn rsub_assign(&mut self, other: &Wide) {
+    pub fn rsub_assign(&mut self, other: &Wide<N>) {
         debug_assert!(other.cmp_mag(self) != Ordering::Less);
         let mut borrow = false;
         for i in 0..other.len {
@@ -169,7 +179,7 @@ impl Wide {
     }
 
     /// Compares magnitudes.
-    pub fn cmp_mag(&self, other: &Wide) -> Ordering {
+    pub fn cmp_mag(&self, other: &Wide<N>) -> Ordering {
         if self.len != other.len {
             return self.len.cmp(&other.len);
         }
@@ -292,14 +302,14 @@ impl Wide {
 
 /// A signed `Wide`: sign and magnitude (zero is never negative).
 #[derive(Clone, Copy, Debug)]
-pub struct SignedWide {
+pub struct SignedWide<const N: usize> {
     /// true for a negative value
     pub neg: bool,
     /// the magnitude
-    pub mag: Wide,
+    pub mag: Wide<N>,
 }
 
-impl SignedWide {
+impl<const N: usize> SignedWide<N> {
     /// Zero.
     pub fn zero() -> Self {
         SignedWide {
@@ -321,8 +331,16 @@ impl SignedWide {
         self.mag.is_zero()
     }
 
+    /// The same value in a capacity of `M` limbs (`None` if it does not fit).
+    pub fn resize<const M: usize>(&self) -> Option<SignedWide<M>> {
+        Some(SignedWide {
+            neg: self.neg,
+            mag: self.mag.resize()?,
+        })
+    }
+
     /// `self = p - self` for a nonnegative `p` (Horner's step).
-    pub fn rsub_from(&mut self, p: &Wide) -> Option<()> {
+    pub fn rsub_from(&mut self, p: &Wide<N>) -> Option<()> {
         if self.neg {
             self.mag.add_assign(p)?;
             self.neg = false;
@@ -339,7 +357,7 @@ impl SignedWide {
     }
 
     /// `self += other`.
-    pub fn add_assign(&mut self, other: &SignedWide) -> Option<()> {
+    pub fn add_assign(&mut self, other: &SignedWide<N>) -> Option<()> {
         if self.neg == other.neg {
             self.mag.add_assign(&other.mag)?;
         } else if self.mag.cmp_mag(&other.mag) != Ordering::Less {
@@ -362,8 +380,10 @@ mod tests {
     use super::*;
     use proptest::prelude::*;
 
-    fn wide_of(limbs: &[u64]) -> Wide {
-        let mut w = Wide::zero();
+    const T: usize = 12;
+
+    fn wide_of(limbs: &[u64]) -> Wide<T> {
+        let mut w = Wide::<T>::zero();
         w.limbs[..limbs.len()].copy_from_slice(limbs);
         w.len = limbs.len();
         w.trim();
@@ -392,7 +412,8 @@ mod tests {
             let (wa, wb) = (wide_of(&a), wide_of(&b));
             let (ba, bb) = (big_of(&a), big_of(&b));
             prop_assert_eq!(wa.to_biguint(), ba.clone());
-            prop_assert_eq!(wa.mul(&wb).unwrap().to_biguint(), &ba * &bb);
+            prop_assert_eq!(wa.mul::<T, T>(&wb).unwrap().to_biguint(), &ba * &bb);
+            prop_assert_eq!(wa.resize::<6>().unwrap().to_biguint(), ba.clone());
             let mut x = wa;
             x.mul_small(m).unwrap();
             prop_assert_eq!(x.to_biguint(), &ba * m);
@@ -426,7 +447,7 @@ mod tests {
         #[test]
         fn signed_steps_agree_with_big_integers(a in limbs(), b in limbs(), neg: bool, neg_b: bool) {
             use num_bigint::BigInt;
-            let to_big = |s: &SignedWide| {
+            let to_big = |s: &SignedWide<T>| {
                 let m = BigInt::from(s.mag.to_biguint());
                 if s.neg { -m } else { m }
             };
@@ -444,13 +465,15 @@ mod tests {
 
     #[test]
     fn capacity_overflow_is_reported() {
-        let mut x = wide_of(&[u64::MAX; WIDE_LIMBS]);
+        let mut x = wide_of(&[u64::MAX; T]);
         assert!(x.mul_small(2).is_none());
-        let half = wide_of(&[u64::MAX; WIDE_LIMBS / 2 + 1]);
-        assert!(half.mul(&half).is_none());
-        let fits = wide_of(&[u64::MAX; WIDE_LIMBS / 2]);
-        assert!(fits.mul(&fits).is_some());
-        let mut y = wide_of(&[u64::MAX; WIDE_LIMBS]);
+        let half = wide_of(&[u64::MAX; T / 2 + 1]);
+        assert!(half.mul::<T, T>(&half).is_none());
+        let fits = wide_of(&[u64::MAX; T / 2]);
+        assert!(fits.mul::<T, T>(&fits).is_some());
+        assert!(fits.mul::<T, { 2 * T }>(&half).is_some());
+        let mut y = wide_of(&[u64::MAX; T]);
         assert!(y.add_assign(&Wide::one()).is_none());
+        assert!(y.resize::<{ T - 1 }>().is_none());
     }
 }
