@@ -47,7 +47,7 @@ fn patterns() -> &'static Patterns {
         Patterns {
             cg: p("cg-to-3j"),
             theta: p("theta"),
-            self_loop: p("loop"),
+            self_loop: p("separation-one-line"),
             bubble: p("bubble"),
             triangle: p("triangle"),
             tetrahedron: p("tetrahedron"),
