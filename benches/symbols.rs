@@ -9,7 +9,7 @@
 //!
 //! A benchmark, not a test: it asserts nothing about time.
 
-use recoup::numeric::{exact, float};
+use recoup::numeric::{exact, float, Surd};
 use recoup::verify::rng::Rng;
 use std::time::Instant;
 
@@ -194,6 +194,34 @@ fn gsl9(a: &[i64; 9]) -> f64 {
     f64::NAN
 }
 
+/// Times exact, float and GSL on one list (`reps` = exact and float/GSL
+/// repetitions) and measures GSL's and recoup's float errors against the
+/// exact values.
+fn measure<T>(
+    what: String,
+    list: &[T],
+    reps: (usize, usize),
+    exact_value: impl Fn(&T) -> Surd,
+    float_value: impl Fn(&T) -> f64,
+    gsl: impl Fn(&T) -> f64,
+) -> Row {
+    let ex: Vec<f64> = list.iter().map(|a| exact_value(a).to_f64()).collect();
+    let max_error = |f: &dyn Fn(&T) -> f64| {
+        list.iter()
+            .zip(&ex)
+            .map(|(a, e)| rel(f(a), *e))
+            .fold(0.0, f64::max)
+    };
+    Row {
+        what,
+        exact: time_per(list, reps.0, |a| exact_value(a).terms().count() as f64),
+        float: time_per(list, reps.1, &float_value),
+        gsl: time_per(list, reps.1, &gsl),
+        gsl_err: max_error(&gsl),
+        ours_err: max_error(&float_value),
+    }
+}
+
 fn main() {
     #[cfg(feature = "gsl-bench")]
     unsafe {
@@ -210,69 +238,32 @@ fn main() {
             _ => 6,
         };
         let reps = if quick { 3 } else { 11 };
-        // 3j
         let l = args_3j(&mut rng, j, n);
-        let ex: Vec<f64> = l
-            .iter()
-            .map(|a| exact::three_j([a[0], a[1], a[2]], [a[3], a[4], a[5]]).to_f64())
-            .collect();
-        let te = time_per(&l, reps, |a| {
-            exact::three_j([a[0], a[1], a[2]], [a[3], a[4], a[5]])
-                .terms()
-                .count() as f64
-        });
-        let tf = time_per(&l, reps, |a| {
-            float::three_j_f64([a[0], a[1], a[2]], [a[3], a[4], a[5]])
-        });
-        let tg = time_per(&l, reps, gsl3);
-        let gerr = l
-            .iter()
-            .zip(&ex)
-            .map(|(a, e)| rel(gsl3(a), *e))
-            .fold(0.0, f64::max);
-        let oerr = l
-            .iter()
-            .zip(&ex)
-            .map(|(a, e)| {
-                rel(
-                    float::three_j_f64([a[0], a[1], a[2]], [a[3], a[4], a[5]]),
-                    *e,
-                )
-            })
-            .fold(0.0, f64::max);
-        rows.push(Row {
-            what: format!("3j, j ≈ {j}"),
-            exact: te,
-            float: tf,
-            gsl: tg,
-            gsl_err: gerr,
-            ours_err: oerr,
-        });
-        // 6j
+        let three = |a: &[i64; 6]| ([a[0], a[1], a[2]], [a[3], a[4], a[5]]);
+        rows.push(measure(
+            format!("3j, j ≈ {j}"),
+            &l,
+            (reps, reps),
+            |a| {
+                let (tj, tm) = three(a);
+                exact::three_j(tj, tm)
+            },
+            |a| {
+                let (tj, tm) = three(a);
+                float::three_j_f64(tj, tm)
+            },
+            gsl3,
+        ));
         let l = args_6j(&mut rng, j, n);
-        let ex: Vec<f64> = l.iter().map(|a| exact::six_j(*a).to_f64()).collect();
-        let te = time_per(&l, reps, |a| exact::six_j(*a).terms().count() as f64);
-        let tf = time_per(&l, reps, |a| float::six_j_f64(*a));
-        let tg = time_per(&l, reps, gsl6);
-        let gerr = l
-            .iter()
-            .zip(&ex)
-            .map(|(a, e)| rel(gsl6(a), *e))
-            .fold(0.0, f64::max);
-        let oerr = l
-            .iter()
-            .zip(&ex)
-            .map(|(a, e)| rel(float::six_j_f64(*a), *e))
-            .fold(0.0, f64::max);
-        rows.push(Row {
-            what: format!("6j, j ≈ {j}"),
-            exact: te,
-            float: tf,
-            gsl: tg,
-            gsl_err: gerr,
-            ours_err: oerr,
-        });
-        // 9j (exact only up to j ≈ 20: it is a sum over 6j products)
+        rows.push(measure(
+            format!("6j, j ≈ {j}"),
+            &l,
+            (reps, reps),
+            |a| exact::six_j(*a),
+            |a| float::six_j_f64(*a),
+            gsl6,
+        ));
+        // 9j up to j ≈ 100 (its exact value is a sum over 6j products)
         if j <= 100 {
             let n9 = match j {
                 5 => 300,
@@ -280,30 +271,14 @@ fn main() {
                 _ => 2,
             };
             let l = args_9j(&mut rng, j, n9);
-            let ex: Vec<f64> = l.iter().map(|a| exact::nine_j(*a).to_f64()).collect();
-            let te = time_per(&l, reps.min(5), |a| {
-                exact::nine_j(*a).terms().count() as f64
-            });
-            let tf = time_per(&l, reps, |a| float::nine_j_f64(*a));
-            let tg = time_per(&l, reps, gsl9);
-            let gerr = l
-                .iter()
-                .zip(&ex)
-                .map(|(a, e)| rel(gsl9(a), *e))
-                .fold(0.0, f64::max);
-            let oerr = l
-                .iter()
-                .zip(&ex)
-                .map(|(a, e)| rel(float::nine_j_f64(*a), *e))
-                .fold(0.0, f64::max);
-            rows.push(Row {
-                what: format!("9j, j ≈ {j}"),
-                exact: te,
-                float: tf,
-                gsl: tg,
-                gsl_err: gerr,
-                ours_err: oerr,
-            });
+            rows.push(measure(
+                format!("9j, j ≈ {j}"),
+                &l,
+                (reps.min(5), reps),
+                |a| exact::nine_j(*a),
+                |a| float::nine_j_f64(*a),
+                gsl9,
+            ));
         }
     }
     println!("| symbol | recoup exact | recoup float | GSL 2.7 | exact/GSL | float/GSL | GSL max rel. error | recoup float max rel. error |");

@@ -17,21 +17,11 @@ use recoup::verify::rng::Rng;
 use recoup::verify::spot::SpotSettings;
 
 fn projection_sums_left(e: &Expr) -> usize {
-    e.terms
-        .iter()
-        .map(|t| {
-            let k = t.kinds();
-            t.bound
-                .iter()
-                .filter(|b| k.get(*b) == Some(&Kind::Projection))
-                .count()
-        })
-        .max()
-        .unwrap_or(0)
+    common::sums_left(e, Some(Kind::Projection))
 }
 
 fn momentum_sums_left(e: &Expr) -> usize {
-    e.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
+    common::sums_left(e, None)
 }
 
 fn disguise(text: &str, rng: &mut Rng) -> Expr {

@@ -27,21 +27,11 @@ const IDENTITIES: &[(&str, &str, &str)] = &[
 ];
 
 fn sums_left(e: &Expr) -> usize {
-    e.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
+    common::sums_left(e, None)
 }
 
 fn j_sums_left(e: &Expr) -> usize {
-    e.terms
-        .iter()
-        .map(|t| {
-            let k = t.kinds();
-            t.bound
-                .iter()
-                .filter(|b| k.get(*b) == Some(&Kind::AngularMomentum))
-                .count()
-        })
-        .max()
-        .unwrap_or(0)
+    common::sums_left(e, Some(Kind::AngularMomentum))
 }
 
 fn equal(a: &Expr, b: &Expr, seed: u64) -> bool {

@@ -146,40 +146,47 @@ pub fn classical_images(f: &Factor) -> Vec<Image> {
         }
         Factor::NineJ(a) => {
             let s = sum(&a.iter().collect::<Vec<_>>());
-            let mut out = Vec::with_capacity(72);
-            for (ri, r) in PERMS3.iter().enumerate() {
-                for (ci, c) in PERMS3.iter().enumerate() {
-                    for transpose in [false, true] {
-                        let mut args: Vec<Lin> = Vec::with_capacity(9);
-                        for i in 0..3 {
-                            for k in 0..3 {
-                                let (row, col) = if transpose {
-                                    (c[k], r[i])
-                                } else {
-                                    (r[i], c[k])
-                                };
-                                args.push(a[3 * row + col].clone());
-                            }
-                        }
-                        let phase = if odd3(ri) != odd3(ci) {
-                            s.clone()
-                        } else {
-                            Lin::zero()
-                        };
-                        out.push(Image {
-                            factor: Factor::NineJ(args.try_into().unwrap()),
-                            phase,
-                        });
-                    }
-                }
-            }
-            out
+            let square: [[Lin; 3]; 3] =
+                std::array::from_fn(|r| std::array::from_fn(|c| a[3 * r + c].clone()));
+            square_images(&square)
+                .into_iter()
+                .map(|(sq, odd)| Image {
+                    factor: Factor::NineJ(std::array::from_fn(|k| sq[k / 3][k % 3].clone())),
+                    phase: if odd { s.clone() } else { Lin::zero() },
+                })
+                .collect()
         }
         other => vec![Image {
             factor: other.clone(),
             phase: Lin::zero(),
         }],
     }
+}
+
+/// The 72 images of a 3x3 square under row permutations, column
+/// permutations and transposition, each with whether its row and column
+/// permutations differ in parity (the odd images of a 9j or a Regge
+/// square, which cost a phase).
+fn square_images(sq: &[[Lin; 3]; 3]) -> Vec<([[Lin; 3]; 3], bool)> {
+    let mut out = Vec::with_capacity(72);
+    for (ri, r) in PERMS3.iter().enumerate() {
+        for (ci, c) in PERMS3.iter().enumerate() {
+            for transpose in [false, true] {
+                let image = std::array::from_fn(|i| {
+                    std::array::from_fn(|k| {
+                        let (row, col) = if transpose {
+                            (c[k], r[i])
+                        } else {
+                            (r[i], c[k])
+                        };
+                        sq[row][col].clone()
+                    })
+                });
+                out.push((image, odd3(ri) != odd3(ci)));
+            }
+        }
+    }
+    out
 }
 
 /// The Regge square of a 3j: rows `(-j1+j2+j3, j1-j2+j3, j1+j2-j3)`,
@@ -215,35 +222,13 @@ pub fn regge_images(f: &Factor) -> Vec<Image> {
     match f {
         Factor::ThreeJ(a) => {
             let jsum = sum(&[&a[0], &a[1], &a[2]]);
-            let sq = regge_square(a);
-            let mut out = Vec::with_capacity(72);
-            for (ri, r) in PERMS3.iter().enumerate() {
-                for (ci, c) in PERMS3.iter().enumerate() {
-                    for transpose in [false, true] {
-                        let mut s: [[Lin; 3]; 3] = Default::default();
-                        for i in 0..3 {
-                            for k in 0..3 {
-                                let (row, col) = if transpose {
-                                    (c[k], r[i])
-                                } else {
-                                    (r[i], c[k])
-                                };
-                                s[i][k] = sq[row][col].clone();
-                            }
-                        }
-                        let phase = if odd3(ri) != odd3(ci) {
-                            jsum.clone()
-                        } else {
-                            Lin::zero()
-                        };
-                        out.push(Image {
-                            factor: Factor::ThreeJ(from_square(&s)),
-                            phase,
-                        });
-                    }
-                }
-            }
-            out
+            square_images(&regge_square(a))
+                .into_iter()
+                .map(|(sq, odd)| Image {
+                    factor: Factor::ThreeJ(from_square(&sq)),
+                    phase: if odd { jsum.clone() } else { Lin::zero() },
+                })
+                .collect()
         }
         Factor::SixJ(_) => {
             let mut seen: HashMap<Factor, ()> = HashMap::new();

@@ -203,16 +203,44 @@ impl Term {
         t.normalized()
     }
 
-    /// How a summed term is written: the factors inside the sum (those
-    /// with a summed variable), those outside, and whether the phase goes
-    /// inside. Printing and LaTeX share this layout.
-    pub fn sum_layout(&self) -> (Vec<&Factor>, Vec<&Factor>, bool) {
+    /// The term written by a renderer: `product(coef, root, phase,
+    /// factors)` writes a product, `sum(names, inside)` a sum. A summed
+    /// term is the product of the factors free of summed variables times
+    /// the sum of those with one; the phase goes inside when it has a
+    /// summed variable. Printing and LaTeX share this layout.
+    pub fn write_with(
+        &self,
+        product: impl Fn(&BigRational, &BigUint, Option<&Lin>, &[&Factor]) -> String,
+        sum: impl Fn(&[Name], &str) -> String,
+    ) -> String {
+        if self.bound.is_empty() {
+            let fs: Vec<&Factor> = self.factors.iter().collect();
+            return product(&self.coef, &self.root, Some(&self.phase), &fs);
+        }
         let bound: BTreeSet<Name> = self.bound.iter().cloned().collect();
         let (inner, outer): (Vec<&Factor>, Vec<&Factor>) = self
             .factors
             .iter()
             .partition(|f| f.lins().iter().any(|l| l.has_any(&bound)));
-        (inner, outer, self.phase.has_any(&bound))
+        let phase_inside = self.phase.has_any(&bound);
+        let outside = product(
+            &self.coef,
+            &self.root,
+            (!phase_inside).then_some(&self.phase),
+            &outer,
+        );
+        let inside = product(
+            &BigRational::one(),
+            &BigUint::one(),
+            phase_inside.then_some(&self.phase),
+            &inner,
+        );
+        let sum = sum(&self.bound, &inside);
+        match outside.as_str() {
+            "1" => sum,
+            "-1" => format!("-{sum}"),
+            o => format!("{o} {sum}"),
+        }
     }
 
     /// Kinds of the variables of this term (bound ones included).

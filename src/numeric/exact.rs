@@ -34,7 +34,7 @@ pub fn three_j_raw(tj: [i64; 3], tm: [i64; 3]) -> RawValue {
 pub fn three_j(tj: [i64; 3], tm: [i64; 3]) -> Surd {
     match three_j_formula(tj, tm) {
         None => Surd::zero(),
-        Some(f) => f.exact_fast().unwrap_or_else(|| canonical(&f.exact_raw())),
+        Some(f) => f.exact(),
     }
 }
 
@@ -64,7 +64,7 @@ pub fn six_j_raw(t: [i64; 6]) -> RawValue {
 pub fn six_j(t: [i64; 6]) -> Surd {
     match six_j_formula(t) {
         None => Surd::zero(),
-        Some(f) => f.exact_fast().unwrap_or_else(|| canonical(&f.exact_raw())),
+        Some(f) => f.exact(),
     }
 }
 
@@ -74,6 +74,13 @@ pub fn nine_j_x_range(t: &[i64; 9]) -> (i64, i64) {
     let lo = (a - i).abs().max((b - f).abs()).max((d - h).abs());
     let hi = (a + i).min(b + f).min(d + h);
     (lo, hi)
+}
+
+/// The arguments of the three 6j whose product is the term x (doubled) of
+/// the 9j as a sum over x: `{a b c; f i x} {d e f; b x h} {g h i; x a d}`.
+pub fn nine_j_six_js(t: &[i64; 9], x: i64) -> [[i64; 6]; 3] {
+    let [a, b, c, d, e, f, g, h, i] = *t;
+    [[a, b, c, f, i, x], [d, e, f, b, x, h], [g, h, i, x, a, d]]
 }
 
 /// True when every row and column triad of a 9j (doubled) is a triangle.
@@ -102,16 +109,16 @@ pub fn nine_j(t: [i64; 9]) -> Surd {
 
 /// The 9j sum in heap big integers (any size).
 fn nine_j_general(t: &[i64; 9]) -> Surd {
-    let [a, b, c, d, e, f, g, h, i] = *t;
     let (lo, hi) = nine_j_x_range(t);
     let mut terms = Vec::new();
     let mut x = lo;
     while x <= hi {
-        let s1 = six_j_raw([a, b, c, f, i, x]);
+        let [p, q, r] = nine_j_six_js(t, x);
+        let s1 = six_j_raw(p);
         if !s1.is_zero() {
-            let s2 = six_j_raw([d, e, f, b, x, h]);
+            let s2 = six_j_raw(q);
             if !s2.is_zero() {
-                let s3 = six_j_raw([g, h, i, x, a, d]);
+                let s3 = six_j_raw(r);
                 if !s3.is_zero() {
                     let mut ex = s1.e.clone();
                     ex.add_exps(&s2.e, 1);
@@ -132,7 +139,6 @@ fn nine_j_general(t: &[i64; 9]) -> Surd {
 /// The 9j sum on the stack (`None` outside the fast path: some 6j with a
 /// factorial argument above the fast limit, or numbers beyond the stack).
 pub fn nine_j_fast(t: &[i64; 9]) -> Option<Surd> {
-    let [a, b, c, d, e, f, g, h, i] = *t;
     let (lo, hi) = nine_j_x_range(t);
     let six = |args: [i64; 6]| match six_j_formula(args) {
         Some(formula) => formula.fast_raw(),
@@ -141,11 +147,12 @@ pub fn nine_j_fast(t: &[i64; 9]) -> Option<Surd> {
     let mut total = FastSum::new();
     let mut x = lo;
     while x <= hi {
-        let s1 = six([a, b, c, f, i, x])?;
+        let [p, q, r] = nine_j_six_js(t, x);
+        let s1 = six(p)?;
         if !s1.a.is_zero() {
-            let s2 = six([d, e, f, b, x, h])?;
+            let s2 = six(q)?;
             if !s2.a.is_zero() {
-                let s3 = six([g, h, i, x, a, d])?;
+                let s3 = six(r)?;
                 if !s3.a.is_zero() {
                     let pair: FastRaw<PRODUCT_LIMBS> = s1.mul(&s2)?;
                     let mut term: FastRaw<PRODUCT_LIMBS> = pair.mul(&s3)?;

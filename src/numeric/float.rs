@@ -10,7 +10,7 @@
 //! Values below the f64 range underflow to 0 or a subnormal.
 
 use super::dd::{Dd, Xf};
-use super::exact::{nine_j_triads_ok, nine_j_x_range};
+use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range};
 use super::racah::{six_j_formula, three_j_formula, RacahFormula, RacahSum};
 use super::{exact, Surd};
 use num_traits::Signed;
@@ -431,17 +431,17 @@ pub fn nine_j_f64(t: [i64; 9]) -> f64 {
     if let Some(v) = exact::nine_j_fast(&t) {
         return v.to_f64();
     }
-    let [a, b, c, d, e, f, g, hh, i] = t;
     let (lo, hi) = nine_j_x_range(&t);
     let mut acc = Xf::ZERO;
     let mut abs_acc = Xf::ZERO;
     let mut x = lo;
     while x <= hi {
-        let s1 = six_j_xf([a, b, c, f, i, x]);
+        let [p, q, r] = nine_j_six_js(&t, x);
+        let s1 = six_j_xf(p);
         if !s1.is_zero() {
-            let s2 = six_j_xf([d, e, f, b, x, hh]);
+            let s2 = six_j_xf(q);
             if !s2.is_zero() {
-                let s3 = six_j_xf([g, hh, i, x, a, d]);
+                let s3 = six_j_xf(r);
                 let mut term = s1 * s2 * s3 * Xf::from_dd(Dd::from_u128((x + 1) as u128));
                 if x % 2 != 0 {
                     term = -term;

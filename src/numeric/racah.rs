@@ -278,30 +278,63 @@ pub fn canonical(v: &RawValue) -> Surd {
 /// `canonical` in `u128` arithmetic when every number fits.
 fn canonical_small(v: &RawValue) -> Option<Surd> {
     let a: i128 = (&v.a).try_into().ok()?;
-    let negative = a < 0;
-    let mut a = a.unsigned_abs();
-    let mut num: u128 = 1;
-    let mut den: u128 = 1;
-    let mut free: u128 = 1;
-    for (p, ex) in v.e.iter() {
-        let p = p as u128;
-        let half = ex.div_euclid(2);
-        if ex.rem_euclid(2) == 1 {
-            free = free.checked_mul(p)?;
+    monomial_u128(a < 0, a.unsigned_abs(), v.e.iter())
+}
+
+/// `±a * sqrt(Π p^e)` as the canonical `q sqrt(s)` in `u128` scalars (the
+/// shared core of `canonical_small` and the stack path; `None` when a
+/// number does not fit). The square part of the radicand leaves the root;
+/// the denominator's primes cancel against `a` (2 by its trailing zeros,
+/// odd primes by exact-division tests with their inverses in 64 bits).
+fn monomial_u128(
+    negative: bool,
+    mut a: u128,
+    exps: impl Iterator<Item = (u64, i64)>,
+) -> Option<Surd> {
+    let (mut num, mut den, mut free) = (1u128, 1u128, 1u128);
+    for (p, ex) in exps {
+        if ex == 0 {
+            continue;
         }
-        if half > 0 {
-            num = num.checked_mul(p.checked_pow(half as u32)?)?;
-        } else if half < 0 {
-            let mut left = -half;
-            while left > 0 && a.is_multiple_of(p) {
-                a /= p;
-                left -= 1;
+        if ex.rem_euclid(2) == 1 {
+            free = free.checked_mul(p as u128)?;
+        }
+        let h = ex.div_euclid(2);
+        if h > 0 {
+            num = num.checked_mul((p as u128).checked_pow(u32::try_from(h).ok()?)?)?;
+        } else if h < 0 {
+            let mut left = u32::try_from(-h).ok()?;
+            if p == 2 {
+                let take = a.trailing_zeros().min(left);
+                a >>= take;
+                left -= take;
+            } else {
+                let inverse = odd_inverse(p);
+                while left > 0 {
+                    match u64::try_from(a) {
+                        Ok(a64) => {
+                            let q = a64.wrapping_mul(inverse);
+                            if q > u64::MAX / p {
+                                break;
+                            }
+                            a = q as u128;
+                        }
+                        Err(_) => {
+                            if !a.is_multiple_of(p as u128) {
+                                break;
+                            }
+                            a /= p as u128;
+                        }
+                    }
+                    left -= 1;
+                }
             }
             if left > 0 {
-                den = den.checked_mul(p.checked_pow(left as u32)?)?;
+                den = den.checked_mul((p as u128).checked_pow(left)?)?;
             }
         }
     }
+    // num and den share no prime (den only holds primes a lacked)
     let n = num.checked_mul(a)?;
     let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(den));
     if negative {
@@ -411,20 +444,25 @@ const FAST_PRIMES: [u64; 31] = [
     2, 3, 5, 7, 11, 13, 17, 19, 23, 29, 31, 37, 41, 43, 47, 53, 59, 61, 67, 71, 73, 79, 83, 89, 97,
     101, 103, 107, 109, 113, 127,
 ];
-/// `p^-1 mod 2^64` for each odd fast prime (0 for 2).
+/// `p^-1 mod 2^64` for an odd `p`: Newton's iteration doubles the correct
+/// low bits, 3, 6, ..., 96. Then `a` is a multiple of `p` iff
+/// `a * p^-1 mod 2^64 <= u64::MAX / p`, and that product is `a / p`.
+const fn odd_inverse(p: u64) -> u64 {
+    let mut x = p;
+    let mut step = 0;
+    while step < 5 {
+        x = x.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(x)));
+        step += 1;
+    }
+    x
+}
+
+/// `odd_inverse` of each odd fast prime (0 for 2).
 const ODD_INVERSES: [u64; 31] = {
     let mut out = [0u64; 31];
     let mut i = 1;
     while i < 31 {
-        let p = FAST_PRIMES[i];
-        // Newton's iteration doubles the correct low bits: 3, 6, ..., 96
-        let mut x = p;
-        let mut step = 0;
-        while step < 5 {
-            x = x.wrapping_mul(2u64.wrapping_sub(p.wrapping_mul(x)));
-            step += 1;
-        }
-        out[i] = x;
+        out[i] = odd_inverse(FAST_PRIMES[i]);
         i += 1;
     }
     out
@@ -629,60 +667,11 @@ impl<const N: usize> FastRaw<N> {
     /// `to_surd` in `u128` scalars when every number fits (the common
     /// case at small j; `None` otherwise).
     fn surd_in_u128(&self) -> Option<Surd> {
-        let mut a = self.a.mag.to_u128()?;
-        let (mut num, mut den, mut free) = (1u128, 1u128, 1u128);
-        for (i, &p) in FAST_PRIMES.iter().enumerate() {
-            let ex = self.e[i] as i32;
-            if ex == 0 {
-                continue;
-            }
-            let p = p as u128;
-            if ex.rem_euclid(2) == 1 {
-                free = free.checked_mul(p)?;
-            }
-            let h = ex.div_euclid(2);
-            if h > 0 {
-                num = num.checked_mul(p.checked_pow(h as u32)?)?;
-            } else if h < 0 {
-                let mut left = (-h) as u32;
-                if p == 2 {
-                    let take = a.trailing_zeros().min(left);
-                    a >>= take;
-                    left -= take;
-                } else {
-                    let inverse = ODD_INVERSES[i];
-                    while left > 0 {
-                        match u64::try_from(a) {
-                            // exact division by an odd p in 64 bits: a is a
-                            // multiple of p iff a * p^-1 mod 2^64 <= MAX / p
-                            Ok(a64) => {
-                                let q = a64.wrapping_mul(inverse);
-                                if q > u64::MAX / p as u64 {
-                                    break;
-                                }
-                                a = q as u128;
-                            }
-                            Err(_) => {
-                                if a % p != 0 {
-                                    break;
-                                }
-                                a /= p;
-                            }
-                        }
-                        left -= 1;
-                    }
-                }
-                if left > 0 {
-                    den = den.checked_mul(p.checked_pow(left)?)?;
-                }
-            }
-        }
-        let n = num.checked_mul(a)?;
-        let mut q = BigRational::new_raw(BigInt::from(n), BigInt::from(den));
-        if self.a.neg {
-            q = -q;
-        }
-        Some(Surd::monomial_squarefree(q, BigUint::from(free)))
+        let exps = FAST_PRIMES
+            .iter()
+            .zip(&self.e)
+            .map(|(&p, &x)| (p, x as i64));
+        monomial_u128(self.a.neg, self.a.mag.to_u128()?, exps)
     }
 }
 
@@ -739,39 +728,21 @@ impl FastSum {
 }
 
 impl RacahSum {
-    /// `ratio` in `u64`, exact on the fast path (at most nine factors,
-    /// each at most `FAST_LIMIT + 1`, so every product is below `2^63`).
-    fn ratio_fast(&self, k: i64) -> (u64, u64) {
-        let (n, d) = self.ratio(k);
-        (n as u64, d as u64)
-    }
-
     /// Horner's sum relative to its first term, `A` of `A / P`: in `i128`
-    /// and, on overflow, on the stack in `SignedWide`.
+    /// and, on overflow, on the stack in `SignedWide`. On the fast path
+    /// each ratio has at most nine factors, each at most `FAST_LIMIT + 1`,
+    /// so it fits `u64`.
     fn horner_fast(&self) -> Option<SignedWide<SYMBOL_LIMBS>> {
-        let small = (|| {
-            let mut a: i128 = 1;
-            let mut p: i128 = 1;
-            let mut k = self.kmax - 1;
-            while k >= self.kmin {
-                let (n, d) = self.ratio_fast(k);
-                let dp = (d as i128).checked_mul(p)?;
-                a = dp.checked_sub((n as i128).checked_mul(a)?)?;
-                p = dp;
-                k -= 1;
-            }
-            Some(a)
-        })();
-        if let Some(a) = small {
+        if let Some((a, _)) = self.horner_ratio_i128() {
             return Some(SignedWide::from_i128(a));
         }
         let mut a = SignedWide::<SYMBOL_LIMBS>::from_i128(1);
         let mut p = Wide::<SYMBOL_LIMBS>::one();
         let mut k = self.kmax - 1;
         while k >= self.kmin {
-            let (n, d) = self.ratio_fast(k);
-            p.mul_small(d)?;
-            a.mag.mul_small(n)?;
+            let (n, d) = self.ratio(k);
+            p.mul_small(u64::try_from(d).ok()?)?;
+            a.mag.mul_small(u64::try_from(n).ok()?)?;
             a.rsub_from(&p)?;
             k -= 1;
         }
@@ -831,6 +802,12 @@ impl RacahFormula {
     /// The exact value by the fast path (`None` outside it).
     pub fn exact_fast(&self) -> Option<Surd> {
         self.fast_raw()?.to_surd()
+    }
+
+    /// The exact value: the stack path where it applies, else the general.
+    pub fn exact(&self) -> Surd {
+        self.exact_fast()
+            .unwrap_or_else(|| canonical(&self.exact_raw()))
     }
 }
 

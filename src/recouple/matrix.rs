@@ -166,28 +166,18 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
                 .map(|(n, _)| n.clone())
                 .collect()
         };
+        let values = |s: &Vec<(Name, Q)>| -> Vec<Q> {
+            s.iter()
+                .filter(|(n, _)| shown(n))
+                .map(|(_, v)| *v)
+                .collect()
+        };
         out.push(Block {
             total: jt,
             row_names: rows.first().map(|s| names(s)).unwrap_or_default(),
             col_names: cols.first().map(|s| names(s)).unwrap_or_default(),
-            rows: rows
-                .iter()
-                .map(|s| {
-                    s.iter()
-                        .filter(|(n, _)| shown(n))
-                        .map(|(_, v)| *v)
-                        .collect()
-                })
-                .collect(),
-            cols: cols
-                .iter()
-                .map(|s| {
-                    s.iter()
-                        .filter(|(n, _)| shown(n))
-                        .map(|(_, v)| *v)
-                        .collect()
-                })
-                .collect(),
+            rows: rows.iter().map(|s| values(s)).collect(),
+            cols: cols.iter().map(|s| values(s)).collect(),
             entries,
         });
     }

@@ -235,30 +235,10 @@ fn product(
 
 /// One term in LaTeX.
 pub fn term(t: &Term) -> String {
-    if t.bound.is_empty() {
-        let fs: Vec<&Factor> = t.factors.iter().collect();
-        return product(&t.coef, &t.root, Some(&t.phase), &fs);
-    }
-    let (inner, outer, inside_phase) = t.sum_layout();
-    let out = product(
-        &t.coef,
-        &t.root,
-        if inside_phase { None } else { Some(&t.phase) },
-        &outer,
-    );
-    let ins = product(
-        &BigRational::one(),
-        &num_bigint::BigUint::one(),
-        if inside_phase { Some(&t.phase) } else { None },
-        &inner,
-    );
-    let names: Vec<String> = t.bound.iter().map(name).collect();
-    let sum = format!("\\sum_{{{}}} {}", names.join(" "), ins);
-    match out.as_str() {
-        "1" => sum,
-        "-1" => format!("-{sum}"),
-        o => format!("{o} {sum}"),
-    }
+    t.write_with(product, |names, inside| {
+        let names: Vec<String> = names.iter().map(name).collect();
+        format!("\\sum_{{{}}} {}", names.join(" "), inside)
+    })
 }
 
 /// A whole expression in LaTeX (math mode content, no delimiters).

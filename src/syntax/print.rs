@@ -148,30 +148,10 @@ pub fn print_term(t: &Term) -> String {
             }
         }
     }
-    if t.bound.is_empty() {
-        let fs: Vec<&Factor> = t.factors.iter().collect();
-        return print_product(&t.coef, &t.root, Some(&t.phase), &fs);
-    }
-    let (inner, outer, phase_inside) = t.sum_layout();
-    let outside = print_product(
-        &t.coef,
-        &t.root,
-        if phase_inside { None } else { Some(&t.phase) },
-        &outer,
-    );
-    let inside = print_product(
-        &BigRational::one(),
-        &num_bigint::BigUint::one(),
-        if phase_inside { Some(&t.phase) } else { None },
-        &inner,
-    );
-    let names: Vec<String> = t.bound.iter().map(|n| n.to_string()).collect();
-    let sum = format!("sum({}: {})", names.join(", "), inside);
-    match outside.as_str() {
-        "1" => sum,
-        "-1" => format!("-{sum}"),
-        o => format!("{o} {sum}"),
-    }
+    t.write_with(print_product, |names, inside| {
+        let names: Vec<String> = names.iter().map(|n| n.to_string()).collect();
+        format!("sum({}: {})", names.join(", "), inside)
+    })
 }
 
 impl fmt::Display for Term {

@@ -1,13 +1,13 @@
 //! Helpers shared by the simplification tests: disguising an expression
 //! (renamed variables, shuffled factors, symbols in random symmetric
-//! spellings) and spot-check settings.
+//! spellings), spot-check settings and counts of the sums left.
 
 #![allow(dead_code)]
 
 pub mod bare;
 
 use recoup::algebra::symmetry::classical_images;
-use recoup::expr::{Expr, Name, Term, Q};
+use recoup::expr::{Expr, Kind, Name, Term, Q};
 use recoup::syntax::parse;
 use recoup::verify::rng::Rng;
 use recoup::verify::spot::SpotSettings;
@@ -77,4 +77,20 @@ pub fn settings(seed: u64) -> SpotSettings {
         exhaustive: false,
         seed,
     }
+}
+
+/// The most sums any term of `e` still has, over variables of `kind`
+/// (`None`: every kind).
+pub fn sums_left(e: &Expr, kind: Option<Kind>) -> usize {
+    e.terms
+        .iter()
+        .map(|t| {
+            let k = t.kinds();
+            t.bound
+                .iter()
+                .filter(|b| kind.is_none() || k.get(*b) == kind.as_ref())
+                .count()
+        })
+        .max()
+        .unwrap_or(0)
 }
