@@ -115,6 +115,37 @@ fn the_standard_projection_sums_reduce_in_any_disguise() {
     }
 }
 
+/// The cube and the twisted (Moebius) prism on 8 vertices: the two cubic
+/// graphs of the 12j symbols (common practice, no source).
+const CUBE: [(usize, usize); 12] = [
+    (0, 1),
+    (1, 2),
+    (2, 3),
+    (3, 0),
+    (4, 5),
+    (5, 6),
+    (6, 7),
+    (7, 4),
+    (0, 4),
+    (1, 5),
+    (2, 6),
+    (3, 7),
+];
+const TWISTED_PRISM: [(usize, usize); 12] = [
+    (0, 1),
+    (1, 2),
+    (2, 3),
+    (3, 4),
+    (4, 5),
+    (5, 6),
+    (6, 7),
+    (7, 0),
+    (0, 4),
+    (1, 5),
+    (2, 6),
+    (3, 7),
+];
+
 fn graph_expr(n: usize, edges: &[(usize, usize)]) -> String {
     recoup::graph::samples::cubic_graph_sum(n, edges)
 }
@@ -135,37 +166,7 @@ fn verify_opts() -> Options {
 
 #[test]
 fn the_12j_graphs_reduce_to_at_most_one_sum() {
-    // the cube and the twisted (Moebius) prism on 8 vertices: the two
-    // cubic graphs of the 12j symbols (common practice, no source)
-    let cube = [
-        (0, 1),
-        (1, 2),
-        (2, 3),
-        (3, 0),
-        (4, 5),
-        (5, 6),
-        (6, 7),
-        (7, 4),
-        (0, 4),
-        (1, 5),
-        (2, 6),
-        (3, 7),
-    ];
-    let twisted = [
-        (0, 1),
-        (1, 2),
-        (2, 3),
-        (3, 4),
-        (4, 5),
-        (5, 6),
-        (6, 7),
-        (7, 0),
-        (0, 4),
-        (1, 5),
-        (2, 6),
-        (3, 7),
-    ];
-    for (name, edges) in [("cube", &cube[..]), ("twisted prism", &twisted[..])] {
+    for (name, edges) in [("cube", &CUBE[..]), ("twisted prism", &TWISTED_PRISM[..])] {
         let e = parse(&graph_expr(8, edges)).unwrap();
         let out = simplify(&e, &verify_opts()).unwrap_or_else(|err| panic!("{name}: {err}"));
         assert_eq!(
@@ -250,42 +251,8 @@ fn sums_match_the_fewest_over_every_reduction_order() {
     // the twisted prism, K3,3 and the Petersen graph (common practice)
     type Named = (&'static str, usize, Vec<(usize, usize)>);
     let named: [Named; 4] = [
-        (
-            "cube",
-            8,
-            vec![
-                (0, 1),
-                (1, 2),
-                (2, 3),
-                (3, 0),
-                (4, 5),
-                (5, 6),
-                (6, 7),
-                (7, 4),
-                (0, 4),
-                (1, 5),
-                (2, 6),
-                (3, 7),
-            ],
-        ),
-        (
-            "twisted prism",
-            8,
-            vec![
-                (0, 1),
-                (1, 2),
-                (2, 3),
-                (3, 4),
-                (4, 5),
-                (5, 6),
-                (6, 7),
-                (7, 0),
-                (0, 4),
-                (1, 5),
-                (2, 6),
-                (3, 7),
-            ],
-        ),
+        ("cube", 8, CUBE.to_vec()),
+        ("twisted prism", 8, TWISTED_PRISM.to_vec()),
         (
             "K3,3",
             6,
