@@ -19,8 +19,11 @@
 #![allow(clippy::needless_range_loop)]
 
 pub mod algebra;
+#[cfg(feature = "cli")]
+pub mod cli;
 pub mod expr;
 pub mod graph;
+pub mod limits;
 pub mod numeric;
 pub mod recouple;
 pub mod render;

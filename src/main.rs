@@ -1,8 +1,6 @@
-//! The `recoup` binary: parses the command line and maps failures to exit
-//! codes (see `cli`).
-
-mod cli;
+//! The `recoup` binary: the command line of the library's `cli` module
+//! (see there for the exit codes).
 
 fn main() {
-    std::process::exit(cli::run());
+    std::process::exit(recoup::cli::main());
 }

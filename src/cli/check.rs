@@ -1,17 +1,19 @@
 //! `recoup check LHS RHS`: a verdict, the smallest counterexample, and a
 //! diagnosis with a repaired claim.
 
-use super::{parse_expr, read_arg, Failure};
+use super::{outln, parse_expr, read_arg, Failure, Io};
+use crate::expr::Q;
+use crate::verify::check::{check, Verdict};
+use crate::verify::spot::SpotSettings;
 use clap::Args;
-use recoup::expr::Q;
-use recoup::verify::check::{check, Verdict};
-use recoup::verify::spot::SpotSettings;
 
 #[derive(Args, Debug)]
 pub struct CheckArgs {
     /// the left side (`-` reads standard input)
+    #[arg(allow_hyphen_values = true)]
     lhs: String,
     /// the right side
+    #[arg(allow_hyphen_values = true)]
     rhs: String,
     /// largest value of any free variable at the points checked
     #[arg(long, value_name = "J", default_value = "3")]
@@ -60,29 +62,29 @@ pub fn settings(
     })
 }
 
-fn point_json(p: &recoup::verify::sample::Point) -> serde_json::Value {
+fn point_json(p: &crate::verify::sample::Point) -> serde_json::Value {
     let m: serde_json::Map<String, serde_json::Value> = p
         .iter()
         .map(|(k, v)| {
             (
                 k.to_string(),
-                serde_json::Value::String(recoup::expr::lin::fmt_q(v)),
+                serde_json::Value::String(crate::expr::lin::fmt_q(v)),
             )
         })
         .collect();
     serde_json::Value::Object(m)
 }
 
-pub fn run(a: CheckArgs) -> Result<i32, Failure> {
-    let lhs = parse_expr(&read_arg(&a.lhs)?)?;
-    let rhs = parse_expr(&read_arg(&a.rhs)?)?;
+pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
+    let lhs = parse_expr(&read_arg(&a.lhs, io)?)?;
+    let rhs = parse_expr(&read_arg(&a.rhs, io)?)?;
     let s = settings(&a.max_j, a.samples, a.exhaustive, a.seed)?;
     let r = check(&lhs, &rhs, &s).map_err(|e| Failure::input(e.to_string()))?;
     let how = format!(
         "{} points ({} nonzero), values up to {}, {}",
         r.checked,
         r.nonzero,
-        recoup::expr::lin::fmt_q(&s.max_j),
+        crate::expr::lin::fmt_q(&s.max_j),
         if s.exhaustive {
             "every admissible point".to_string()
         } else {
@@ -107,7 +109,8 @@ pub fn run(a: CheckArgs) -> Result<i32, Failure> {
             ),
             _ => (serde_json::Value::Null, None, None),
         };
-        println!(
+        outln!(
+            io,
             "{}",
             serde_json::json!({
                 "equal": code == 0,
@@ -118,37 +121,45 @@ pub fn run(a: CheckArgs) -> Result<i32, Failure> {
                 "diagnosis": diag,
                 "repaired": repaired,
             })
-        );
+        )?;
         return Ok(code);
     }
     match &r.verdict {
-        Verdict::Equal => println!("equal at all {how}"),
-        Verdict::NotEstablished => println!(
-            "not established: both sides vanish at all {how}; try other values (--max-j, --seed)"
-        ),
+        Verdict::Equal => {
+            outln!(io, "equal at all {how}")?;
+        }
+        Verdict::NotEstablished => {
+            outln!(io, "not established: both sides vanish at all {how}; try other values (--max-j, --seed)"
+        )?;
+        }
         Verdict::Different {
             at,
             lhs,
             rhs,
             diagnosis,
         } => {
-            println!("different (checked {how})");
-            println!(
+            outln!(io, "different (checked {how})")?;
+            outln!(
+                io,
                 "smallest counterexample: {}",
-                recoup::simplify::fmt_point(at)
-            );
-            println!("  left  = {lhs}");
-            println!("  right = {rhs}");
+                crate::simplify::fmt_point(at)
+            )?;
+            outln!(io, "  left  = {lhs}")?;
+            outln!(io, "  right = {rhs}")?;
             match diagnosis {
                 Some(d) => {
-                    println!("diagnosis: {}", d.text);
-                    println!("repaired right side: {}", d.repaired);
-                    println!(
+                    outln!(io, "diagnosis: {}", d.text)?;
+                    outln!(io, "repaired right side: {}", d.repaired)?;
+                    outln!(
+                        io,
                         "the repaired claim agrees at {} points ({} nonzero, other seed)",
-                        d.confirmed.checked, d.confirmed.nonzero
-                    );
+                        d.confirmed.checked,
+                        d.confirmed.nonzero
+                    )?;
                 }
-                None => println!("diagnosis: no single phase, factor of hats or swapped pair of arguments explains the difference"),
+                None => {
+                    outln!(io, "diagnosis: no single phase, factor of hats or swapped pair of arguments explains the difference")?;
+                }
             }
         }
     }

@@ -1,18 +1,19 @@
 //! `recoup eval`: one expression, or `--batch` lines from standard input.
 
-use super::{parse_expr, read_arg, Failure};
+use super::input::{decode, parse_expr, read_arg, validate_literals};
+use super::{outln, Failure, Io};
+use crate::expr::{Name, Q};
+use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
+use crate::numeric::Surd;
 use clap::Args;
-use recoup::expr::{Name, Q};
-use recoup::numeric::eval::{check_assignment, Assignment, Evaluator};
-use recoup::numeric::Surd;
-use std::io::{BufRead, Write};
 
 #[derive(Args, Debug)]
 pub struct EvalArgs {
     /// the expression (`-` reads standard input); omit with --batch
+    #[arg(allow_hyphen_values = true)]
     expr: Option<String>,
     /// values of the free variables, e.g. --at j1=1,j2=1/2,m=-1/2
-    #[arg(long, value_name = "VALUES")]
+    #[arg(long, value_name = "VALUES", allow_hyphen_values = true)]
     at: Option<String>,
     /// print JSON: {"exact": "...", "float": ...}
     #[arg(long)]
@@ -22,15 +23,20 @@ pub struct EvalArgs {
     float: bool,
     /// read one closed expression per line from standard input; answer
     /// one line each (exact<TAB>float, or JSON lines); blank lines and
-    /// lines starting with # are skipped
+    /// lines starting with # are skipped; lines end at LF, CRLF or CR
     #[arg(long)]
     batch: bool,
 }
 
-/// Parses `a=1,b=1/2,m=-3/2`.
+/// Parses `a=1,b=1/2,m=-3/2`; a name given twice is an error.
 pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
     let mut out = Assignment::new();
-    for part in s.split(',').map(str::trim).filter(|p| !p.is_empty()) {
+    for part in s.split(',').map(str::trim) {
+        if part.is_empty() {
+            return Err(Failure::input(format!(
+                "--at expects name=value pairs separated by single commas, e.g. --at j=1,m=1/2; got '{s}'"
+            )));
+        }
         let Some((k, v)) = part.split_once('=') else {
             return Err(Failure::input(format!(
                 "--at expects name=value pairs separated by commas, e.g. --at j=1,m=1/2; got '{part}'"
@@ -52,7 +58,11 @@ pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
                 v.trim()
             ))
         })?;
-        out.insert(Name::new(k), q);
+        if out.insert(Name::new(k), q).is_some() {
+            return Err(Failure::input(format!(
+                "--at gives {k} more than one value; give each name once"
+            )));
+        }
     }
     Ok(out)
 }
@@ -72,20 +82,16 @@ pub fn parse_q(s: &str) -> Option<Q> {
 }
 
 fn answer(
-    e: &recoup::expr::Expr,
+    e: &crate::expr::Expr,
     at: &Assignment,
     float_only: bool,
-) -> Result<(Option<Surd>, f64), String> {
-    check_assignment(e, at).map_err(|e| e.to_string())?;
+) -> Result<(Option<Surd>, f64), EvalError> {
+    check_assignment(e, at)?;
     if float_only {
-        let v = Evaluator::<f64>::new()
-            .eval(e, at)
-            .map_err(|e| e.to_string())?;
+        let v = Evaluator::<f64>::new().eval(e, at)?;
         Ok((None, v))
     } else {
-        let v = Evaluator::<Surd>::new()
-            .eval(e, at)
-            .map_err(|e| e.to_string())?;
+        let v = Evaluator::<Surd>::new().eval(e, at)?;
         let f = v.to_f64();
         Ok((Some(v), f))
     }
@@ -101,12 +107,12 @@ fn json_line(exact: &Option<Surd>, f: f64) -> String {
 
 fn text_line(exact: &Option<Surd>, f: f64) -> String {
     match exact {
-        Some(v) => format!("{v}\t{}", recoup::render::fmt_float(f)),
-        None => recoup::render::fmt_float(f),
+        Some(v) => format!("{v}\t{}", crate::render::fmt_float(f)),
+        None => crate::render::fmt_float(f),
     }
 }
 
-pub fn run(a: EvalArgs) -> Result<(), Failure> {
+pub fn run(a: EvalArgs, io: &mut Io) -> Result<(), Failure> {
     let at = match &a.at {
         Some(s) => parse_assignment(s)?,
         None => Assignment::new(),
@@ -117,59 +123,97 @@ pub fn run(a: EvalArgs) -> Result<(), Failure> {
                 "--batch reads expressions from standard input; give no EXPR",
             ));
         }
-        return batch(&a, &at);
+        return batch(&a, &at, io);
     }
     let Some(text) = &a.expr else {
         return Err(Failure::input("eval needs an expression (or --batch)"));
     };
-    let text = read_arg(text)?;
+    let text = read_arg(text, io)?;
     let e = parse_expr(&text)?;
-    let (exact, f) = answer(&e, &at, a.float).map_err(Failure::input)?;
+    let (exact, f) = answer(&e, &at, a.float)?;
+    validate_literals(&e, &text, io)?;
     if a.json {
-        println!("{}", json_line(&exact, f));
+        outln!(io, "{}", json_line(&exact, f))?;
     } else {
-        println!("{}", text_line(&exact, f));
+        outln!(io, "{}", text_line(&exact, f))?;
     }
     Ok(())
 }
 
-fn batch(a: &EvalArgs, at: &Assignment) -> Result<(), Failure> {
-    let stdin = std::io::stdin();
-    let stdout = std::io::stdout();
-    let mut out = std::io::BufWriter::new(stdout.lock());
+/// Reads the next lines of standard input: one chunk up to LF, split at
+/// lone CRs (so LF, CRLF and CR all end a line); raw bytes, so that a bad
+/// byte costs only its line.
+fn next_lines(io: &mut Io, buf: &mut Vec<u8>) -> Result<Option<Vec<Vec<u8>>>, Failure> {
+    buf.clear();
+    let n = io
+        .stdin
+        .read_until(b'\n', buf)
+        .map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
+    if n == 0 {
+        return Ok(None);
+    }
+    let mut chunk: &[u8] = buf;
+    if let Some(c) = chunk.strip_suffix(b"\n") {
+        chunk = c;
+    }
+    if let Some(c) = chunk.strip_suffix(b"\r") {
+        chunk = c;
+    }
+    Ok(Some(
+        chunk.split(|b| *b == b'\r').map(<[u8]>::to_vec).collect(),
+    ))
+}
+
+fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io) -> Result<(), Failure> {
     let mut failed = 0usize;
-    for (i, line) in stdin.lock().lines().enumerate() {
-        let line = line.map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
-        let n = i + 1;
-        if line.trim().is_empty() || line.trim_start().starts_with('#') {
-            continue;
-        }
-        let res = recoup::syntax::parse(&line)
-            .map_err(|e| format!("parse error at {e}"))
-            .and_then(|e| answer(&e, at, a.float));
-        match res {
-            Ok((exact, f)) => {
-                let s = if a.json {
-                    json_line(&exact, f)
-                } else {
-                    text_line(&exact, f)
-                };
-                writeln!(out, "{s}").ok();
-            }
-            Err(msg) => {
-                failed += 1;
-                let one_line = msg.lines().next().unwrap_or("").to_string();
-                if a.json {
-                    writeln!(out, "{}", serde_json::json!({"line": n, "error": one_line})).ok();
-                } else {
-                    writeln!(out, "error\tline {n}: {one_line}").ok();
+    let mut notes = Vec::new();
+    let mut buf = Vec::new();
+    let mut n = 0usize;
+    while let Some(lines) = next_lines(io, &mut buf)? {
+        for raw in lines {
+            n += 1;
+            let raw: &[u8] = if n == 1 {
+                raw.strip_prefix(b"\xef\xbb\xbf".as_slice()).unwrap_or(&raw)
+            } else {
+                &raw
+            };
+            let res = decode(raw, "this line").and_then(|line| {
+                if line.trim().is_empty() || line.trim_start().starts_with('#') {
+                    return Ok(None);
                 }
-                out.flush().ok();
-                eprintln!("recoup: line {n}: {msg}");
+                let e = crate::syntax::parse(&line).map_err(|e| format!("parse error at {e}"))?;
+                for note in crate::syntax::literal_zero_notes(&e) {
+                    notes.push(format!("line {n}: {note}"));
+                }
+                answer(&e, at, a.float).map(Some).map_err(|e| e.to_string())
+            });
+            match res {
+                Ok(None) => {}
+                Ok(Some((exact, f))) => {
+                    let s = if a.json {
+                        json_line(&exact, f)
+                    } else {
+                        text_line(&exact, f)
+                    };
+                    outln!(io, "{s}")?;
+                }
+                Err(msg) => {
+                    failed += 1;
+                    let one_line = msg.lines().next().unwrap_or("").to_string();
+                    if a.json {
+                        outln!(io, "{}", serde_json::json!({"line": n, "error": one_line}))?;
+                    } else {
+                        outln!(io, "error\tline {n}: {one_line}")?;
+                    }
+                    io.out.flush()?;
+                    writeln!(io.err, "recoup: line {n}: {msg}")?;
+                }
             }
         }
     }
-    out.flush().ok();
+    for note in notes {
+        writeln!(io.err, "recoup: note: {note}")?;
+    }
     if failed > 0 {
         return Err(Failure::input(format!(
             "{failed} line{} of the batch failed (see above)",

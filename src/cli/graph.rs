@@ -1,32 +1,33 @@
 //! `recoup graph EXPR`: the projection-sum graph of each term, as
 //! Graphviz DOT or JSON.
 
-use super::{parse_expr, read_arg, Failure};
+use super::{out, outln, parse_expr, read_arg, Failure, Io};
+use crate::graph::dot;
 use clap::Args;
-use recoup::graph::dot;
 
 #[derive(Args, Debug)]
 pub struct GraphArgs {
     /// the expression (`-` reads standard input)
+    #[arg(allow_hyphen_values = true)]
     expr: String,
     /// print vertices and lines as JSON instead of DOT
     #[arg(long)]
     json: bool,
 }
 
-pub fn run(a: GraphArgs) -> Result<(), Failure> {
-    let e = parse_expr(&read_arg(&a.expr)?)?;
+pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
+    let e = parse_expr(&read_arg(&a.expr, io)?)?;
     // Clebsch-Gordan coefficients are drawn as the 3j they stand for
-    let e = recoup::graph::reduce::with_cg_as_3j(&e);
+    let e = crate::graph::reduce::with_cg_as_3j(&e);
     if a.json {
         let terms: Vec<serde_json::Value> = e.terms.iter().map(dot::json).collect();
-        println!("{}", serde_json::json!({ "terms": terms }));
+        outln!(io, "{}", serde_json::json!({ "terms": terms }))?;
     } else {
         for (i, t) in e.terms.iter().enumerate() {
             if e.terms.len() > 1 {
-                println!("// term {}: {}", i + 1, recoup::syntax::print_term(t));
+                outln!(io, "// term {}: {}", i + 1, crate::syntax::print_term(t))?;
             }
-            print!("{}", dot::dot(t));
+            out!(io, "{}", dot::dot(t))?;
         }
     }
     Ok(())

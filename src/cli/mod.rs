@@ -1,24 +1,55 @@
 //! The command line: clap definitions and the thin glue from arguments to
-//! library calls and printed output. No mathematics lives here. Errors map
-//! to exit codes: 0 success, 1 a `check` that found the sides different,
-//! 2 bad input (with a one-paragraph message on standard error and nothing
-//! on standard output).
+//! library calls and printed output. No mathematics lives here.
+//!
+//! One entry point, `run_with`, takes the arguments and the three streams,
+//! so the binary and the in-process tests (the fuzz target among them)
+//! drive exactly the same code. Exit codes: 0 success; 1 a `check` that
+//! found the sides different or established nothing; 2 bad input; 3 a
+//! limit reached (time, size, points); 4 an internal error. Bad input
+//! prints one message on standard error and nothing on standard output.
+//! A closed standard output (`recoup ... | head`) ends the run quietly.
 
 mod check;
 mod eval;
 mod graph;
+mod input;
 mod recouple;
 mod simplify;
 mod table;
 
+use crate::limits::within_time_limit;
 use clap::{Parser, Subcommand};
-use std::io::Read;
+use std::ffi::OsString;
+use std::io::{BufRead, Write};
+
+pub use input::{parse_expr, read_arg};
+
+/// Exit code: success.
+pub const EXIT_OK: i32 = 0;
+/// Exit code: `check` found the sides different or established nothing.
+pub const EXIT_DIFFERENT: i32 = 1;
+/// Exit code: bad input.
+pub const EXIT_INPUT: i32 = 2;
+/// Exit code: a limit was reached (time, size, points).
+pub const EXIT_LIMIT: i32 = 3;
+/// Exit code: an internal error (a rewrite that failed its own
+/// verification, a matrix that is not orthogonal, a defect).
+pub const EXIT_INTERNAL: i32 = 4;
+
+/// Default of `--time-limit`, in seconds.
+pub const DEFAULT_TIME_LIMIT: f64 = 60.0;
 
 /// What went wrong, and with which exit code.
 #[derive(Debug)]
 pub enum Failure {
     /// bad input: exit 2
     Input(String),
+    /// a limit was reached: exit 3
+    Limit(String),
+    /// an internal error: exit 4
+    Internal(String),
+    /// standard output was closed by its reader: end quietly
+    Closed,
 }
 
 impl Failure {
@@ -26,15 +57,74 @@ impl Failure {
     pub fn input(msg: impl Into<String>) -> Self {
         Failure::Input(msg.into())
     }
+    /// A limit failure.
+    pub fn limit(msg: impl Into<String>) -> Self {
+        Failure::Limit(msg.into())
+    }
+    /// An internal failure.
+    pub fn internal(msg: impl Into<String>) -> Self {
+        Failure::Internal(msg.into())
+    }
+}
+
+impl From<std::io::Error> for Failure {
+    fn from(e: std::io::Error) -> Self {
+        if e.kind() == std::io::ErrorKind::BrokenPipe {
+            Failure::Closed
+        } else {
+            Failure::Input(format!("cannot write the output: {e}"))
+        }
+    }
+}
+
+impl From<crate::numeric::eval::EvalError> for Failure {
+    fn from(e: crate::numeric::eval::EvalError) -> Self {
+        use crate::numeric::eval::EvalError;
+        match e {
+            EvalError::TooLarge | EvalError::SymbolTooLarge(..) => Failure::Limit(e.to_string()),
+            other => Failure::Input(other.to_string()),
+        }
+    }
+}
+
+impl From<crate::simplify::SimplifyError> for Failure {
+    fn from(e: crate::simplify::SimplifyError) -> Self {
+        use crate::simplify::SimplifyError;
+        match e {
+            SimplifyError::Eval(e) => e.into(),
+            SimplifyError::Limit(m) => Failure::Limit(m),
+            other @ (SimplifyError::Unverified { .. } | SimplifyError::Internal(..)) => {
+                Failure::Internal(other.to_string())
+            }
+        }
+    }
+}
+
+/// The three streams a run reads and writes.
+pub struct Io<'a> {
+    /// standard input
+    pub stdin: &'a mut dyn BufRead,
+    /// standard output
+    pub out: &'a mut dyn Write,
+    /// standard error
+    pub err: &'a mut dyn Write,
 }
 
 /// recoup: reduce, verify and evaluate angular-momentum algebra (3j, 6j,
 /// 9j symbols and Clebsch-Gordan coefficients).
+///
+/// Exit codes: 0 success; 1 `check` found the sides different (or
+/// established nothing); 2 bad input; 3 a limit was reached (time, size,
+/// points): the message says what and how to raise it; 4 an internal
+/// error: please report it.
 #[derive(Parser, Debug)]
 #[command(name = "recoup", version, about, long_about = None)]
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
+    /// stop with exit code 3 after this many seconds of work
+    #[arg(long, global = true, value_name = "SECONDS", default_value_t = DEFAULT_TIME_LIMIT)]
+    time_limit: f64,
 }
 
 #[derive(Subcommand, Debug)]
@@ -44,7 +134,8 @@ enum Command {
     /// EXPR is one argument in the expression language; `-` reads it from
     /// standard input. Free variables get values with --at j=1,m=1/2.
     /// Sums over projections and angular momenta run over all allowed
-    /// values.
+    /// values. A literal projection with |m| > j makes its symbol 0 (the
+    /// usual convention; a note says so on standard error).
     Eval(eval::EvalArgs),
     /// Every Clebsch-Gordan coefficient for numeric j1 and j2.
     ///
@@ -55,18 +146,21 @@ enum Command {
     /// spot-evaluation.
     ///
     /// Applies the normal form (canonical symbols, phases modulo
-    /// integrality, selection rules, deltas, like terms), special values
-    /// and exact values of numeric symbols. "Verified" means exact
-    /// agreement at random admissible points (integer and half-integer
-    /// values up to --max-j): strong evidence, not a proof.
+    /// integrality, selection rules, deltas, like terms), special values,
+    /// the graph reduction of projection sums and the identity catalog.
+    /// "Verified" means exact agreement with the input at admissible
+    /// points (integer and half-integer values up to --max-j): strong
+    /// evidence, not a proof.
     Simplify(simplify::SimplifyArgs),
     /// Check a claim LHS = RHS by exact spot-evaluation.
     ///
     /// Exit 0 when the sides agree at every point checked (some nonzero),
     /// 1 when they differ (with the smallest counterexample and, where one
-    /// fits, the phase, factor or swapped arguments that repair the claim)
-    /// or when nothing nonzero was found. Agreement at the points checked
-    /// is strong evidence, not a proof for all quantum numbers.
+    /// fits, the phase, factor, swapped arguments or triangle factor that
+    /// repair the claim) or when nothing nonzero was found. Points include
+    /// some where a triad of free variables breaks the triangle rule
+    /// (--triangles-hold leaves those out). Agreement at the points
+    /// checked is strong evidence, not a proof for all quantum numbers.
     Check(check::CheckArgs),
     /// The projection-sum graph of an expression (Graphviz DOT, or --json).
     ///
@@ -79,77 +173,191 @@ enum Command {
     ///
     /// FROM and TO are binary coupling trees such as "((j1, j2) j12, j3) J"
     /// and "(j1, (j2, j3) j23) J"; the result is <FROM|TO> in hats, phases,
-    /// 6j/9j symbols and the fewest sums found, every step verified.
-    /// --matrix with numeric leaves prints the exact transformation matrix.
+    /// 6j/9j symbols and the fewest sums found, verified against the
+    /// overlap of the two coupled states. --matrix with numeric leaves
+    /// prints the exact transformation matrix.
     Recouple(recouple::RecoupleArgs),
     /// LaTeX (amsmath) for an expression, for a paper.
     Latex {
         /// the expression (`-` reads standard input)
+        #[arg(allow_hyphen_values = true)]
         expr: String,
     },
 }
 
-/// Reads an EXPR argument, `-` meaning standard input (where lines that
-/// start with `#` are comments, as in the sample files).
-pub fn read_arg(s: &str) -> Result<String, Failure> {
-    if s == "-" {
-        let mut buf = String::new();
-        std::io::stdin()
-            .read_to_string(&mut buf)
-            .map_err(|e| Failure::input(format!("cannot read standard input: {e}")))?;
-        let text: Vec<&str> = buf
-            .lines()
-            .filter(|l| !l.trim_start().starts_with('#'))
-            .collect();
-        Ok(text.join("\n").trim_end().to_string())
-    } else {
-        Ok(s.to_string())
-    }
+/// Writes a line to standard output, mapping write errors.
+macro_rules! outln {
+    ($io:expr) => { writeln!($io.out).map_err($crate::cli::Failure::from) };
+    ($io:expr, $($arg:tt)*) => { writeln!($io.out, $($arg)*).map_err($crate::cli::Failure::from) };
 }
+pub(crate) use outln;
+
+/// Writes to standard output without a newline, mapping write errors.
+macro_rules! out {
+    ($io:expr, $($arg:tt)*) => { write!($io.out, $($arg)*).map_err($crate::cli::Failure::from) };
+}
+pub(crate) use out;
 
 /// Prints a derivation's steps and notes (for --steps).
-pub fn print_steps(steps: &[recoup::simplify::Step], notes: &[String]) {
+pub fn print_steps(
+    io: &mut Io,
+    steps: &[crate::simplify::Step],
+    notes: &[String],
+) -> Result<(), Failure> {
     for (i, s) in steps.iter().enumerate() {
-        println!(
+        outln!(
+            io,
             "step {}: {} ({}) [verified at {} points, {} nonzero]",
             i + 1,
             s.rule,
             s.source,
             s.checked,
             s.nonzero
-        );
-        println!("  = {}", s.after);
+        )?;
+        outln!(io, "  = {}", s.after)?;
     }
     for n in notes {
-        println!("note: {n}");
+        outln!(io, "note: {n}")?;
+    }
+    Ok(())
+}
+
+/// Parses `--time-limit`.
+fn time_limit_seconds(s: f64) -> Result<f64, Failure> {
+    if !(s.is_finite() && s > 0.0) {
+        return Err(Failure::input(format!(
+            "--time-limit must be a positive number of seconds; got {s}"
+        )));
+    }
+    Ok(s.min(1e9))
+}
+
+fn dispatch(command: Command, io: &mut Io) -> Result<i32, Failure> {
+    match command {
+        Command::Eval(a) => eval::run(a, io).map(|_| EXIT_OK),
+        Command::Table(a) => table::run(a, io).map(|_| EXIT_OK),
+        Command::Simplify(a) => simplify::run(a, io).map(|_| EXIT_OK),
+        Command::Check(a) => check::run(a, io),
+        Command::Graph(a) => graph::run(a, io).map(|_| EXIT_OK),
+        Command::Recouple(a) => recouple::run(a, io).map(|_| EXIT_OK),
+        Command::Latex { expr } => {
+            let text = read_arg(&expr, io)?;
+            let e = parse_expr(&text)?;
+            input::validate_literals(&e, &text, io)?;
+            outln!(io, "{}", crate::render::latex::expr(&e))?;
+            Ok(EXIT_OK)
+        }
     }
 }
 
-/// Parses an expression, mapping parse errors to bad input.
-pub fn parse_expr(text: &str) -> Result<recoup::expr::Expr, Failure> {
-    recoup::syntax::parse(text).map_err(|e| Failure::input(format!("parse error at {e}")))
+fn panic_text(payload: &(dyn std::any::Any + Send)) -> String {
+    if let Some(s) = payload.downcast_ref::<&str>() {
+        (*s).to_string()
+    } else if let Some(s) = payload.downcast_ref::<String>() {
+        s.clone()
+    } else {
+        "an unexpected failure".to_string()
+    }
 }
 
-/// Runs the command line; returns the exit code.
-pub fn run() -> i32 {
-    let cli = Cli::parse();
-    let result = match cli.command {
-        Command::Eval(a) => eval::run(a).map(|_| 0),
-        Command::Table(a) => table::run(a).map(|_| 0),
-        Command::Simplify(a) => simplify::run(a).map(|_| 0),
-        Command::Check(a) => check::run(a),
-        Command::Graph(a) => graph::run(a).map(|_| 0),
-        Command::Recouple(a) => recouple::run(a).map(|_| 0),
-        Command::Latex { expr } => read_arg(&expr)
-            .and_then(|t| parse_expr(&t))
-            .map(|e| println!("{}", recoup::render::latex::expr(&e)))
-            .map(|_| 0),
+/// Runs the command line on `args` (the first is the program name) with
+/// the given streams; returns the exit code. Never panics: a defect is
+/// reported as an internal error (exit 4).
+pub fn run_with<I, T>(args: I, io: &mut Io) -> i32
+where
+    I: IntoIterator<Item = T>,
+    T: Into<OsString> + Clone,
+{
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            use clap::error::ErrorKind;
+            return match e.kind() {
+                ErrorKind::DisplayHelp
+                | ErrorKind::DisplayVersion
+                | ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+                    match write!(io.out, "{e}").and_then(|_| io.out.flush()) {
+                        _ if e.kind() == ErrorKind::DisplayHelpOnMissingArgumentOrSubcommand => {
+                            EXIT_INPUT
+                        }
+                        _ => EXIT_OK,
+                    }
+                }
+                _ => {
+                    let text = e.to_string();
+                    let text = text.strip_prefix("error: ").unwrap_or(&text);
+                    let _ = write!(io.err, "recoup: {text}");
+                    EXIT_INPUT
+                }
+            };
+        }
     };
-    match result {
-        Ok(code) => code,
-        Err(Failure::Input(msg)) => {
-            eprintln!("recoup: {msg}");
-            2
+    let seconds = match time_limit_seconds(cli.time_limit) {
+        Ok(s) => s,
+        Err(f) => return report(f, io),
+    };
+    let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        within_time_limit(Some(seconds), || dispatch(cli.command, io))
+    }));
+    let code = match outcome {
+        Ok(Ok(Ok(code))) => code,
+        Ok(Ok(Err(f))) => report(f, io),
+        Ok(Err(up)) => report(
+            Failure::limit(format!(
+                "stopped: the work took longer than the time limit of {} s; raise it with --time-limit SECONDS (or ask for less: smaller quantum numbers, fewer points)",
+                up.seconds
+            )),
+            io,
+        ),
+        Err(payload) => report(
+            Failure::internal(format!(
+                "internal error: {}. This is a defect in recoup; please report it with the command line that produced it",
+                panic_text(payload.as_ref())
+            )),
+            io,
+        ),
+    };
+    match io.out.flush() {
+        Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => EXIT_OK,
+        _ => code,
+    }
+}
+
+fn report(f: Failure, io: &mut Io) -> i32 {
+    let (code, msg) = match f {
+        Failure::Input(m) => (EXIT_INPUT, m),
+        Failure::Limit(m) => (EXIT_LIMIT, m),
+        Failure::Internal(m) => (EXIT_INTERNAL, m),
+        Failure::Closed => return EXIT_OK,
+    };
+    let _ = writeln!(io.err, "recoup: {msg}");
+    let _ = io.err.flush();
+    code
+}
+
+/// The binary's entry: the process's arguments and streams, on a thread
+/// with a large stack; panics print no source locations.
+pub fn main() -> i32 {
+    std::panic::set_hook(Box::new(|_| {}));
+    let worker = std::thread::Builder::new().stack_size(512 << 20).spawn(|| {
+        let stdin = std::io::stdin();
+        let mut stdin = stdin.lock();
+        let stdout = std::io::stdout();
+        let mut out = std::io::BufWriter::new(stdout.lock());
+        let stderr = std::io::stderr();
+        let mut err = stderr.lock();
+        let mut io = Io {
+            stdin: &mut stdin,
+            out: &mut out,
+            err: &mut err,
+        };
+        run_with(std::env::args_os(), &mut io)
+    });
+    match worker.map(|w| w.join()) {
+        Ok(Ok(code)) => code,
+        _ => {
+            eprintln!("recoup: internal error: the worker thread failed; please report it");
+            EXIT_INTERNAL
         }
     }
 }

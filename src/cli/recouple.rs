@@ -3,13 +3,13 @@
 //! transformation matrix for numeric leaves.
 
 use super::eval::parse_assignment;
-use super::{read_arg, Failure};
+use super::{out, outln, read_arg, Failure, Io};
+use crate::numeric::eval::Evaluator;
+use crate::numeric::Surd;
+use crate::recouple::{matrix, only_6j, recouple};
+use crate::render::latex;
+use crate::simplify::Options;
 use clap::Args;
-use recoup::numeric::eval::Evaluator;
-use recoup::numeric::Surd;
-use recoup::recouple::{matrix, only_6j, recouple};
-use recoup::render::latex;
-use recoup::simplify::Options;
 
 #[derive(Args, Debug)]
 pub struct RecoupleArgs {
@@ -37,20 +37,20 @@ pub struct RecoupleArgs {
     steps: bool,
 }
 
-fn tree(s: &str) -> Result<recoup::expr::CouplingTree, Failure> {
-    recoup::syntax::parse_tree(&read_arg(s)?)
+fn tree(s: &str, io: &mut Io) -> Result<crate::expr::CouplingTree, Failure> {
+    crate::syntax::parse_tree(&read_arg(s, io)?)
         .map_err(|e| Failure::input(format!("parse error at {e}")))
 }
 
-pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
-    let from = tree(&a.from)?;
-    let to = tree(&a.to)?;
+pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
+    let from = tree(&a.from, io)?;
+    let to = tree(&a.to, io)?;
     if a.matrix {
         let m = matrix::matrices(&from, &to).map_err(|e| Failure::input(e.to_string()))?;
         if a.json {
-            println!("{}", matrix::json(&m));
+            outln!(io, "{}", matrix::json(&m))?;
         } else {
-            print!("{}", matrix::text(&m));
+            out!(io, "{}", matrix::text(&m))?;
         }
         return Ok(());
     }
@@ -77,7 +77,7 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
             .map(|t| t.bound.len())
             .max()
             .unwrap_or(0);
-        let count = |k: fn(&recoup::expr::Factor) -> bool| {
+        let count = |k: fn(&crate::expr::Factor) -> bool| {
             result
                 .terms
                 .iter()
@@ -85,8 +85,8 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
                 .max()
                 .unwrap_or(0)
         };
-        let six = count(|f| matches!(f, recoup::expr::Factor::SixJ(_)));
-        let nine = count(|f| matches!(f, recoup::expr::Factor::NineJ(_)));
+        let six = count(|f| matches!(f, crate::expr::Factor::SixJ(_)));
+        let nine = count(|f| matches!(f, crate::expr::Factor::NineJ(_)));
         let mut j = serde_json::json!({
             "result": result.to_string(),
             "latex": latex::expr(&result),
@@ -98,20 +98,20 @@ pub fn run(a: RecoupleArgs) -> Result<(), Failure> {
             j["exact"] = serde_json::Value::String(v.to_string());
             j["float"] = serde_json::json!(v.to_f64());
         }
-        println!("{j}");
+        outln!(io, "{j}")?;
         return Ok(());
     }
     if a.steps {
-        println!("overlap: {}", r.overlap);
-        super::print_steps(&r.outcome.steps, &r.outcome.notes);
+        outln!(io, "overlap: {}", r.overlap)?;
+        super::print_steps(io, &r.outcome.steps, &r.outcome.notes)?;
     }
     if a.latex {
-        println!("{}", latex::expr(&result));
+        outln!(io, "{}", latex::expr(&result))?;
     } else {
-        println!("{result}");
+        outln!(io, "{result}")?;
     }
     if let Some(v) = value {
-        println!("{v}\t{}", recoup::render::fmt_float(v.to_f64()));
+        outln!(io, "{v}\t{}", crate::render::fmt_float(v.to_f64()))?;
     }
     Ok(())
 }

@@ -1,14 +1,15 @@
 //! `recoup simplify EXPR`: the simplified expression, verified, with the
 //! trace of steps on request.
 
-use super::{parse_expr, read_arg, Failure};
+use super::{outln, parse_expr, read_arg, Failure, Io};
+use crate::render::latex;
+use crate::simplify::{simplify, Options};
 use clap::Args;
-use recoup::render::latex;
-use recoup::simplify::{simplify, Options};
 
 #[derive(Args, Debug)]
 pub struct SimplifyArgs {
     /// the expression (`-` reads standard input)
+    #[arg(allow_hyphen_values = true)]
     expr: String,
     /// print every step with its rule, source and the expression after it
     #[arg(long)]
@@ -30,8 +31,8 @@ pub struct SimplifyArgs {
     max_j: String,
 }
 
-pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
-    let e = parse_expr(&read_arg(&a.expr)?)?;
+pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
+    let e = parse_expr(&read_arg(&a.expr, io)?)?;
     let mut opts = Options {
         regge: a.regge,
         ..Options::default()
@@ -50,7 +51,8 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
                 })
             })
             .collect();
-        println!(
+        outln!(
+            io,
             "{}",
             serde_json::json!({
                 "input": out.input.to_string(),
@@ -60,39 +62,42 @@ pub fn run(a: SimplifyArgs) -> Result<(), Failure> {
                 "verified": {"checked": out.checked, "nonzero": out.nonzero},
                 "notes": out.notes,
             })
-        );
+        )?;
         return Ok(());
     }
     if a.latex {
         if a.steps {
-            println!("\\begin{{align*}}");
-            println!("  & {} \\\\", latex::expr(&out.input));
+            outln!(io, "\\begin{{align*}}")?;
+            outln!(io, "  & {} \\\\", latex::expr(&out.input))?;
             for (i, s) in out.steps.iter().enumerate() {
                 let end = if i + 1 == out.steps.len() {
                     ""
                 } else {
                     " \\\\"
                 };
-                println!(
+                outln!(
+                    io,
                     "  &= {} && \\text{{{}}}{end}",
                     latex::expr(&s.after),
                     s.rule
-                );
+                )?;
             }
-            println!("\\end{{align*}}");
+            outln!(io, "\\end{{align*}}")?;
         } else {
-            println!("{}", latex::expr(&out.result));
+            outln!(io, "{}", latex::expr(&out.result))?;
         }
         return Ok(());
     }
     if a.steps {
-        println!("input: {}", out.input);
-        super::print_steps(&out.steps, &out.notes);
-        println!(
+        outln!(io, "input: {}", out.input)?;
+        super::print_steps(io, &out.steps, &out.notes)?;
+        outln!(
+            io,
             "result (verified against the input at {} points, {} nonzero):",
-            out.checked, out.nonzero
-        );
+            out.checked,
+            out.nonzero
+        )?;
     }
-    println!("{}", out.result);
+    outln!(io, "{}", out.result)?;
     Ok(())
 }

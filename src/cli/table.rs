@@ -1,9 +1,9 @@
 //! `recoup table J1 J2`: the Clebsch–Gordan table for numeric j1, j2.
 
 use super::eval::parse_q;
-use super::Failure;
+use super::{out, outln, Failure, Io};
+use crate::render::table;
 use clap::Args;
-use recoup::render::table;
 
 /// Largest j1 or j2 a table is printed for.
 const MAX_TABLE_J: i64 = 40;
@@ -25,8 +25,8 @@ pub struct TableArgs {
 fn doubled(name: &str, s: &str) -> Result<i64, Failure> {
     let q = parse_q(s)
         .ok_or_else(|| Failure::input(format!("{name} must be a number like 1, 3/2; got '{s}'")))?;
-    let d = q * recoup::expr::Q::from_integer(2);
-    if !d.is_integer() || d < recoup::expr::Q::from_integer(0) {
+    let d = q * crate::expr::Q::from_integer(2);
+    if !d.is_integer() || d < crate::expr::Q::from_integer(0) {
         return Err(Failure::input(format!(
             "{name} = {s} is not a nonnegative multiple of 1/2"
         )));
@@ -40,15 +40,15 @@ fn doubled(name: &str, s: &str) -> Result<i64, Failure> {
     Ok(d)
 }
 
-pub fn run(a: TableArgs) -> Result<(), Failure> {
+pub fn run(a: TableArgs, io: &mut Io) -> Result<(), Failure> {
     let t1 = doubled("j1", &a.j1)?;
     let t2 = doubled("j2", &a.j2)?;
     if a.json {
-        println!("{}", table::json(t1, t2));
+        outln!(io, "{}", table::json(t1, t2))?;
     } else if a.csv {
-        print!("{}", table::csv(t1, t2));
+        out!(io, "{}", table::csv(t1, t2))?;
     } else {
-        print!("{}", table::text(t1, t2));
+        out!(io, "{}", table::text(t1, t2))?;
     }
     Ok(())
 }

@@ -706,6 +706,7 @@ impl<F: Field> Evaluator<F> {
         env: &mut Vec<i64>,
         acc: &mut F::Acc,
     ) -> Result<(), EvalError> {
+        crate::limits::tick();
         // every node of the summation tree counts against the budget
         {
             let mut p = self.points.borrow_mut();

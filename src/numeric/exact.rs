@@ -113,6 +113,7 @@ fn nine_j_general(t: &[i64; 9]) -> Surd {
     let mut terms = Vec::new();
     let mut x = lo;
     while x <= hi {
+        crate::limits::check_now();
         let [p, q, r] = nine_j_six_js(t, x);
         let s1 = six_j_raw(p);
         if !s1.is_zero() {

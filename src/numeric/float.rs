@@ -234,6 +234,7 @@ fn evaluate(f: &RacahFormula) -> Option<Xf> {
                 let mut acc = Xf::ONE;
                 let mut abs_acc = Xf::ONE;
                 for k in s.kmin..s.kmax {
+                    crate::limits::tick();
                     let (num, den) = s.ratio(k);
                     term = -(term * Xf::from_dd(Dd::from_u128(num) / Dd::from_u128(den)));
                     acc = acc + term;
@@ -282,6 +283,7 @@ fn fixed_point_sum(s: &RacahSum, bits: u64) -> Option<Xf> {
         let mut err_log2 = rel.log2() + tf;
         let mut overflowed = false;
         for k in s.kmin..s.kmax {
+            crate::limits::tick();
             let (n, d) = s.ratio(k);
             t = -(t * BigInt::from(n)) / BigInt::from(d);
             if t.is_zero() {
@@ -436,6 +438,7 @@ pub fn nine_j_f64(t: [i64; 9]) -> f64 {
     let mut abs_acc = Xf::ZERO;
     let mut x = lo;
     while x <= hi {
+        crate::limits::check_now();
         let [p, q, r] = nine_j_six_js(&t, x);
         let s1 = six_j_xf(p);
         if !s1.is_zero() {

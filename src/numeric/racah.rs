@@ -173,6 +173,7 @@ impl RacahSum {
         // divide by P = Π d_i: exponents -2 each, factor by factor
         let mut factors: Vec<u64> = Vec::with_capacity(4 * (self.kmax - self.kmin) as usize);
         for k in self.kmin..self.kmax {
+            crate::limits::tick();
             self.for_each_denominator_factor(k, |f| factors.push(f));
         }
         e.add_integers(&factors, -2);
@@ -209,6 +210,7 @@ impl RacahSum {
         let mut p = BigInt::one();
         let mut k = self.kmax - 1;
         while k >= self.kmin {
+            crate::limits::tick();
             let (n, d) = self.ratio(k);
             p *= d;
             a = &p - a * n;

@@ -124,6 +124,12 @@ pub enum SimplifyError {
     /// The expression cannot be evaluated (so nothing can be verified).
     #[error("{0}")]
     Eval(#[from] EvalError),
+    /// A limit was reached (size of the work, points).
+    #[error("{0}")]
+    Limit(String),
+    /// A defect: an invariant of the engine does not hold.
+    #[error("internal error: {0}")]
+    Internal(String),
 }
 
 /// `a = 1, b = 1/2`.

@@ -332,14 +332,24 @@ impl Ctx<'_> {
         }
     }
 
-    fn row(&self, pair: Pair<Rule>, what: &str) -> R<Vec<Lin>> {
+    fn row(&self, pair: Pair<Rule>, what: &str, at: &mut Vec<usize>) -> R<Vec<Lin>> {
         let mut out = Vec::new();
         for e in pair.into_inner() {
-            let at = e.as_span().start();
+            let pos = e.as_span().start();
             let v = self.lower(e)?;
-            out.push(self.as_lin(v, at, what)?);
+            out.push(self.as_lin(v, pos, what)?);
+            at.push(pos);
         }
         Ok(out)
+    }
+
+    /// A symbol whose literal arguments are physics (see
+    /// `literal_problem`); the error points at the offending argument.
+    fn symbol(&self, f: Factor, at: &[usize]) -> R<Value> {
+        if let Some((slot, msg)) = literal_problem(&f) {
+            return Err(self.err(at.get(slot).copied().unwrap_or(at[0]), msg));
+        }
+        Ok(Value::Expr(Expr::from_term(Term::factor(f))))
     }
 
     fn primary(&self, p: Pair<Rule>) -> R<Value> {
@@ -364,8 +374,9 @@ impl Ctx<'_> {
             }
             Rule::three_j => {
                 let mut rows = p.into_inner();
-                let r1 = self.row(rows.next().unwrap(), "an argument of a 3j symbol")?;
-                let r2 = self.row(rows.next().unwrap(), "an argument of a 3j symbol")?;
+                let mut pos = Vec::new();
+                let r1 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
+                let r2 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
                 if r1.len() != 3 || r2.len() != 3 {
                     return Err(self.err(
                         at,
@@ -377,14 +388,13 @@ impl Ctx<'_> {
                     ));
                 }
                 let a: Vec<Lin> = r1.into_iter().chain(r2).collect();
-                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::ThreeJ(
-                    a.try_into().unwrap(),
-                )))))
+                self.symbol(Factor::ThreeJ(a.try_into().unwrap()), &pos)
             }
             Rule::braces => {
                 let mut rows = Vec::new();
+                let mut pos = Vec::new();
                 for r in p.into_inner() {
-                    rows.push(self.row(r, "an entry of a 6j or 9j symbol")?);
+                    rows.push(self.row(r, "an entry of a 6j or 9j symbol", &mut pos)?);
                 }
                 let shape: Vec<usize> = rows.iter().map(|r| r.len()).collect();
                 let all: Vec<Lin> = rows.into_iter().flatten().collect();
@@ -401,18 +411,18 @@ impl Ctx<'_> {
                         ))
                     }
                 };
-                Ok(Value::Expr(Expr::from_term(Term::factor(f))))
+                self.symbol(f, &pos)
             }
             Rule::clebsch_gordan => {
                 let mut a = Vec::new();
+                let mut pos = Vec::new();
                 for e in p.into_inner() {
                     let eat = e.as_span().start();
                     let v = self.lower(e)?;
                     a.push(self.as_lin(v, eat, "an argument of a Clebsch-Gordan coefficient")?);
+                    pos.push(eat);
                 }
-                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Cg(
-                    a.try_into().unwrap(),
-                )))))
+                self.symbol(Factor::Cg(a.try_into().unwrap()), &pos)
             }
             Rule::sum => self.sum(p),
             Rule::call => self.call(p),
@@ -488,6 +498,7 @@ impl Ctx<'_> {
             "hat" => {
                 let (v, aat) = vals.pop().unwrap();
                 let l = self.as_lin(v, aat, "the argument of hat")?;
+                admissible_literal(&l, true).map_err(|m| self.err(aat, m))?;
                 let base = l
                     .scale(Q::from_integer(2))
                     .add_scaled(&Lin::int(1), Q::one());
@@ -520,12 +531,12 @@ impl Ctx<'_> {
             }
             "tri" => {
                 let mut ls = Vec::new();
+                let mut pos = Vec::new();
                 for (v, aat) in vals {
                     ls.push(self.as_lin(v, aat, "an argument of tri")?);
+                    pos.push(aat);
                 }
-                Ok(Value::Expr(Expr::from_term(Term::factor(Factor::Tri(
-                    ls.try_into().unwrap(),
-                )))))
+                self.symbol(Factor::Tri(ls.try_into().unwrap()), &pos)
             }
             _ => unreachable!(),
         }
@@ -620,6 +631,70 @@ impl Ctx<'_> {
     }
 }
 
+/// The first literal argument of a symbol that is not physics, by slot
+/// (in `Factor::lins` order), with what is wrong: angular momenta must be
+/// nonnegative multiples of 1/2, projections multiples of 1/2 with
+/// `j - m` an integer. A literal projection with |m| > j is allowed: the
+/// symbol is 0 by convention.
+pub fn literal_problem(f: &Factor) -> Option<(usize, String)> {
+    let lins = f.lins();
+    let slot = |l: &Lin| lins.iter().position(|x| std::ptr::eq(*x, l)).unwrap_or(0);
+    for l in f.j_slots() {
+        if let Err(m) = admissible_literal(l, true) {
+            return Some((slot(l), m));
+        }
+    }
+    for l in f.m_slots() {
+        if let Err(m) = admissible_literal(l, false) {
+            return Some((slot(l), m));
+        }
+    }
+    for (j, m) in f.columns() {
+        let diff = j - m;
+        if diff.is_constant() && !diff.constant_part().is_integer() {
+            return Some((
+                slot(m),
+                format!(
+                    "the projection {m} does not belong to the angular momentum {j}: j - m = {} is not an integer",
+                    crate::expr::lin::fmt_q(&diff.constant_part())
+                ),
+            ));
+        }
+    }
+    None
+}
+
+/// Checks a literal argument: in an angular-momentum slot (`j`) a
+/// constant must be a nonnegative multiple of 1/2, in a projection slot a
+/// multiple of 1/2; a form with integer coefficients must have a constant
+/// part that is a multiple of 1/2 (else no value of its names fits).
+fn admissible_literal(l: &Lin, j: bool) -> Result<(), String> {
+    let c = l.constant_part();
+    let half = (c * Q::from_integer(2)).is_integer();
+    let what = if j {
+        "an angular momentum"
+    } else {
+        "a projection"
+    };
+    if l.is_constant() {
+        if !half {
+            return Err(format!("{what} must be a multiple of 1/2; this one is {l}"));
+        }
+        if j && c < Q::zero() {
+            return Err(format!(
+                "an angular momentum cannot be negative; this one is {l}"
+            ));
+        }
+        return Ok(());
+    }
+    if l.terms().all(|(_, k)| k.is_integer()) && !half {
+        return Err(format!(
+            "{what} must be a multiple of 1/2, and {l} is not one for any values of its names"
+        ));
+    }
+    Ok(())
+}
+
 fn neg(v: Value) -> Value {
     match v {
         Value::Lin(b) => Value::Lin(b.scale(&-BigRational::one())),
@@ -661,7 +736,11 @@ fn lower_leaf(ctx: &Ctx, p: Pair<Rule>) -> R<Lin> {
     let inner = p.into_inner().next().unwrap();
     match inner.as_rule() {
         Rule::ident => Ok(Lin::var(Name::new(inner.as_str()))),
-        Rule::fraction => parse_fraction(ctx, &inner),
+        Rule::fraction => {
+            let l = parse_fraction(ctx, &inner)?;
+            admissible_literal(&l, true).map_err(|m| ctx.err(inner.as_span().start(), m))?;
+            Ok(l)
+        }
         _ => unreachable!(),
     }
 }

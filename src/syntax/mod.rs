@@ -8,10 +8,12 @@ mod lower;
 mod print;
 
 pub use error::ParseError;
+pub use lower::literal_problem;
 pub use print::{print_factor, print_term};
 
 use crate::expr::{CouplingTree, Expr};
 use grammar::{Grammar, Rule};
+use num_traits::Signed;
 use pest::Parser;
 
 mod grammar {
@@ -42,4 +44,28 @@ pub fn parse_tree(input: &str) -> Result<CouplingTree, ParseError> {
     let top = pairs.next().unwrap();
     let node = top.into_inner().next().unwrap();
     lower::lower_tree(input, node, true)
+}
+
+/// Notes on symbols that are 0 because a literal projection exceeds its
+/// literal angular momentum (|m| > j): the usual convention makes them 0,
+/// which the user may not have meant.
+pub fn literal_zero_notes(e: &Expr) -> Vec<String> {
+    let mut out = Vec::new();
+    for t in &e.terms {
+        for f in &t.factors {
+            for (j, m) in f.columns() {
+                if j.is_constant() && m.is_constant() && m.constant_part().abs() > j.constant_part()
+                {
+                    let note = format!(
+                        "{} is 0: its projection {m} exceeds j = {j} (|m| <= j; the usual convention)",
+                        print_factor(f)
+                    );
+                    if !out.contains(&note) {
+                        out.push(note);
+                    }
+                }
+            }
+        }
+    }
+    out
 }
