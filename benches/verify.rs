@@ -26,6 +26,7 @@ fn main() {
         samples: 200,
         exhaustive: false,
         seed: 1,
+        ..SpotSettings::default()
     };
     let mut times = Vec::new();
     let mut last = None;

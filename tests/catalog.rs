@@ -18,6 +18,7 @@ fn every_catalog_entry_holds() {
             samples: if heavy { 10 } else { 30 },
             exhaustive: false,
             seed: 17,
+            ..SpotSettings::default()
         };
         let rep = compare(&r.lhs, &r.rhs, &s).unwrap_or_else(|e| panic!("{}: {e}", r.name));
         assert!(

@@ -36,6 +36,7 @@ fn settings(lhs: &str, seed: u64) -> SpotSettings {
         samples: if heavy { 12 } else { 30 },
         exhaustive: false,
         seed,
+        ..SpotSettings::default()
     }
 }
 

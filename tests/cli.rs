@@ -56,7 +56,7 @@ fn parse_errors_point_at_line_and_column_with_a_caret() {
     assert_eq!(code, 2);
     assert!(out.is_empty());
     insta::assert_snapshot!(err, @r"
-    recoup: parse error at line 1, column 24: expected a closing parenthesis, a comma or an operator; found the end of the input
+    recoup: parse error at line 1, column 24: expected a closing parenthesis, a comma, a semicolon or an operator; found the end of the input
       (j1, j2, j3; m1, m2, m3
                              ^
     ");
@@ -142,18 +142,20 @@ fn latex_of_the_standard_shapes() {
 
 #[test]
 fn check_exit_codes_and_json() {
-    // 6j-sum-plain (IDENTITIES.md) as stated: exit 0
+    // 6j-sum-plain (Edmonds 6.2.9 with the 6j-zero value 6.3.2; from
+    // memory), with the triangle factor its left side implies: exit 0
     let (code, out, _) = run(
         &[
             "check",
             "sum(x: (2*x+1) {a, b, x; a, b, c})",
-            "(-1)^(2*a+2*b)",
+            "(-1)^(2*a+2*b) tri(a, b, c)",
         ],
         None,
     );
     assert_eq!(code, 0, "{out}");
-    assert!(out.starts_with("equal at all"));
-    // without its phase: exit 1, counterexample and the repair
+    assert!(out.starts_with("equal at"), "{out}");
+    // without its phase and its triangle factor: exit 1, counterexample
+    // and both repairs
     let (code, out, _) = run(
         &["check", "sum(x: (2*x+1) {a, b, x; a, b, c})", "1", "--json"],
         None,
@@ -164,8 +166,19 @@ fn check_exit_codes_and_json() {
     assert!(v["counterexample"]["at"]["a"].is_string());
     assert_eq!(
         v["diagnosis"],
-        "the left side is (-1)^(2*a+2*b) times the right side"
+        "equal wherever (a, b, c) satisfy the triangle rule; the right side lacks tri(a, b, c); then the left side is (-1)^(2*a+2*b) times the right side"
     );
+    // without only its triangle factor: the missing tri is named
+    let (code, out, _) = run(
+        &[
+            "check",
+            "sum(x: (2*x+1) {a, b, x; a, b, c})",
+            "(-1)^(2*a+2*b)",
+        ],
+        None,
+    );
+    assert_eq!(code, 1, "{out}");
+    assert!(out.contains("the right side lacks tri(a, b, c)"), "{out}");
     // nothing nonzero: not established, exit 1
     let (code, out, _) = run(&["check", "(a, a, 1; 0, 0, 0)", "0"], None);
     assert_eq!(code, 1);

@@ -34,6 +34,7 @@ fn settings(seed: u64) -> SpotSettings {
         samples: 24,
         exhaustive: false,
         seed,
+        ..SpotSettings::default()
     }
 }
 

@@ -57,6 +57,7 @@ fn every_identity_holds_at_random_admissible_points() {
             samples: if heavy { 12 } else { 40 },
             exhaustive: false,
             seed: 7,
+            ..SpotSettings::default()
         };
         let rep = compare(&lhs, &rhs, &s).unwrap_or_else(|e| panic!("{}: {e}", c.name));
         assert!(

@@ -56,6 +56,7 @@ fn the_three_recouplings_of_the_identity_list() {
             samples: 40,
             exhaustive: false,
             seed: 3,
+            ..recoup::verify::spot::SpotSettings::default()
         };
         let res = check(&r.outcome.result, &w, &s).unwrap();
         assert!(

@@ -123,7 +123,7 @@ fn a_deliberately_wrong_rule_is_caught_and_named() {
     };
     let err = simplify(&parse("{a, b, c; d, e, 0}").unwrap(), &opts).unwrap_err();
     match err {
-        SimplifyError::Unverified { rule, .. } => assert_eq!(rule, "wrong-6j-zero"),
+        SimplifyError::Unverified(u) => assert_eq!(u.rule, "wrong-6j-zero"),
         other => panic!("unexpected {other}"),
     }
 }

@@ -31,6 +31,7 @@ fn check_all(
             samples: 12,
             exhaustive: false,
             seed: 11 + k as u64,
+            ..SpotSettings::default()
         };
         let rep = compare(&e, &rhs, &s).unwrap();
         assert!(

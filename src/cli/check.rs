@@ -3,8 +3,9 @@
 
 use super::{outln, parse_expr, read_arg, Failure, Io};
 use crate::expr::Q;
-use crate::verify::check::{check, Verdict};
-use crate::verify::spot::SpotSettings;
+use crate::verify::check::{check, CheckError, CheckResult, Verdict};
+use crate::verify::diagnose::Side;
+use crate::verify::spot::{SpotSettings, DEFAULT_MAX_POINTS};
 use clap::Args;
 
 #[derive(Args, Debug)]
@@ -21,9 +22,18 @@ pub struct CheckArgs {
     /// number of random points
     #[arg(long, value_name = "N", default_value_t = 60)]
     samples: usize,
-    /// every admissible point up to --max-j (at most 50 × --samples)
+    /// every admissible point up to --max-j, counted first (at most
+    /// --max-points of them)
     #[arg(long)]
     exhaustive: bool,
+    /// most points an exhaustive check may visit
+    #[arg(long, value_name = "N", default_value_t = DEFAULT_MAX_POINTS)]
+    max_points: u64,
+    /// check only where every triad of free variables satisfies the
+    /// triangle rule (by default some points break one, so that a missing
+    /// tri(...) is found)
+    #[arg(long)]
+    triangles_hold: bool,
     /// seed of the random points
     #[arg(long, default_value_t = 1)]
     seed: u64,
@@ -59,6 +69,7 @@ pub fn settings(
         samples,
         exhaustive,
         seed,
+        ..SpotSettings::default()
     })
 }
 
@@ -75,28 +86,53 @@ fn point_json(p: &crate::verify::sample::Point) -> serde_json::Value {
     serde_json::Value::Object(m)
 }
 
+/// How the points were chosen, in words.
+fn how(r: &CheckResult, s: &SpotSettings) -> String {
+    let domain = if s.triangles_hold {
+        ", triangle rules of free triads kept"
+    } else {
+        ""
+    };
+    match r.domain {
+        Some(n) => format!(
+            "{} points ({} nonzero): every admissible point with values up to {}{domain} ({n} in all)",
+            r.checked,
+            r.nonzero,
+            crate::expr::lin::fmt_q(&s.max_j),
+        ),
+        None => format!(
+            "{} points ({} nonzero, {} with a broken triad), values up to {}{domain}, random, seed {}",
+            r.checked,
+            r.nonzero,
+            r.broken_triads,
+            crate::expr::lin::fmt_q(&s.max_j),
+            s.seed
+        ),
+    }
+}
+
 pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
     let lhs = parse_expr(&read_arg(&a.lhs, io)?)?;
     let rhs = parse_expr(&read_arg(&a.rhs, io)?)?;
-    let s = settings(&a.max_j, a.samples, a.exhaustive, a.seed)?;
-    let r = check(&lhs, &rhs, &s).map_err(|e| Failure::input(e.to_string()))?;
-    let how = format!(
-        "{} points ({} nonzero), values up to {}, {}",
-        r.checked,
-        r.nonzero,
-        crate::expr::lin::fmt_q(&s.max_j),
-        if s.exhaustive {
-            "every admissible point".to_string()
-        } else {
-            format!("random, seed {}", s.seed)
+    let mut s = settings(&a.max_j, a.samples, a.exhaustive, a.seed)?;
+    s.triangles_hold = a.triangles_hold;
+    if a.max_points == 0 {
+        return Err(Failure::input("--max-points must be at least 1"));
+    }
+    s.max_points = a.max_points;
+    let r = check(&lhs, &rhs, &s).map_err(|e| match e {
+        CheckError::Eval(e) => e.into(),
+        too_many @ CheckError::TooManyPoints { .. } => {
+            Failure::limit(format!("{too_many} (--max-points N, --max-j J)"))
         }
-    );
+    })?;
+    let how = how(&r, &s);
     let code = match &r.verdict {
         Verdict::Equal => 0,
         _ => 1,
     };
     if a.json {
-        let (cx, diag, repaired) = match &r.verdict {
+        let (cx, diag, repaired, side) = match &r.verdict {
             Verdict::Different {
                 at,
                 lhs,
@@ -106,8 +142,12 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
                 serde_json::json!({"at": point_json(at), "lhs": lhs.to_string(), "rhs": rhs.to_string()}),
                 diagnosis.as_ref().map(|d| d.text.clone()),
                 diagnosis.as_ref().map(|d| d.repaired.to_string()),
+                diagnosis.as_ref().map(|d| match d.side {
+                    Side::Left => "left",
+                    Side::Right => "right",
+                }),
             ),
-            _ => (serde_json::Value::Null, None, None),
+            _ => (serde_json::Value::Null, None, None, None),
         };
         outln!(
             io,
@@ -117,28 +157,31 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
                 "established": !matches!(r.verdict, Verdict::NotEstablished),
                 "checked": r.checked,
                 "nonzero": r.nonzero,
+                "mismatches": r.mismatches,
+                "broken_triads": r.broken_triads,
+                "exhaustive": r.domain.is_some(),
+                "domain_points": r.domain,
                 "counterexample": cx,
                 "diagnosis": diag,
                 "repaired": repaired,
+                "repaired_side": side,
             })
         )?;
         return Ok(code);
     }
     match &r.verdict {
-        Verdict::Equal => {
-            outln!(io, "equal at all {how}")?;
-        }
-        Verdict::NotEstablished => {
-            outln!(io, "not established: both sides vanish at all {how}; try other values (--max-j, --seed)"
-        )?;
-        }
+        Verdict::Equal => outln!(io, "equal at {how}")?,
+        Verdict::NotEstablished => outln!(
+            io,
+            "not established: both sides vanish at all {how}; try other values (--max-j, --seed)"
+        )?,
         Verdict::Different {
             at,
             lhs,
             rhs,
             diagnosis,
         } => {
-            outln!(io, "different (checked {how})")?;
+            outln!(io, "different at {} of {how}", r.mismatches)?;
             outln!(
                 io,
                 "smallest counterexample: {}",
@@ -149,17 +192,24 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
             match diagnosis {
                 Some(d) => {
                     outln!(io, "diagnosis: {}", d.text)?;
-                    outln!(io, "repaired right side: {}", d.repaired)?;
+                    let which = match d.side {
+                        Side::Left => "left",
+                        Side::Right => "right",
+                    };
+                    outln!(io, "repaired {which} side: {}", d.repaired)?;
+                    let again = if r.domain.is_some() {
+                        "the same exhaustive domain"
+                    } else {
+                        "other seed"
+                    };
                     outln!(
                         io,
-                        "the repaired claim agrees at {} points ({} nonzero, other seed)",
+                        "the repaired claim agrees at {} points ({} nonzero, {again})",
                         d.confirmed.checked,
                         d.confirmed.nonzero
                     )?;
                 }
-                None => {
-                    outln!(io, "diagnosis: no single phase, factor of hats or swapped pair of arguments explains the difference")?;
-                }
+                None => outln!(io, "diagnosis: no single phase, factor of hats, triangle factor or swapped pair of arguments explains the difference")?,
             }
         }
     }

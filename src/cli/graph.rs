@@ -19,6 +19,16 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
     let e = parse_expr(&read_arg(&a.expr, io)?)?;
     // Clebsch-Gordan coefficients are drawn as the 3j they stand for
     let e = crate::graph::reduce::with_cg_as_3j(&e);
+    let has_vertex = e.terms.iter().any(|t| {
+        t.factors
+            .iter()
+            .any(|f| matches!(f, crate::expr::Factor::ThreeJ(_)))
+    });
+    if !has_vertex {
+        return Err(Failure::input(
+            "nothing to draw: the expression has no 3j symbol or Clebsch-Gordan coefficient, so it has no projection-sum graph",
+        ));
+    }
     if a.json {
         let terms: Vec<serde_json::Value> = e.terms.iter().map(dot::json).collect();
         outln!(io, "{}", serde_json::json!({ "terms": terms }))?;

@@ -21,8 +21,13 @@ pub fn decode(bytes: &[u8], what: &str) -> Result<String, String> {
                 .chars()
                 .count()
                 + 1;
+            let place = if bytes.contains(&b'\n') {
+                format!("line {line}, column {column}")
+            } else {
+                format!("column {column}")
+            };
             Err(format!(
-                "{what} is not valid UTF-8: byte 0x{:02x} at line {line}, column {column}",
+                "{what} is not valid UTF-8: byte 0x{:02x} at {place}",
                 bytes[at]
             ))
         }

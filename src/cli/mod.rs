@@ -93,9 +93,23 @@ impl From<crate::simplify::SimplifyError> for Failure {
         match e {
             SimplifyError::Eval(e) => e.into(),
             SimplifyError::Limit(m) => Failure::Limit(m),
-            other @ (SimplifyError::Unverified { .. } | SimplifyError::Internal(..)) => {
+            other @ (SimplifyError::Unverified(_) | SimplifyError::Internal(..)) => {
                 Failure::Internal(other.to_string())
             }
+        }
+    }
+}
+
+impl From<crate::recouple::RecoupleError> for Failure {
+    fn from(e: crate::recouple::RecoupleError) -> Self {
+        use crate::recouple::RecoupleError;
+        match e {
+            RecoupleError::Simplify(s) => (*s).into(),
+            RecoupleError::Limit(m) => Failure::Limit(m),
+            RecoupleError::Internal(_) => Failure::Internal(format!(
+                "{e}. This is a defect in recoup; please report it with the command line"
+            )),
+            other => Failure::Input(other.to_string()),
         }
     }
 }
@@ -304,7 +318,7 @@ where
         Ok(Ok(Err(f))) => report(f, io),
         Ok(Err(up)) => report(
             Failure::limit(format!(
-                "stopped: the work took longer than the time limit of {} s; raise it with --time-limit SECONDS (or ask for less: smaller quantum numbers, fewer points)",
+                "the work took longer than the time limit of {} s; raise it with --time-limit SECONDS (or ask for less: smaller quantum numbers, fewer points)",
                 up.seconds
             )),
             io,
@@ -326,7 +340,7 @@ where
 fn report(f: Failure, io: &mut Io) -> i32 {
     let (code, msg) = match f {
         Failure::Input(m) => (EXIT_INPUT, m),
-        Failure::Limit(m) => (EXIT_LIMIT, m),
+        Failure::Limit(m) => (EXIT_LIMIT, format!("limit reached: {m}")),
         Failure::Internal(m) => (EXIT_INTERNAL, m),
         Failure::Closed => return EXIT_OK,
     };

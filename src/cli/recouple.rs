@@ -46,7 +46,7 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     let from = tree(&a.from, io)?;
     let to = tree(&a.to, io)?;
     if a.matrix {
-        let m = matrix::matrices(&from, &to).map_err(|e| Failure::input(e.to_string()))?;
+        let m = matrix::matrices(&from, &to)?;
         if a.json {
             outln!(io, "{}", matrix::json(&m))?;
         } else {
@@ -54,7 +54,7 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         }
         return Ok(());
     }
-    let r = recouple(&from, &to, &Options::default()).map_err(|e| Failure::input(e.to_string()))?;
+    let r = recouple(&from, &to, &Options::default())?;
     let result = if a.only_6j {
         only_6j(&r.outcome.result)
     } else {

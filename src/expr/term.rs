@@ -271,6 +271,7 @@ impl Term {
 
     /// The light normal form (see the module comment).
     pub fn normalized(mut self) -> Term {
+        crate::limits::tick();
         if self.coef.is_zero() {
             return self.zeroed();
         }
@@ -549,6 +550,7 @@ impl Expr {
     /// Adds a term, merging it into a like term when there is one (all
     /// purely linear terms, `c` and `c·(L)`, merge into one linear form).
     pub fn push(&mut self, t: Term) {
+        crate::limits::tick();
         if t.is_zero() {
             return;
         }
@@ -597,13 +599,63 @@ impl Expr {
 
     /// The product (expanded).
     pub fn mul(&self, other: &Expr) -> Expr {
-        let mut e = Expr::zero();
-        for a in &self.terms {
-            for b in &other.terms {
-                e.push(a.mul(b));
+        Expr::merged(
+            self.terms
+                .iter()
+                .flat_map(|a| other.terms.iter().map(move |b| a.mul(b))),
+        )
+    }
+
+    /// The sum of many terms with like terms merged, as `push` merges
+    /// them, but with a hash index instead of a scan per term (so a large
+    /// expansion costs linear, not quadratic, time).
+    pub fn merged(terms: impl IntoIterator<Item = Term>) -> Expr {
+        use std::hash::{Hash, Hasher};
+        let shape_hash = |t: &Term| {
+            let mut h = std::collections::hash_map::DefaultHasher::new();
+            t.root.hash(&mut h);
+            t.phase.hash(&mut h);
+            t.factors.hash(&mut h);
+            t.bound.hash(&mut h);
+            h.finish()
+        };
+        let mut out: Vec<Term> = Vec::new();
+        let mut index: std::collections::HashMap<u64, Vec<usize>> = Default::default();
+        let mut linear: Option<(usize, Lin)> = None;
+        for t in terms {
+            crate::limits::tick();
+            if t.is_zero() {
+                continue;
+            }
+            if let Some(l) = t.as_linear() {
+                match &mut linear {
+                    Some((_, acc)) => *acc = &*acc + &l,
+                    None => {
+                        linear = Some((out.len(), l));
+                        out.push(Term::one());
+                    }
+                }
+                continue;
+            }
+            let h = shape_hash(&t);
+            let slots = index.entry(h).or_default();
+            match slots.iter().find(|&&i| out[i].same_shape(&t)) {
+                Some(&i) => out[i].coef = &out[i].coef + &t.coef,
+                None => {
+                    slots.push(out.len());
+                    out.push(t);
+                }
             }
         }
-        e
+        if let Some((i, l)) = linear {
+            match Term::linear(&l) {
+                Some(t) => out[i] = t,
+                None => out[i].coef = BigRational::zero(),
+            }
+        }
+        Expr {
+            terms: out.into_iter().filter(|t| !t.coef.is_zero()).collect(),
+        }
     }
 
     /// True for 0.

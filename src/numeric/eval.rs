@@ -20,6 +20,9 @@ use std::rc::Rc;
 /// Values of variables.
 pub type Assignment = BTreeMap<Name, Q>;
 
+/// Largest |value| of a variable given by the user (2^20).
+pub const MAX_VALUE: i64 = 1 << 20;
+
 /// Most summation points one evaluation may visit.
 pub const MAX_POINTS: u64 = 50_000_000;
 
@@ -40,6 +43,14 @@ pub enum EvalError {
     /// A value that is not a multiple of 1/2.
     #[error("{name} = {value} is not a multiple of 1/2")]
     NotHalfInteger {
+        /// the variable
+        name: Name,
+        /// its value
+        value: String,
+    },
+    /// A value beyond what is evaluated.
+    #[error("{name} = {value} is larger than any value recoup evaluates (|value| <= 2^20)")]
+    ValueTooLarge {
         /// the variable
         name: Name,
         /// its value
@@ -300,23 +311,48 @@ struct CLin {
     den: i64,
 }
 
+/// Largest common denominator and scaled coefficient of a compiled linear
+/// form: with values below `MAX_VALUE` (doubled below 2^22) every sum of
+/// a few dozen products stays far inside `i64`.
+const CLIN_LIMIT: i128 = 1 << 30;
+
 impl CLin {
-    fn new(l: &Lin, index: &BTreeMap<Name, usize>) -> CLin {
-        use num_integer::Integer;
-        let mut den: i64 = 1;
+    /// The compiled form, or `None` when its numbers are too large to
+    /// evaluate in 64-bit arithmetic.
+    fn new(l: &Lin, index: &BTreeMap<Name, usize>) -> Option<CLin> {
+        let gcd = |a: i128, b: i128| -> i128 {
+            let (mut a, mut b) = (a.abs(), b.abs());
+            while b != 0 {
+                (a, b) = (b, a % b);
+            }
+            a
+        };
+        let lcm = |a: i128, b: i128| a / gcd(a, b) * b;
+        let mut den: i128 = 1;
         for (_, c) in l.terms() {
-            den = den.lcm(c.denom());
+            den = lcm(den, *c.denom() as i128);
+            if den > CLIN_LIMIT {
+                return None;
+            }
         }
         let two_c0 = l.constant_part() * Q::from_integer(2);
-        den = den.lcm(two_c0.denom());
-        let scale = Q::from_integer(den);
-        CLin {
-            a0: (two_c0 * scale).to_integer(),
-            t: l.terms()
-                .map(|(n, c)| (index[n], (*c * scale).to_integer()))
-                .collect(),
-            den,
+        den = lcm(den, *two_c0.denom() as i128);
+        if den > CLIN_LIMIT {
+            return None;
         }
+        let scaled = |q: Q| -> Option<i64> {
+            let v = *q.numer() as i128 * (den / *q.denom() as i128);
+            (v.abs() <= CLIN_LIMIT).then_some(v as i64)
+        };
+        let mut t = Vec::new();
+        for (n, c) in l.terms() {
+            t.push((index[n], scaled(*c)?));
+        }
+        Some(CLin {
+            a0: scaled(two_c0)?,
+            t,
+            den: den as i64,
+        })
     }
     /// `den · 2L` at the doubled assignment.
     #[inline]
@@ -393,6 +429,8 @@ struct CTerm {
     factors: Vec<CFactor>,
     phase: Option<(CLin, String)>,
     scalar: Surd,
+    /// some linear form has numbers too large for 64-bit evaluation
+    too_wide: bool,
 }
 
 impl CTerm {
@@ -404,7 +442,17 @@ impl CTerm {
             .enumerate()
             .map(|(i, n)| (n, i))
             .collect();
-        let cl = |l: &Lin| CLin::new(l, &index);
+        let too_wide = std::cell::Cell::new(false);
+        let cl = |l: &Lin| {
+            CLin::new(l, &index).unwrap_or_else(|| {
+                too_wide.set(true);
+                CLin {
+                    a0: 0,
+                    t: Vec::new(),
+                    den: 1,
+                }
+            })
+        };
         let mut cheap = Vec::new();
         let mut powers = Vec::new();
         let mut symbols = Vec::new();
@@ -435,13 +483,15 @@ impl CTerm {
             let all_int: Vec<CLin> = c.integral.iter().map(&cl).collect();
             static_order(n, &free, &bound, &all_eq, &all_ge, &all_int)
         };
+        let phase = (!t.phase.is_zero()).then(|| (cl(&t.phase), t.phase.to_string()));
         CTerm {
             order,
             free,
             factors,
-            phase: (!t.phase.is_zero()).then(|| (cl(&t.phase), t.phase.to_string())),
+            phase,
             scalar: t.scalar(),
             names,
+            too_wide: too_wide.get(),
         }
     }
 }
@@ -591,6 +641,12 @@ pub fn check_assignment(e: &Expr, at: &Assignment) -> Result<(), EvalError> {
                 value: qstr(val),
             });
         }
+        if val.abs() > Q::from_integer(MAX_VALUE) {
+            return Err(EvalError::ValueTooLarge {
+                name: v.clone(),
+                value: qstr(val),
+            });
+        }
         if *k == Kind::AngularMomentum && val.is_negative() {
             return Err(EvalError::NegativeJ {
                 name: v.clone(),
@@ -673,6 +729,11 @@ impl<F: Field> Evaluator<F> {
     /// Evaluates one term.
     pub fn eval_term(&self, t: &Term, at: &Assignment) -> Result<F, EvalError> {
         let c = self.compiled(t);
+        if c.too_wide {
+            return Err(EvalError::Arithmetic(
+                "a linear form in this term has numbers too large to evaluate (coefficients and denominators up to 2^30)".into(),
+            ));
+        }
         let n = c.names.len();
         let mut env = vec![0i64; n];
         for &i in &c.free {

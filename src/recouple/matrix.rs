@@ -8,7 +8,7 @@ use super::{recouple, RecoupleError};
 use crate::expr::{CouplingTree, Name, Q};
 use crate::numeric::eval::{Assignment, Evaluator};
 use crate::numeric::Surd;
-use crate::simplify::Options;
+use crate::simplify::{Options, SimplifyError};
 use num_traits::One;
 
 /// Largest basis a matrix is printed for.
@@ -80,6 +80,36 @@ fn labelings(t: &CouplingTree) -> Vec<Vec<(Name, Q)>> {
         .collect()
 }
 
+/// The number of labelings of a tree for each value of its root, counted
+/// without listing them (so a size limit can be checked first).
+fn labeling_counts(t: &CouplingTree) -> std::collections::BTreeMap<Q, u128> {
+    use std::collections::BTreeMap;
+    match t {
+        CouplingTree::Leaf(l) => BTreeMap::from([(l.constant_part(), 1)]),
+        CouplingTree::Node(a, b, l) => {
+            let (ca, cb) = (labeling_counts(a), labeling_counts(b));
+            let mut out: BTreeMap<Q, u128> = BTreeMap::new();
+            for (va, na) in &ca {
+                for (vb, nb) in &cb {
+                    let lo = if va > vb { va - vb } else { vb - va };
+                    let mut v = lo;
+                    while v <= va + vb {
+                        if l.as_var().is_some() || l.constant_part() == v {
+                            let e = out.entry(v).or_insert(0);
+                            *e = e.saturating_add(na.saturating_mul(*nb));
+                        }
+                        v += Q::one();
+                    }
+                }
+            }
+            out
+        }
+    }
+}
+
+/// Most labelings (summed over every total) a matrix request may list.
+pub const MAX_LABELINGS: u128 = 20_000;
+
 /// The matrices for every total J.
 pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, RecoupleError> {
     for l in from.leaves() {
@@ -88,6 +118,34 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
                 "{l}: --matrix needs numeric leaves such as (1/2, (1, 1/2) x) J"
             )));
         }
+    }
+    crate::recouple::validate(from, to)?;
+    // sizes first: no block larger than MAX_DIM, no listing beyond the limit
+    let counts_from = labeling_counts(from);
+    let counts_to = labeling_counts(to);
+    if counts_from.is_empty() {
+        let allowed = labeling_counts(&with_free_root(from));
+        let totals: Vec<String> = allowed.keys().map(qstr).collect();
+        return Err(RecoupleError::NoStates(format!(
+            "no state of these leaves has the total {}: the totals allowed by the triangle rules are {}",
+            from.label(),
+            totals.join(", ")
+        )));
+    }
+    for (jt, n) in &counts_from {
+        if *n > MAX_DIM as u128 {
+            return Err(RecoupleError::Limit(format!(
+                "the basis for J = {} has {} states; at most {MAX_DIM} are printed (choose a fixed total or smaller leaves)",
+                qstr(jt),
+                n
+            )));
+        }
+    }
+    let listed: u128 = counts_from.values().chain(counts_to.values()).sum();
+    if listed > MAX_LABELINGS {
+        return Err(RecoupleError::Limit(format!(
+            "the two bases have {listed} states over all totals; at most {MAX_LABELINGS} are listed (give the total a value or use smaller leaves)"
+        )));
     }
     let r = recouple(from, to, &Options::default())?;
     let f = &r.outcome.result;
@@ -104,7 +162,7 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
         let rows: Vec<&Vec<(Name, Q)>> = lf.iter().filter(|s| total_of(s) == jt).collect();
         let cols: Vec<&Vec<(Name, Q)>> = lt.iter().filter(|s| total_of(s) == jt).collect();
         if rows.len() > MAX_DIM {
-            return Err(RecoupleError::Label(format!(
+            return Err(RecoupleError::Limit(format!(
                 "the basis for J = {} has {} states; at most {MAX_DIM} are printed",
                 qstr(&jt),
                 rows.len()
@@ -129,7 +187,7 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
                 }
                 let v = ev
                     .eval(f, &at)
-                    .map_err(|e| RecoupleError::Label(e.to_string()))?;
+                    .map_err(|e| RecoupleError::from(SimplifyError::from(e)))?;
                 line.push(v);
             }
             entries.push(line);
@@ -137,7 +195,7 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
         // orthogonality: Σ_k A_ik A_jk = δ_ij (real orthogonal)
         let n = rows.len();
         if cols.len() != n {
-            return Err(RecoupleError::Label(format!(
+            return Err(RecoupleError::Internal(format!(
                 "the two bases for J = {} have {} and {} states",
                 qstr(&jt),
                 n,
@@ -152,8 +210,8 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
                 }
                 let want = if i == k { Surd::one() } else { Surd::zero() };
                 if s != want {
-                    return Err(RecoupleError::Label(format!(
-                        "internal error: the matrix for J = {} is not orthogonal (row {i} with row {k} gives {s})",
+                    return Err(RecoupleError::Internal(format!(
+                        "the matrix for J = {} is not orthogonal (row {i} with row {k} gives {s})",
                         qstr(&jt)
                     )));
                 }
@@ -182,6 +240,18 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
         });
     }
     Ok(out)
+}
+
+/// The same tree with its root label made a name (every total allowed).
+fn with_free_root(t: &CouplingTree) -> CouplingTree {
+    match t {
+        CouplingTree::Node(a, b, _) => CouplingTree::Node(
+            a.clone(),
+            b.clone(),
+            crate::expr::Lin::var(Name::new("\u{3}root")),
+        ),
+        leaf => leaf.clone(),
+    }
 }
 
 fn label(names: &[Name], vals: &[Q]) -> String {

@@ -31,9 +31,24 @@ pub enum RecoupleError {
     /// A leaf or label that is not a name or a number.
     #[error("{0} is not a name or a number")]
     Label(String),
+    /// No coupled state has the requested total.
+    #[error("{0}")]
+    NoStates(String),
+    /// A size limit was reached.
+    #[error("{0}")]
+    Limit(String),
+    /// A defect: a result that fails its own check.
+    #[error("internal error: {0}")]
+    Internal(String),
     /// The simplification failed.
     #[error("{0}")]
-    Simplify(#[from] SimplifyError),
+    Simplify(Box<SimplifyError>),
+}
+
+impl From<SimplifyError> for RecoupleError {
+    fn from(e: SimplifyError) -> Self {
+        RecoupleError::Simplify(Box::new(e))
+    }
 }
 
 fn leaf_text(l: &Lin) -> String {

@@ -87,12 +87,16 @@ impl Default for Options {
                 samples: 20,
                 exhaustive: false,
                 seed: 3,
+                lhs_is_domain: true,
+                ..SpotSettings::default()
             },
             final_spot: SpotSettings {
                 max_j: Q::new(5, 2),
                 samples: 40,
                 exhaustive: false,
                 seed: 5,
+                lhs_is_domain: true,
+                ..SpotSettings::default()
             },
             regge: false,
             extra_rules: Vec::new(),
@@ -108,19 +112,8 @@ impl Default for Options {
 #[derive(Debug, Clone, thiserror::Error)]
 pub enum SimplifyError {
     /// A rewrite changed the value somewhere.
-    #[error("the rewrite by {rule} ({rule_source}) is wrong at {}: before {before}, after {after}", fmt_point(.at))]
-    Unverified {
-        /// the rule's name
-        rule: String,
-        /// its source
-        rule_source: String,
-        /// where it fails
-        at: Point,
-        /// value before
-        before: Surd,
-        /// value after
-        after: Surd,
-    },
+    #[error("{0}")]
+    Unverified(Box<Unverified>),
     /// The expression cannot be evaluated (so nothing can be verified).
     #[error("{0}")]
     Eval(#[from] EvalError),
@@ -130,6 +123,23 @@ pub enum SimplifyError {
     /// A defect: an invariant of the engine does not hold.
     #[error("internal error: {0}")]
     Internal(String),
+}
+
+/// A rewrite that failed its verification: the rule, the point, the
+/// values before and after.
+#[derive(Debug, Clone, thiserror::Error)]
+#[error("the rewrite by {rule} ({rule_source}) is wrong at {}: before {before}, after {after}", fmt_point(.at))]
+pub struct Unverified {
+    /// the rule's name
+    pub rule: String,
+    /// its source
+    pub rule_source: String,
+    /// where it fails
+    pub at: Point,
+    /// value before
+    pub before: crate::verify::spot::SpotValue,
+    /// value after
+    pub after: crate::verify::spot::SpotValue,
 }
 
 /// `a = 1, b = 1/2`.
@@ -150,13 +160,13 @@ pub fn verified_step(
 ) -> Result<Step, SimplifyError> {
     let rep = compare(before, after, s)?;
     if let Some(m) = rep.mismatches.first() {
-        return Err(SimplifyError::Unverified {
+        return Err(SimplifyError::Unverified(Box::new(Unverified {
             rule: rule.to_string(),
             rule_source: source.to_string(),
             at: m.at.clone(),
             before: m.lhs.clone(),
             after: m.rhs.clone(),
-        });
+        })));
     }
     Ok(Step {
         rule: rule.to_string(),
@@ -641,13 +651,13 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
     let (checked, nonzero) = match compare_within(input, &cur, &opts.final_spot, FINAL_BUDGET, 3) {
         Ok(rep) => {
             if let Some(m) = rep.mismatches.first() {
-                return Err(SimplifyError::Unverified {
+                return Err(SimplifyError::Unverified(Box::new(Unverified {
                     rule: "the whole simplification".into(),
                     rule_source: "composition of the steps".into(),
                     at: m.at.clone(),
                     before: m.lhs.clone(),
                     after: m.rhs.clone(),
-                });
+                })));
             }
             (rep.checked, rep.nonzero)
         }

@@ -18,6 +18,9 @@ pub struct ParseError {
     pub source_line: String,
 }
 
+/// Characters of the offending line shown on each side of the caret.
+const EXCERPT_HALF: usize = 40;
+
 impl fmt::Display for ParseError {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         writeln!(
@@ -25,8 +28,22 @@ impl fmt::Display for ParseError {
             "line {}, column {}: {}",
             self.line, self.column, self.message
         )?;
-        writeln!(f, "  {}", self.source_line)?;
-        write!(f, "  {}^", " ".repeat(self.column.saturating_sub(1)))
+        // a long line is shown as a window around the spot
+        let chars: Vec<char> = self.source_line.chars().collect();
+        let col = self.column.saturating_sub(1);
+        let start = col.saturating_sub(EXCERPT_HALF);
+        let end = (col + EXCERPT_HALF).min(chars.len());
+        let mut shown: String = chars[start.min(end)..end].iter().collect();
+        let mut caret = col - start;
+        if start > 0 {
+            shown = format!("...{shown}");
+            caret += 3;
+        }
+        if end < chars.len() {
+            shown.push_str("...");
+        }
+        writeln!(f, "  {shown}")?;
+        write!(f, "  {}^", " ".repeat(caret))
     }
 }
 
@@ -54,10 +71,8 @@ impl ParseError {
 /// Friendly names of the rules a user may be told were expected.
 fn rule_words(rule: Rule) -> Option<&'static str> {
     Some(match rule {
-        Rule::expr | Rule::row | Rule::paren | Rule::phase_exponent => "an expression",
-        Rule::three_j | Rule::braces | Rule::clebsch_gordan | Rule::sum | Rule::call => {
-            "an expression"
-        }
+        Rule::expr | Rule::row | Rule::group | Rule::phase_exponent => "an expression",
+        Rule::braces | Rule::clebsch_gordan | Rule::sum | Rule::call => "an expression",
         Rule::phase => "an expression",
         Rule::number => "a number",
         Rule::ident => "a name",

@@ -19,8 +19,13 @@ use std::sync::OnceLock;
 
 /// Most terms an expansion may produce before the input is refused.
 pub const MAX_TERMS: usize = 20_000;
+/// Most work the expansion of one input may cost, in factor operations
+/// (each product of two terms costs the factors it handles).
+pub const MAX_EXPANSION_WORK: u64 = 400_000;
+/// Largest |n| of a power `x^n`, also after powers of one base merge.
+pub const MAX_POWER: i64 = 64;
 /// Largest magnitude of a numerator or denominator in a linear form.
-const LIN_LIMIT: i64 = 1 << 40;
+const LIN_LIMIT: i64 = 1 << 20;
 
 fn pratt() -> &'static PrattParser<Rule> {
     static P: OnceLock<PrattParser<Rule>> = OnceLock::new();
@@ -98,6 +103,8 @@ enum Value {
 
 struct Ctx<'a> {
     input: &'a str,
+    /// term products spent on expansions so far
+    work: std::cell::Cell<u64>,
 }
 
 type R<T> = Result<T, ParseError>;
@@ -195,6 +202,7 @@ impl Ctx<'_> {
             (a, b) => {
                 let x = self.to_expr(a, at)?;
                 let y = self.to_expr(b, at)?;
+                self.spend(x.len() + y.len(), at)?;
                 let y = if sub { y.neg() } else { y };
                 let e = x.add(&y);
                 self.check_size(&e, at)?;
@@ -203,12 +211,44 @@ impl Ctx<'_> {
         }
     }
 
+    /// Charges `n` term products to the expansion budget.
+    fn spend(&self, n: usize, at: usize) -> R<()> {
+        crate::limits::check_now();
+        let w = self.work.get().saturating_add(n as u64);
+        self.work.set(w);
+        if w > MAX_EXPANSION_WORK {
+            return Err(self.err(
+                at,
+                format!(
+                    "expanding the products here is too large (more than {MAX_EXPANSION_WORK} factor operations); write fewer or smaller powers of sums"
+                ),
+            ));
+        }
+        Ok(())
+    }
+
     fn check_size(&self, e: &Expr, at: usize) -> R<()> {
         if e.len() > MAX_TERMS {
             return Err(self.err(
                 at,
                 format!("the expansion has more than {MAX_TERMS} terms; refusing to go on"),
             ));
+        }
+        // powers of one base merge: the merged exponent obeys the limit too
+        for t in &e.terms {
+            for f in &t.factors {
+                if let Factor::Power(b, ex) = f {
+                    if ex.abs() > Q::from_integer(MAX_POWER) {
+                        return Err(self.err(
+                            at,
+                            format!(
+                                "this makes the power ({b})^({}) with an exponent beyond the limit |n| <= {MAX_POWER}",
+                                crate::expr::lin::fmt_q(ex)
+                            ),
+                        ));
+                    }
+                }
+            }
         }
         Ok(())
     }
@@ -220,13 +260,16 @@ impl Ctx<'_> {
             _ => {
                 let x = self.to_expr(a, at)?;
                 let y = self.to_expr(b, at)?;
+                self.spend(product_cost(&x, &y), at)?;
                 if x.len().saturating_mul(y.len()) > MAX_TERMS {
                     return Err(self.err(
                         at,
                         format!("the expansion has more than {MAX_TERMS} terms; refusing to go on"),
                     ));
                 }
-                Ok(Value::Expr(x.mul(&y)))
+                let e = x.mul(&y);
+                self.check_size(&e, at)?;
+                Ok(Value::Expr(e))
             }
         }
     }
@@ -248,7 +291,9 @@ impl Ctx<'_> {
         }
         let inv = self.invert(b, at)?;
         let x = self.to_expr(a, at)?;
-        Ok(Value::Expr(x.mul(&Expr::from_term(inv))))
+        let e = x.mul(&Expr::from_term(inv));
+        self.check_size(&e, at)?;
+        Ok(Value::Expr(e))
     }
 
     /// `1/b` for a single term made of a constant, a phase and powers.
@@ -282,13 +327,17 @@ impl Ctx<'_> {
     }
 
     fn power(&self, base: Value, n: i64, at: usize) -> R<Value> {
-        if n.abs() > 64 {
-            return Err(self.err(at, "powers are limited to |n| <= 64"));
+        if n.abs() > MAX_POWER {
+            return Err(self.err(at, format!("powers are limited to |n| <= {MAX_POWER}")));
         }
         match base {
             Value::Lin(b) if b.is_constant() => {
                 if b.c0.is_zero() && n < 0 {
                     return Err(self.err(at, "division by zero"));
+                }
+                let bits = b.c0.numer().bits().max(b.c0.denom().bits());
+                if bits.saturating_mul(n.unsigned_abs()) > 1 << 16 {
+                    return Err(self.err(at, "this power of a number has more than 65536 bits"));
                 }
                 let mut p = BigRational::one();
                 for _ in 0..n.abs() {
@@ -325,7 +374,9 @@ impl Ctx<'_> {
                             ),
                         ));
                     }
+                    self.spend(product_cost(&acc, &base), at)?;
                     acc = acc.mul(&base);
+                    self.check_size(&acc, at)?;
                 }
                 Ok(Value::Expr(acc))
             }
@@ -360,10 +411,6 @@ impl Ctx<'_> {
                 Ok(Value::Lin(BigLin::constant(BigRational::from_integer(n))))
             }
             Rule::ident => Ok(Value::Lin(BigLin::var(Name::new(p.as_str())))),
-            Rule::paren => {
-                let inner = p.into_inner().next().unwrap();
-                self.lower(inner)
-            }
             Rule::phase => {
                 let ex = p.into_inner().next().unwrap();
                 let inner = ex.into_inner().next().unwrap();
@@ -372,21 +419,45 @@ impl Ctx<'_> {
                 let l = self.as_lin(v, eat, "the exponent of a phase")?;
                 Ok(Value::Expr(Expr::from_term(Term::phase(l))))
             }
-            Rule::three_j => {
-                let mut rows = p.into_inner();
-                let mut pos = Vec::new();
-                let r1 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
-                let r2 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
-                if r1.len() != 3 || r2.len() != 3 {
+            Rule::group => {
+                let rows: Vec<Pair<Rule>> = p.into_inner().collect();
+                let entries: Vec<usize> = rows
+                    .iter()
+                    .map(|r| r.clone().into_inner().count())
+                    .collect();
+                if entries == [1] {
+                    // a parenthesised expression
+                    let inner = rows
+                        .into_iter()
+                        .next()
+                        .unwrap()
+                        .into_inner()
+                        .next()
+                        .unwrap();
+                    return self.lower(inner);
+                }
+                if rows.len() == 1 {
                     return Err(self.err(
                         at,
                         format!(
-                            "a 3j symbol has two rows of three entries, (j1, j2, j3; m1, m2, m3); this one has {} and {}",
-                            r1.len(),
-                            r2.len()
+                            "a parenthesised list of {} entries is not an expression; a 3j symbol has two rows separated by ';', as in (j1, j2, j3; m1, m2, m3)",
+                            entries[0]
                         ),
                     ));
                 }
+                if entries != [3, 3] {
+                    return Err(self.err(
+                        at,
+                        format!(
+                            "a 3j symbol has two rows of three entries, (j1, j2, j3; m1, m2, m3); this one has {}",
+                            entries.iter().map(|n| n.to_string()).collect::<Vec<_>>().join(" and ")
+                        ),
+                    ));
+                }
+                let mut rows = rows.into_iter();
+                let mut pos = Vec::new();
+                let r1 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
+                let r2 = self.row(rows.next().unwrap(), "an argument of a 3j symbol", &mut pos)?;
                 let a: Vec<Lin> = r1.into_iter().chain(r2).collect();
                 self.symbol(Factor::ThreeJ(a.try_into().unwrap()), &pos)
             }
@@ -695,6 +766,15 @@ fn admissible_literal(l: &Lin, j: bool) -> Result<(), String> {
     Ok(())
 }
 
+/// The work of expanding `x * y`: every pair of terms, each costing the
+/// factors it combines.
+fn product_cost(x: &Expr, y: &Expr) -> usize {
+    let factors = |e: &Expr| e.terms.iter().map(|t| t.factors.len() + 1).sum::<usize>();
+    factors(x)
+        .saturating_mul(y.len())
+        .saturating_add(factors(y).saturating_mul(x.len()))
+}
+
 fn neg(v: Value) -> Value {
     match v {
         Value::Lin(b) => Value::Lin(b.scale(&-BigRational::one())),
@@ -704,7 +784,10 @@ fn neg(v: Value) -> Value {
 
 /// Lowers the `expr` pair of a whole input.
 pub(super) fn lower_expr(input: &str, pair: Pair<Rule>) -> R<Expr> {
-    let ctx = Ctx { input };
+    let ctx = Ctx {
+        input,
+        work: std::cell::Cell::new(0),
+    };
     let at = pair.as_span().start();
     let v = ctx.lower(pair)?;
     ctx.to_expr(v, at)
@@ -747,7 +830,10 @@ fn lower_leaf(ctx: &Ctx, p: Pair<Rule>) -> R<Lin> {
 
 /// Lowers a `coupled` pair; every node must be binary and labelled.
 pub(super) fn lower_tree(input: &str, pair: Pair<Rule>, _root: bool) -> R<CouplingTree> {
-    let ctx = Ctx { input };
+    let ctx = Ctx {
+        input,
+        work: std::cell::Cell::new(0),
+    };
     tree_node(&ctx, pair)
 }
 

@@ -4,10 +4,12 @@
 //! for grammar rules, never rule identifiers.
 
 mod error;
+mod guard;
 mod lower;
 mod print;
 
 pub use error::ParseError;
+pub use guard::{MAX_DEPTH, MAX_INPUT, MAX_SIGN_RUN};
 pub use lower::literal_problem;
 pub use print::{print_factor, print_term};
 
@@ -28,6 +30,8 @@ mod grammar {
 
 /// Parses an expression of the language (DESIGN.md).
 pub fn parse(input: &str) -> Result<Expr, ParseError> {
+    let input = input.strip_prefix('\u{feff}').unwrap_or(input);
+    guard::check(input)?;
     pest::set_error_detail(true);
     let mut pairs =
         Grammar::parse(Rule::expression_input, input).map_err(|e| error::from_pest(input, e))?;
@@ -38,6 +42,8 @@ pub fn parse(input: &str) -> Result<Expr, ParseError> {
 
 /// Parses a coupling tree such as `((j1, j2) j12, j3) J`.
 pub fn parse_tree(input: &str) -> Result<CouplingTree, ParseError> {
+    let input = input.strip_prefix('\u{feff}').unwrap_or(input);
+    guard::check(input)?;
     pest::set_error_detail(true);
     let mut pairs =
         Grammar::parse(Rule::tree_input, input).map_err(|e| error::from_pest(input, e))?;

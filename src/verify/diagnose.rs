@@ -3,10 +3,13 @@
 //! the integrality conditions on the odd parts of the coefficients, then
 //! the signs), a missing factor `K Π (2v_i+1)^(e_i/2)` (exponents fitted by
 //! least squares on logarithms, then confirmed exactly), or two arguments
-//! of one symbol swapped. Every repair is re-checked before it is offered.
+//! of one symbol swapped, or a triangle factor `tri(a, b, c)` missing on
+//! one side (the sides agree wherever the triad holds and one side vanishes
+//! wherever it is broken). Every repair is re-checked before it is
+//! offered.
 
-use super::sample::Point;
-use super::spot::{compare, compare_at, SpotReport, SpotSettings};
+use super::sample::{Point, Sampler, Triad};
+use super::spot::{compare, compare_at, SpotReport, SpotSettings, SpotValue};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
 use crate::numeric::Surd;
 use num_bigint::BigInt;
@@ -14,15 +17,178 @@ use num_rational::BigRational;
 use num_traits::{One, ToPrimitive};
 use std::collections::BTreeMap;
 
+/// Which side of a claim a repair changes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Side {
+    /// the left side
+    Left,
+    /// the right side
+    Right,
+}
+
 /// A repair of a failed claim.
 #[derive(Clone, Debug)]
 pub struct Diagnosis {
     /// what was found, in words
     pub text: String,
-    /// the corrected right side
+    /// the side that was repaired
+    pub side: Side,
+    /// the corrected side (the right side unless `side` says otherwise)
     pub repaired: Expr,
-    /// the re-check of `LHS = repaired`
+    /// the re-check of the repaired claim
     pub confirmed: SpotReport,
+}
+
+/// The first triad of `triads` broken at `p` (the triangle rule fails:
+/// a side longer than the other two together, or a half-integer sum).
+pub fn broken_at<'a>(triads: &'a [Triad], p: &Point) -> Option<&'a Triad> {
+    let get = |n: &Name| p.get(n).copied();
+    triads.iter().find(|t| {
+        let v: Vec<Option<Q>> = t.forms().iter().map(|l| l.eval(&get)).collect();
+        let (Some(a), Some(b), Some(c)) = (v[0], v[1], v[2]) else {
+            return false;
+        };
+        let ok = a + b >= c && a + c >= b && b + c >= a && (a + b + c).is_integer();
+        !ok
+    })
+}
+
+/// True when `t` is broken at `p`.
+fn breaks(t: &Triad, p: &Point) -> bool {
+    broken_at(std::slice::from_ref(t), p).is_some()
+}
+
+/// A missing triangle factor: every mismatch is at a point where some
+/// triad is broken and one side (the same one each time) vanishes; the
+/// triads chosen are those the vanishing side never survives being
+/// broken at any point seen. The repaired side is multiplied by their
+/// `tri(...)` and the claim re-checked.
+fn missing_triangles(
+    lhs: &Expr,
+    rhs: &Expr,
+    report: &SpotReport,
+    s: &SpotSettings,
+) -> Option<Diagnosis> {
+    let sampler = Sampler::with_domain(&[lhs, rhs], false);
+    let triads = sampler.triads();
+    // the mismatches where exactly one side vanishes (or is undefined:
+    // a closed form off its triangle rules)
+    let zero = SpotValue::Number(Surd::zero());
+    let mut bad: Vec<(Point, SpotValue, SpotValue)> = report
+        .values
+        .iter()
+        .filter(|(_, a, b)| a != b && (a.is_zero() || b.is_zero()))
+        .map(|(p, a, b)| {
+            (
+                p.clone(),
+                SpotValue::Number(a.clone()),
+                SpotValue::Number(b.clone()),
+            )
+        })
+        .collect();
+    for m in &report.mismatches {
+        let undefined = m.lhs.number().is_none() || m.rhs.number().is_none();
+        if undefined && (m.lhs == zero || m.rhs == zero) {
+            bad.push((m.at.clone(), m.lhs.clone(), m.rhs.clone()));
+        }
+    }
+    if triads.is_empty() || bad.is_empty() {
+        return None;
+    }
+    for side in [Side::Right, Side::Left] {
+        // the side that vanishes at the mismatches implies the triads
+        let vanishes = |a: &SpotValue, b: &SpotValue| match side {
+            Side::Right => *a == zero,
+            Side::Left => *b == zero,
+        };
+        let zero_side = |a: &Surd, b: &Surd| match side {
+            Side::Right => a.clone(),
+            Side::Left => b.clone(),
+        };
+        if !bad.iter().all(|(_, a, b)| vanishes(a, b)) {
+            continue;
+        }
+        // triads the vanishing side implies, as far as the points show
+        let implied: Vec<&Triad> = triads
+            .iter()
+            .filter(|t| {
+                report
+                    .values
+                    .iter()
+                    .filter(|(p, _, _)| breaks(t, p))
+                    .all(|(_, a, b)| zero_side(a, b).is_zero())
+            })
+            .collect();
+        let mut chosen: Vec<&Triad> = Vec::new();
+        let mut covered = true;
+        for (p, _, _) in &bad {
+            if chosen.iter().any(|t| breaks(t, p)) {
+                continue;
+            }
+            match implied.iter().find(|t| breaks(t, p)) {
+                Some(t) => chosen.push(t),
+                None => {
+                    covered = false;
+                    break;
+                }
+            }
+        }
+        if !covered || chosen.is_empty() {
+            continue;
+        }
+        let mut factor = Term::one();
+        for t in &chosen {
+            factor.factors.push(Factor::Tri(t.forms().clone()));
+        }
+        let factor = factor.normalized();
+        let (new_lhs, new_rhs) = match side {
+            Side::Right => (lhs.clone(), times(rhs, &factor)),
+            Side::Left => (times(lhs, &factor), rhs.clone()),
+        };
+        let names: Vec<String> = chosen.iter().map(|t| t.text()).collect();
+        let tris: Vec<String> = chosen.iter().map(|t| format!("tri{}", t.text())).collect();
+        let which = match side {
+            Side::Right => "right",
+            Side::Left => "left",
+        };
+        let text = format!(
+            "equal wherever {} satisfy the triangle rule; the {which} side lacks {}",
+            names.join(" and "),
+            tris.join(" ")
+        );
+        let repaired = match side {
+            Side::Right => new_rhs.clone(),
+            Side::Left => new_lhs.clone(),
+        };
+        if let Some(rep) = confirm(&new_lhs, &new_rhs, s) {
+            return Some(Diagnosis {
+                text,
+                side,
+                repaired,
+                confirmed: rep,
+            });
+        }
+        // a triangle factor and something else: diagnose the rest
+        let rest = compare(&new_lhs, &new_rhs, s).ok()?;
+        let more = diagnose_values(&new_lhs, &new_rhs, &rest, s)?;
+        let (l2, r2) = match more.side {
+            Side::Right => (new_lhs.clone(), more.repaired.clone()),
+            Side::Left => (more.repaired.clone(), new_rhs.clone()),
+        };
+        if more.side != side {
+            return None;
+        }
+        return Some(Diagnosis {
+            text: format!("{text}; then {}", more.text),
+            side,
+            repaired: match side {
+                Side::Right => r2,
+                Side::Left => l2,
+            },
+            confirmed: more.confirmed,
+        });
+    }
+    None
 }
 
 /// `lhs / rhs` for single-radical values.
@@ -250,6 +416,74 @@ fn fit_factor(vars: &[Name], pts: &[(Point, BigRational)]) -> Option<(BigRationa
     Some((k2?, e))
 }
 
+/// The outcome of fitting a phase and a factor.
+enum Fit {
+    /// a candidate `(-1)^(...) K Π (2v+1)^(e/2)` that explains every point
+    Found(Term),
+    /// none fits these points (more points may find one)
+    NotFound,
+    /// no phase and factor can explain them (a zero against a nonzero)
+    Impossible,
+}
+
+/// Fits `lhs/rhs` at every nonzero point as a phase times a factor.
+fn phase_and_factor(
+    vars: &[Name],
+    kinds: &BTreeMap<Name, Kind>,
+    values: &[(Point, Surd, Surd)],
+) -> Fit {
+    if values.iter().any(|(_, a, b)| a.is_zero() != b.is_zero()) {
+        return Fit::Impossible;
+    }
+    let mut signs = Vec::new();
+    let mut mags = Vec::new();
+    for (p, a, b) in values {
+        if a.is_zero() {
+            continue;
+        }
+        match ratio(a, b).and_then(|r| r.as_signed_square()) {
+            Some((neg, sq)) => {
+                signs.push((p.clone(), neg));
+                mags.push((p.clone(), sq));
+            }
+            None => return Fit::Impossible,
+        }
+    }
+    if signs.is_empty() {
+        return Fit::NotFound;
+    }
+    let all_unit = mags.iter().all(|(_, m)| m.is_one());
+    let jvars: Vec<Name> = vars
+        .iter()
+        .filter(|v| kinds[*v] == Kind::AngularMomentum)
+        .cloned()
+        .collect();
+    let factor = if all_unit {
+        Some((BigRational::one(), vec![0; jvars.len()]))
+    } else {
+        fit_factor(&jvars, &mags)
+    };
+    let phase = fit_phase(vars, &signs);
+    let (Some((k2, e)), Some(ph)) = (factor, phase) else {
+        return Fit::NotFound;
+    };
+    let mut t = Term::one();
+    let Ok(k) = Surd::signed_sqrt(false, &k2) else {
+        return Fit::NotFound;
+    };
+    t.set_scalar(&k);
+    t.phase = ph;
+    for (i, v) in jvars.iter().enumerate() {
+        if e[i] != 0 {
+            let base = Lin::var(v.clone())
+                .scale(Q::from_integer(2))
+                .add_scaled(&Lin::int(1), Q::one());
+            t.factors.push(Factor::Power(base, Q::new(e[i], 2)));
+        }
+    }
+    Fit::Found(t.normalized())
+}
+
 /// Multiplies every term of `e` by a term.
 fn times(e: &Expr, t: &Term) -> Expr {
     let mut out = Expr::zero();
@@ -268,8 +502,20 @@ fn confirm(lhs: &Expr, repaired: &Expr, s: &SpotSettings) -> Option<SpotReport> 
     rep.agrees().then_some(rep)
 }
 
-/// Diagnoses a failed comparison (`report` holds every point's values).
+/// Diagnoses a failed comparison (`report` holds the points' values): a
+/// missing triangle factor first, then a phase and factor, then swapped
+/// arguments.
 pub fn diagnose(
+    lhs: &Expr,
+    rhs: &Expr,
+    report: &SpotReport,
+    s: &SpotSettings,
+) -> Option<Diagnosis> {
+    missing_triangles(lhs, rhs, report, s).or_else(|| diagnose_values(lhs, rhs, report, s))
+}
+
+/// The phase, factor and swapped-argument diagnoses.
+fn diagnose_values(
     lhs: &Expr,
     rhs: &Expr,
     report: &SpotReport,
@@ -283,64 +529,37 @@ pub fn diagnose(
         }
     }
     let vars: Vec<Name> = kinds.keys().cloned().collect();
-    let zero_mismatch = report
-        .values
-        .iter()
-        .any(|(_, a, b)| a.is_zero() != b.is_zero());
-    if !zero_mismatch {
-        let mut signs = Vec::new();
-        let mut mags = Vec::new();
-        let mut ok = true;
-        for (p, a, b) in &report.values {
-            if a.is_zero() {
-                continue;
-            }
-            match ratio(a, b).and_then(|r| r.as_signed_square()) {
-                Some((neg, sq)) => {
-                    signs.push((p.clone(), neg));
-                    mags.push((p.clone(), sq));
-                }
-                None => ok = false,
-            }
-        }
-        if ok && !signs.is_empty() {
-            let all_unit = mags.iter().all(|(_, m)| m.is_one());
-            let jvars: Vec<Name> = vars
-                .iter()
-                .filter(|v| kinds[*v] == Kind::AngularMomentum)
-                .cloned()
-                .collect();
-            let factor = if all_unit {
-                Some((BigRational::one(), vec![0; jvars.len()]))
-            } else {
-                fit_factor(&jvars, &mags)
-            };
-            let phase = fit_phase(&vars, &signs);
-            if let (Some((k2, e)), Some(ph)) = (factor, phase) {
-                let mut t = Term::one();
-                let k = Surd::signed_sqrt(false, &k2).ok()?;
-                t.set_scalar(&k);
-                t.phase = ph.clone();
-                for (i, v) in jvars.iter().enumerate() {
-                    if e[i] != 0 {
-                        let base = Lin::var(v.clone())
-                            .scale(Q::from_integer(2))
-                            .add_scaled(&Lin::int(1), Q::one());
-                        t.factors.push(Factor::Power(base, Q::new(e[i], 2)));
-                    }
-                }
-                let t = t.normalized();
+    // a phase and a factor: fitted on the points seen, and when the fit
+    // fails its re-check, refitted with more points (a few rounds)
+    let mut values = report.values.clone();
+    for round in 0..3u64 {
+        match phase_and_factor(&vars, &kinds, &values) {
+            Fit::Found(t) => {
                 let repaired = crate::algebra::normal::canonical_expr(&times(rhs, &t), false);
-                let what = describe(&t);
                 if let Some(rep) = confirm(lhs, &repaired, s) {
                     return Some(Diagnosis {
-                        text: format!("the left side is {what} times the right side"),
+                        text: format!("the left side is {} times the right side", describe(&t)),
+                        side: Side::Right,
                         repaired,
                         confirmed: rep,
                     });
                 }
             }
+            Fit::Impossible => break,
+            Fit::NotFound => {}
         }
+        if s.exhaustive {
+            break;
+        }
+        let more = SpotSettings {
+            seed: s.seed.wrapping_add(7919 * (round + 1)),
+            samples: s.samples * 2,
+            ..s.clone()
+        };
+        let Ok(rep) = compare(lhs, rhs, &more) else {
+            break;
+        };
+        values.extend(rep.values);
     }
     // two arguments of one symbol swapped on the right
     let pts: Vec<Point> = report.values.iter().map(|(p, _, _)| p.clone()).collect();
@@ -372,6 +591,7 @@ pub fn diagnose(
                                     crate::syntax::print_factor(f),
                                     crate::syntax::print_factor(&swapped)
                                 ),
+                                side: Side::Right,
                                 repaired: alt,
                                 confirmed: conf,
                             });

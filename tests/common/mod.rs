@@ -76,6 +76,7 @@ pub fn settings(seed: u64) -> SpotSettings {
         samples: 24,
         exhaustive: false,
         seed,
+        ..SpotSettings::default()
     }
 }
 

@@ -1,0 +1,528 @@
+//! The fuzz target: a grammar-aware generator of expressions, coupling
+//! trees and command lines, plus mutations of a corpus of valid inputs,
+//! driven in-process through the binary's own entry point
+//! (`recoup::cli::run_with`) across every command.
+//!
+//! The contract asserted for every input: no panic and no internal error
+//! (exit 4); exit codes only 0-3 (1 only from `check`); bad input (exit 2)
+//! prints a message on standard error and nothing on standard output; a
+//! limit (exit 3) says so; and every run ends within its time limit plus
+//! a grace period (a hang detector, not a speed test).
+//!
+//! `cargo test --test fuzz` runs 10^4 inputs (seeded, repeatable). A longer
+//! run: `RECOUP_FUZZ_CASES=1000000 RECOUP_FUZZ_SEED=7 cargo test --release
+//! --test fuzz -- --nocapture`.
+
+use recoup::cli::{run_with, Io};
+use recoup::verify::rng::Rng;
+use std::time::{Duration, Instant};
+
+/// Time limit passed to every run (seconds).
+const TIME_LIMIT: &str = "2";
+/// Most a run may take beyond its time limit before it counts as a hang.
+const GRACE: Duration = Duration::from_secs(20);
+
+fn pick<'a>(rng: &mut Rng, xs: &[&'a str]) -> &'a str {
+    xs[rng.below(xs.len() as u64) as usize]
+}
+
+const J_NAMES: &[&str] = &["a", "b", "c", "d", "j1", "j2", "j12", "J", "x", "y'", "k"];
+const M_NAMES: &[&str] = &["m", "m1", "m2", "M", "q", "mx"];
+const NUMBERS: &[&str] = &[
+    "0",
+    "1",
+    "2",
+    "3",
+    "1/2",
+    "3/2",
+    "5/2",
+    "7",
+    "20",
+    "1/3",
+    "-1",
+    "-1/2",
+    "1000",
+    "100000",
+    "1048577",
+    "4294967297",
+];
+
+/// Numbers that are valid angular momenta.
+const GOOD_NUMBERS: &[&str] = &["0", "1/2", "1", "3/2", "2", "5/2", "3"];
+
+/// A random linear form: a name, a number, or a short combination (one
+/// in sixteen numbers is drawn from the hostile list).
+fn lin(rng: &mut Rng, names: &[&str]) -> String {
+    match rng.below(8) {
+        0 if rng.below(16) == 0 => pick(rng, NUMBERS).to_string(),
+        0 => pick(rng, GOOD_NUMBERS).to_string(),
+        1..=3 => pick(rng, names).to_string(),
+        4 => format!("{}+{}", pick(rng, names), pick(rng, &["1/2", "1", "2"])),
+        5 => format!("-{}", pick(rng, names)),
+        6 => format!("{}-{}", pick(rng, names), pick(rng, names)),
+        _ => format!("2*{}", pick(rng, names)),
+    }
+}
+
+fn j(rng: &mut Rng) -> String {
+    lin(rng, J_NAMES)
+}
+
+fn m(rng: &mut Rng) -> String {
+    lin(rng, M_NAMES)
+}
+
+/// A random factor of the language.
+fn factor(rng: &mut Rng, depth: u32) -> String {
+    let choice = if depth == 0 {
+        rng.below(9)
+    } else {
+        rng.below(13)
+    };
+    match choice {
+        0 => format!(
+            "({}, {}, {}; {}, {}, {})",
+            j(rng),
+            j(rng),
+            j(rng),
+            m(rng),
+            m(rng),
+            m(rng)
+        ),
+        1 => format!(
+            "<{}, {}; {}, {} | {}, {}>",
+            j(rng),
+            m(rng),
+            j(rng),
+            m(rng),
+            j(rng),
+            m(rng)
+        ),
+        2 => format!(
+            "{{{}, {}, {}; {}, {}, {}}}",
+            j(rng),
+            j(rng),
+            j(rng),
+            j(rng),
+            j(rng),
+            j(rng)
+        ),
+        3 => {
+            let e: Vec<String> = (0..9).map(|_| j(rng)).collect();
+            format!(
+                "{{{}, {}, {}; {}, {}, {}; {}, {}, {}}}",
+                e[0], e[1], e[2], e[3], e[4], e[5], e[6], e[7], e[8]
+            )
+        }
+        4 => format!("(-1)^({})", lin(rng, J_NAMES)),
+        5 => format!("hat({})", j(rng)),
+        6 => format!("tri({}, {}, {})", j(rng), j(rng), j(rng)),
+        7 => format!("delta({}, {})", j(rng), j(rng)),
+        8 => pick(rng, NUMBERS).to_string(),
+        9 => {
+            let vars: Vec<&str> = (0..1 + rng.below(2))
+                .map(|_| pick(rng, &["x", "y'", "m1", "m2", "q"]))
+                .collect();
+            let mut vs = vars.clone();
+            vs.dedup();
+            format!("sum({}: {})", vs.join(", "), expr(rng, depth - 1))
+        }
+        10 => format!("sqrt({})", expr(rng, depth - 1)),
+        11 => format!(
+            "({})^{}",
+            expr(rng, depth - 1),
+            pick(rng, &["2", "-1", "3", "64"])
+        ),
+        _ => format!("({})", expr(rng, depth - 1)),
+    }
+}
+
+/// A random expression: terms of factors.
+fn expr(rng: &mut Rng, depth: u32) -> String {
+    let terms = 1 + rng.below(3);
+    let mut out = String::new();
+    for t in 0..terms {
+        if t > 0 {
+            out.push_str(pick(rng, &[" + ", " - "]));
+        }
+        let n = 1 + rng.below(3);
+        let fs: Vec<String> = (0..n).map(|_| factor(rng, depth)).collect();
+        out.push_str(&fs.join(pick(rng, &[" ", " * ", " / "])));
+    }
+    out
+}
+
+/// A random coupling tree over some leaves.
+fn tree(rng: &mut Rng, leaves: &[String]) -> String {
+    let mut items: Vec<String> = leaves.to_vec();
+    for i in (1..items.len()).rev() {
+        let k = rng.below(i as u64 + 1) as usize;
+        items.swap(i, k);
+    }
+    let mut count = 0;
+    while items.len() > 1 {
+        let i = rng.below(items.len() as u64 - 1) as usize;
+        let a = items.remove(i);
+        let b = items.remove(i);
+        count += 1;
+        let label = if items.is_empty() {
+            pick(rng, &["J", "J", "2", "1/2", "3/2"]).to_string()
+        } else {
+            format!("{}{count}", pick(rng, &["x", "y", "s", "t"]))
+        };
+        items.insert(i, format!("({a}, {b}) {label}"));
+    }
+    items.pop().unwrap_or_default()
+}
+
+/// Byte-level mutations of a text: deletion, insertion of a grammar
+/// character, duplication or truncation.
+fn mutate(rng: &mut Rng, s: &str) -> String {
+    let mut b: Vec<u8> = s.as_bytes().to_vec();
+    for _ in 0..1 + rng.below(3) {
+        let len = b.len().max(1);
+        let at = rng.below(len as u64) as usize;
+        match rng.below(6) {
+            0 if !b.is_empty() => {
+                b.remove(at.min(b.len() - 1));
+            }
+            1 => {
+                let c = pick(
+                    rng,
+                    &[
+                        "(", ")", "{", "}", "<", ">", "|", ",", ";", ":", "-", "+", "*", "/", "^",
+                        "'", "1", "0", "x", " ", "\n", "\r", "\u{feff}", "\u{00e9}", "#", "\t",
+                        "sum(", "hat(", "2^64", "1/0",
+                    ],
+                );
+                for (k, ch) in c.bytes().enumerate() {
+                    b.insert((at + k).min(b.len()), ch);
+                }
+            }
+            2 if !b.is_empty() => {
+                let end = (at + 1 + rng.below(8) as usize).min(b.len());
+                let piece: Vec<u8> = b[at.min(end)..end].to_vec();
+                for (k, ch) in piece.into_iter().enumerate() {
+                    b.insert((at + k).min(b.len()), ch);
+                }
+            }
+            3 => b.truncate(at),
+            4 if !b.is_empty() => {
+                let k = rng.below(b.len() as u64) as usize;
+                let i = at.min(b.len() - 1);
+                b.swap(i, k);
+            }
+            _ => b.push(b')'),
+        }
+    }
+    String::from_utf8_lossy(&b).into_owned()
+}
+
+/// Valid inputs to mutate: the identity list and the malformed corpus.
+fn corpus() -> Vec<String> {
+    let mut out = Vec::new();
+    for line in include_str!("data/identities.txt").lines() {
+        let l = line.trim_start_matches("== ").trim();
+        if !l.is_empty() && !l.starts_with('#') && !l.starts_with('[') {
+            out.push(l.to_string());
+        }
+    }
+    for line in include_str!("data/malformed.txt").lines() {
+        if let Some((e, _)) = line.split_once(" @@") {
+            out.push(e.to_string());
+        }
+    }
+    out
+}
+
+/// Values for `--at`: every name of the generator most of the time (good
+/// values, sometimes a hostile one), a few random ones otherwise.
+fn values(rng: &mut Rng) -> String {
+    let mut parts = Vec::new();
+    if rng.below(4) == 0 {
+        for _ in 0..rng.below(5) {
+            let names = [J_NAMES, M_NAMES].concat();
+            parts.push(format!("{}={}", pick(rng, &names), pick(rng, NUMBERS)));
+        }
+        return parts.join(",");
+    }
+    for n in J_NAMES {
+        parts.push(format!("{n}={}", pick(rng, GOOD_NUMBERS)));
+    }
+    for n in M_NAMES {
+        parts.push(format!(
+            "{n}={}",
+            pick(rng, &["0", "1/2", "-1/2", "1", "-1"])
+        ));
+    }
+    parts.join(",")
+}
+
+/// One command line (without the program name) and its standard input.
+fn case(rng: &mut Rng, corpus: &[String]) -> (Vec<String>, Vec<u8>) {
+    let text = |rng: &mut Rng| -> String {
+        if rng.below(2) == 0 {
+            expr(rng, 1)
+        } else {
+            let base = &corpus[rng.below(corpus.len() as u64) as usize];
+            if rng.below(3) == 0 {
+                base.clone()
+            } else {
+                mutate(rng, base)
+            }
+        }
+    };
+    let s = |x: &str| x.to_string();
+    match rng.below(20) {
+        0..=5 => {
+            let mut a = vec![s("eval"), text(rng)];
+            if rng.below(5) != 0 {
+                a.push(s("--at"));
+                a.push(values(rng));
+            }
+            if rng.below(4) == 0 {
+                a.push(s("--float"));
+            }
+            if rng.below(4) == 0 {
+                a.push(s("--json"));
+            }
+            (a, Vec::new())
+        }
+        6 => {
+            let lines: Vec<String> = (0..1 + rng.below(4)).map(|_| text(rng)).collect();
+            let sep = pick(rng, &["\n", "\r\n", "\r"]);
+            let mut input = lines.join(sep).into_bytes();
+            if rng.below(4) == 0 {
+                input.push(0xff);
+            }
+            (vec![s("eval"), s("--batch")], input)
+        }
+        7 => (vec![s("eval"), s("-")], text(rng).into_bytes()),
+        8 | 9 => (vec![s("latex"), text(rng)], Vec::new()),
+        10 | 11 => {
+            let mut a = vec![s("graph"), text(rng)];
+            if rng.below(2) == 0 {
+                a.push(s("--json"));
+            }
+            (a, Vec::new())
+        }
+        12 | 13 => {
+            let mut a = vec![s("simplify"), text(rng)];
+            if rng.below(2) == 0 {
+                a.push(s("--steps"));
+            }
+            if rng.below(3) == 0 {
+                a.push(s("--json"));
+            }
+            (a, Vec::new())
+        }
+        14 | 15 => {
+            let mut a = vec![s("check"), text(rng), text(rng)];
+            if rng.below(3) == 0 {
+                a.push(s("--exhaustive"));
+                a.push(s("--max-j"));
+                a.push(pick(rng, &["1", "3/2", "2"]).to_string());
+            }
+            if rng.below(3) == 0 {
+                a.push(s("--json"));
+            }
+            (a, Vec::new())
+        }
+        16 | 17 => {
+            let n = 2 + rng.below(4) as usize;
+            let leaves: Vec<String> = (0..n)
+                .map(|i| {
+                    pick(rng, &["j", "x", "y'", "a", "1/2", "1", "3/2"]).to_string()
+                        + &(if rng.below(2) == 0 {
+                            (i + 1).to_string()
+                        } else {
+                            String::new()
+                        })
+                })
+                .collect();
+            let mut from = tree(rng, &leaves);
+            let mut to = tree(rng, &leaves);
+            if rng.below(3) == 0 {
+                from = mutate(rng, &from);
+            }
+            if rng.below(4) == 0 {
+                to = mutate(rng, &to);
+            }
+            let mut a = vec![s("recouple"), from, to];
+            match rng.below(5) {
+                0 => a.push(s("--only-6j")),
+                1 => a.push(s("--matrix")),
+                2 => a.push(s("--json")),
+                _ => {}
+            }
+            (a, Vec::new())
+        }
+        _ => (
+            vec![
+                s("table"),
+                pick(rng, NUMBERS).to_string(),
+                pick(rng, NUMBERS).to_string(),
+            ],
+            Vec::new(),
+        ),
+    }
+}
+
+/// Runs one case in-process; returns a description of a broken contract.
+fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
+    let mut full = vec!["recoup".to_string()];
+    full.extend(args.iter().cloned());
+    full.push("--time-limit".into());
+    full.push(TIME_LIMIT.into());
+    let mut input = stdin;
+    let mut out = Vec::new();
+    let mut err = Vec::new();
+    let start = Instant::now();
+    let code = {
+        let mut io = Io {
+            stdin: &mut input,
+            out: &mut out,
+            err: &mut err,
+        };
+        run_with(full, &mut io)
+    };
+    let took = start.elapsed();
+    let err = String::from_utf8_lossy(&err);
+    let out = String::from_utf8_lossy(&out);
+    let show = || format!("{args:?} -> exit {code}\nstdout: {out}\nstderr: {err}");
+    let limit = Duration::from_secs(TIME_LIMIT.parse().unwrap());
+    if took > limit + GRACE {
+        return Err(format!("took {took:?}: {}", show()));
+    }
+    match code {
+        0 => {}
+        1 if args[0] == "check" => {}
+        2 => {
+            if err.trim().is_empty() {
+                return Err(format!("exit 2 without a message: {}", show()));
+            }
+            // eval --batch answers every good line before its exit 2
+            let batch = args[0] == "eval" && args.iter().any(|a| a == "--batch");
+            if !out.is_empty() && !batch {
+                return Err(format!("exit 2 with output: {}", show()));
+            }
+        }
+        3 => {
+            if !err.contains("limit") && !err.contains("too large") && !err.contains("budget") {
+                return Err(format!("exit 3 without saying which limit: {}", show()));
+            }
+        }
+        _ => return Err(format!("broken contract: {}", show())),
+    }
+    Ok(code)
+}
+
+fn env_u64(name: &str, default: u64) -> u64 {
+    std::env::var(name)
+        .ok()
+        .and_then(|v| v.parse().ok())
+        .unwrap_or(default)
+}
+
+#[test]
+fn every_command_keeps_its_contract_on_generated_and_mutated_input() {
+    let cases = env_u64("RECOUP_FUZZ_CASES", 10_000);
+    let seed = env_u64("RECOUP_FUZZ_SEED", 1);
+    let corpus = corpus();
+    let threads = 2u64;
+    let failures: Vec<String> = std::thread::scope(|scope| {
+        let handles: Vec<_> = (0..threads)
+            .map(|t| {
+                let corpus = &corpus;
+                std::thread::Builder::new()
+                    .stack_size(64 << 20)
+                    .spawn_scoped(scope, move || {
+                        let mut rng = Rng::new(seed.wrapping_mul(1000).wrapping_add(t));
+                        let mut failures = Vec::new();
+                        let mut codes = [0u64; 5];
+                        for _ in 0..cases / threads {
+                            let (args, stdin) = case(&mut rng, corpus);
+                            if std::env::var("RECOUP_FUZZ_VERBOSE").is_ok() {
+                                eprintln!(
+                                    "case {t} {args:?} {:?}",
+                                    String::from_utf8_lossy(&stdin)
+                                );
+                            }
+                            match run_case(&args, &stdin) {
+                                Ok(code) => codes[code as usize] += 1,
+                                Err(f) => failures.push(f),
+                            }
+                            if failures.len() >= 5 {
+                                break;
+                            }
+                        }
+                        eprintln!("fuzz thread {t}: exit codes 0..3: {:?}", &codes[..4]);
+                        failures
+                    })
+                    .unwrap()
+            })
+            .collect();
+        handles
+            .into_iter()
+            .flat_map(|h| h.join().unwrap())
+            .collect()
+    });
+    assert!(failures.is_empty(), "{}", failures.join("\n\n"));
+}
+
+/// Every defect the issue on trust lists, as a regression case through the
+/// same entry point: the exit code it must give.
+#[test]
+fn the_reported_defects_stay_fixed() {
+    let cases: &[(&[&str], &str, i32)] = &[
+        (&["eval", "{1, 1, 1; 3, 2, -1}"], "", 2),
+        (&["eval", "{1, 1, 1; 3, 2, 1/3}"], "", 2),
+        (&["eval", "<1/2, 1/3; 1/2, 0 | 1, 1>"], "", 2),
+        (&["eval", "hat(1/3)"], "", 2),
+        (&["eval", "{1, 1, 1; 1, 1, 1; 1, 1, -1}"], "", 2),
+        (&["eval", "sum(x: {x, 1, 1; 1, 1, -1})"], "", 2),
+        (&["simplify", "{1, 1, 1; 3, 2, -1}"], "", 2),
+        (&["check", "{1, 1, 1; 3, 2, -1}", "0"], "", 2),
+        (&["latex", "hat(1/3)"], "", 2),
+        (&["graph", "(1, 1, 1; 1/3, 0, 0)"], "", 2),
+        (
+            &[
+                "recouple",
+                "((1/2, 1/2) s, 1/2) 1/3",
+                "(1/2, (1/2, 1/2) t) 1/3",
+            ],
+            "",
+            2,
+        ),
+        (&["eval", "-"], "1/2\n3\n", 2),
+        (&["eval", "--at", "j=1,j=2", "(j, j, 0; 0, 0, 0)"], "", 2),
+        (&["eval", "-"], "\u{feff}(1, 1, 0; 0, 0, 0)", 0),
+        (&["eval", "(((((((((((((((((((((1"], "", 2),
+        (&["eval", "((a-b)^64)^64", "--at", "a=0,b=1"], "", 2),
+        (&["check", "(1,1,0;0,0,0)", "-1/sqrt(3)"], "", 0),
+        (&["graph", "0"], "", 2),
+        (
+            &[
+                "recouple",
+                "--matrix",
+                "((1/2, 1/2) s, 1/2) 7",
+                "(1/2, (1/2, 1/2) t) 7",
+            ],
+            "",
+            2,
+        ),
+        (&["eval", "(47/2, 551/2, 293; -3/2, -273/2, 138)"], "", 0),
+        (&["eval", "{32, 21/2, 51/2; 22, 43/2, 33/2}"], "", 0),
+    ];
+    for (args, stdin, want) in cases {
+        let args: Vec<String> = args.iter().map(|s| s.to_string()).collect();
+        let got = run_case(&args, stdin.as_bytes());
+        assert_eq!(got, Ok(*want), "{args:?}");
+    }
+    let deep = "sqrt(".repeat(10_000) + "1";
+    assert_eq!(run_case(&["eval".into(), deep], b""), Ok(2));
+    let signs = "-".repeat(100_000) + "1";
+    assert_eq!(run_case(&["eval".into(), signs], b""), Ok(2));
+    let sums = "sum(x: ".repeat(5_000) + "1";
+    assert_eq!(run_case(&["eval".into(), sums], b""), Ok(2));
+}
