@@ -147,7 +147,7 @@ fn expr(rng: &mut Rng, depth: u32) -> String {
         }
         let n = 1 + rng.below(3);
         let fs: Vec<String> = (0..n).map(|_| factor(rng, depth)).collect();
-        out.push_str(&fs.join(pick(rng, &[" ", " * ", " / "])));
+        out.push_str(&fs.join(pick(rng, &[" ", " ", " * ", " * ", " ", " / "])));
     }
     out
 }
@@ -388,6 +388,9 @@ fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
     };
     let took = start.elapsed();
     let err = String::from_utf8_lossy(&err);
+    if std::env::var("RECOUP_FUZZ_VERBOSE").is_ok() {
+        eprintln!("exit {code} {:?}: {}", args.first(), err.lines().next().unwrap_or(""));
+    }
     let out = String::from_utf8_lossy(&out);
     let show = || format!("{args:?} -> exit {code}\nstdout: {out}\nstderr: {err}");
     let limit = Duration::from_secs(TIME_LIMIT.parse().unwrap());

@@ -11,8 +11,10 @@ const MAX_TABLE_J: i64 = 40;
 #[derive(Args, Debug)]
 pub struct TableArgs {
     /// j1 (an integer or half-integer, e.g. 3 or 3/2)
+    #[arg(allow_hyphen_values = true)]
     j1: String,
     /// j2
+    #[arg(allow_hyphen_values = true)]
     j2: String,
     /// print JSON {"j1", "j2", "entries": [...]}
     #[arg(long, conflicts_with = "csv")]

@@ -20,6 +20,14 @@ use std::rc::Rc;
 /// Values of variables.
 pub type Assignment = BTreeMap<Name, Q>;
 
+/// Symbol values an evaluator keeps before it forgets them all (a bound
+/// on memory: about 60 MB of exact values).
+pub const MAX_CACHED_SYMBOLS: usize = 200_000;
+
+/// Bytes of symbol values an evaluator keeps (roughly) before it forgets
+/// them all.
+pub const MAX_CACHE_BYTES: usize = 24 << 20;
+
 /// Largest |value| of a variable given by the user (2^20).
 pub const MAX_VALUE: i64 = 1 << 20;
 
@@ -141,6 +149,8 @@ pub trait Field: Clone {
     fn prod_mul(p: &mut Self::Prod, o: &Self::Prod);
     /// negate in place
     fn prod_neg(p: &mut Self::Prod);
+    /// roughly how many bytes a product occupies (for cache budgets)
+    fn prod_bytes(p: &Self::Prod) -> usize;
     /// the empty sum
     fn acc_new() -> Self::Acc;
     /// add a product
@@ -212,6 +222,12 @@ impl Field for Surd {
             }
         }
     }
+    fn prod_bytes(p: &SurdProd) -> usize {
+        match p {
+            SurdProd::Fast(f) => 56 + 4 * f.exps.len() + 16 * f.large.len(),
+            SurdProd::Slow(s) => 64 + s.to_string().len(),
+        }
+    }
     fn prod_neg(p: &mut SurdProd) {
         match p {
             SurdProd::Fast(a) => a.neg = !a.neg,
@@ -280,6 +296,9 @@ impl Field for f64 {
     }
     fn prod_mul(p: &mut f64, o: &f64) {
         *p *= o;
+    }
+    fn prod_bytes(_: &f64) -> usize {
+        8
     }
     fn prod_neg(p: &mut f64) {
         *p = -*p;
@@ -603,6 +622,7 @@ type SymbolCache<P> = FastMap<(SymbolKind, [i64; 9]), Option<P>>;
 /// Evaluates expressions, caching symbol values and compiled terms.
 pub struct Evaluator<F: Field> {
     cache: RefCell<SymbolCache<F::Prod>>,
+    cache_bytes: std::cell::Cell<usize>,
     powers: RefCell<HashMap<(Q, Q), F::Prod>>,
     compiled: RefCell<HashMap<Term, Rc<CTerm>>>,
     points: RefCell<u64>,
@@ -614,6 +634,7 @@ impl<F: Field> Default for Evaluator<F> {
     fn default() -> Self {
         Evaluator {
             cache: RefCell::new(FastMap::default()),
+            cache_bytes: std::cell::Cell::new(0),
             powers: RefCell::new(HashMap::new()),
             compiled: RefCell::new(HashMap::new()),
             points: RefCell::new(0),
@@ -933,9 +954,14 @@ impl<F: Field> Evaluator<F> {
                             let v = F::symbol(*kind, &a[..args.len()]);
                             let p = (!v.is_zero()).then(|| F::prod_of(&v));
                             let mut m = self.cache.borrow_mut();
-                            if m.len() > 1_000_000 {
+                            let bytes = 96 + p.as_ref().map_or(0, F::prod_bytes);
+                            if m.len() >= MAX_CACHED_SYMBOLS
+                                || self.cache_bytes.get() + bytes > MAX_CACHE_BYTES
+                            {
                                 m.clear();
+                                self.cache_bytes.set(0);
                             }
+                            self.cache_bytes.set(self.cache_bytes.get() + bytes);
                             m.insert(key, p.clone());
                             p
                         }
