@@ -206,7 +206,8 @@ fn simplify_text_steps_and_json() {
     );
     let steps = v["steps"].as_array().unwrap();
     assert_eq!(steps[0]["rule"], "6j-zero");
-    assert_eq!(steps[0]["source"], "Edmonds 6.3.2");
+    assert_eq!(steps[0]["source"], "Edmonds 1957, eq. 6.3.2 (from memory)");
+    assert_eq!(steps[0]["reference"]["citations"][0]["work"], "edmonds1957");
     assert!(steps[0]["checked"].as_u64().unwrap() > 0);
     assert!(v["verified"]["nonzero"].as_u64().unwrap() > 0);
     let (_, out, _) = run(

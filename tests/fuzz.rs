@@ -389,7 +389,11 @@ fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
     let took = start.elapsed();
     let err = String::from_utf8_lossy(&err);
     if std::env::var("RECOUP_FUZZ_VERBOSE").is_ok() {
-        eprintln!("exit {code} {:?}: {}", args.first(), err.lines().next().unwrap_or(""));
+        eprintln!(
+            "exit {code} {:?}: {}",
+            args.first(),
+            err.lines().next().unwrap_or("")
+        );
     }
     let out = String::from_utf8_lossy(&out);
     let show = || format!("{args:?} -> exit {code}\nstdout: {out}\nstderr: {err}");

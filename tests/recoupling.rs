@@ -11,7 +11,7 @@ use recoup::expr::{CouplingTree, Lin, Name, Q};
 use recoup::numeric::eval::{Assignment, Evaluator};
 use recoup::numeric::float::clebsch_gordan_f64;
 use recoup::numeric::Surd;
-use recoup::recouple::{recouple, Recoupling};
+use recoup::recouple::{recouple, recouple_as, Form, Recoupling};
 use recoup::simplify::Options;
 use recoup::syntax::{parse, parse_tree};
 use recoup::verify::check::{check, Verdict};
@@ -151,6 +151,91 @@ fn random_values(t: &CouplingTree, vals: &mut BTreeMap<String, Q>, rng: &mut Rng
     }
 }
 
+/// Compares a recoupling result with the brute-force overlap at a few
+/// random admissible values; returns the number of value choices tried.
+fn agree_with_brute(
+    from_s: &str,
+    to_s: &str,
+    leaves: &[String],
+    form: Form,
+    rng: &mut Rng,
+) -> usize {
+    let n = leaves.len();
+    let from = parse_tree(from_s).unwrap();
+    let to = parse_tree(to_s).unwrap();
+    let r = recouple_as(&from, &to, &Options::default(), form)
+        .unwrap_or_else(|e| panic!("{from_s} | {to_s}: {e}"));
+    // the result names nothing the trees do not (the total projection aside)
+    let mut names: Vec<String> = leaves.to_vec();
+    for t in [&from, &to] {
+        names.extend(t.internal_labels().iter().map(|l| l.to_string()));
+    }
+    for v in r.outcome.result.free_vars() {
+        assert!(
+            names.contains(&v.to_string()) || v.as_str() == "M",
+            "{from_s} | {to_s}: {v} is not a name of the trees: {}",
+            r.outcome.result
+        );
+    }
+    if form == Form::SixJOnly {
+        let nine = r
+            .outcome
+            .result
+            .terms
+            .iter()
+            .flat_map(|t| &t.factors)
+            .any(|f| matches!(f, recoup::expr::Factor::NineJ(_)));
+        assert!(
+            !nine,
+            "{from_s} | {to_s}: a 9j is left: {}",
+            r.outcome.result
+        );
+    }
+    let ev = Evaluator::<Surd>::new();
+    let mut tried = 0;
+    let mut attempts = 0;
+    while tried < 3 && attempts < 200 {
+        attempts += 1;
+        let mut vals: BTreeMap<String, Q> = BTreeMap::new();
+        for l in leaves {
+            let half = n > 8 || rng.coin();
+            vals.insert(
+                l.clone(),
+                if half {
+                    Q::new(1, 2)
+                } else {
+                    Q::from_integer(1)
+                },
+            );
+        }
+        let jf = random_values(&from, &mut vals, rng);
+        let mut v2 = vals.clone();
+        let jt = random_values(&to, &mut v2, rng);
+        if jf != jt {
+            continue;
+        }
+        for (k, v) in v2 {
+            vals.entry(k).or_insert(v);
+        }
+        let brute = brute_overlap(&from, &to, &vals);
+        let mut at = Assignment::new();
+        for (k, v) in &vals {
+            at.insert(Name::new(k.clone()), *v);
+        }
+        for v in r.outcome.result.free_vars() {
+            at.entry(v).or_insert(jf);
+        }
+        let ours = ev.eval(&r.outcome.result, &at).unwrap().to_f64();
+        assert!(
+            (ours - brute).abs() < 1e-9,
+            "{from_s} | {to_s} at {vals:?}: {ours} vs {brute}\n{}",
+            r.outcome.result
+        );
+        tried += 1;
+    }
+    tried
+}
+
 #[test]
 fn random_tree_pairs_agree_with_the_brute_force_overlap() {
     let mut rng = Rng::new(8080);
@@ -161,57 +246,56 @@ fn random_tree_pairs_agree_with_the_brute_force_overlap() {
             let leaves: Vec<String> = (1..=n).map(|k| format!("j{k}")).collect();
             let from_s = random_tree(&leaves, "a", &mut rng);
             let to_s = random_tree(&leaves, "b", &mut rng);
-            let from = parse_tree(&from_s).unwrap();
-            let to = parse_tree(&to_s).unwrap();
-            let r = recouple(&from, &to, &Options::default())
-                .unwrap_or_else(|e| panic!("{from_s} | {to_s}: {e}"));
-            // a few value choices with the same total
-            let ev = Evaluator::<Surd>::new();
-            let mut tried = 0;
-            let mut attempts = 0;
-            while tried < 3 && attempts < 200 {
-                attempts += 1;
-                let mut vals: BTreeMap<String, Q> = BTreeMap::new();
-                for l in &leaves {
-                    let half = n > 8 || rng.coin();
-                    vals.insert(
-                        l.clone(),
-                        if half {
-                            Q::new(1, 2)
-                        } else {
-                            Q::from_integer(1)
-                        },
-                    );
-                }
-                let jf = random_values(&from, &mut vals, &mut rng);
-                let mut v2 = vals.clone();
-                let jt = random_values(&to, &mut v2, &mut rng);
-                if jf != jt {
-                    continue;
-                }
-                for (k, v) in v2 {
-                    vals.entry(k).or_insert(v);
-                }
-                let brute = brute_overlap(&from, &to, &vals);
-                let mut at = Assignment::new();
-                for (k, v) in &vals {
-                    at.insert(Name::new(k.clone()), *v);
-                }
-                for v in r.outcome.result.free_vars() {
-                    at.entry(v).or_insert(jf);
-                }
-                let ours = ev.eval(&r.outcome.result, &at).unwrap().to_f64();
-                assert!(
-                    (ours - brute).abs() < 1e-9,
-                    "{from_s} | {to_s} at {vals:?}: {ours} vs {brute}\n{}",
-                    r.outcome.result
-                );
-                tried += 1;
-                cases += 1;
-            }
+            cases += agree_with_brute(&from_s, &to_s, &leaves, Form::Symbols, &mut rng);
         }
     }
     assert!(cases >= 40, "only {cases} value choices");
+}
+
+/// Leaves and intermediates named like the summation variables the engine
+/// brings in (x, y, primes): nothing may be captured, in either form.
+#[test]
+fn names_like_the_engines_own_are_never_captured() {
+    let mut rng = Rng::new(4242);
+    let pool = ["x", "y", "x'", "y''", "x''", "y'", "m_x", "M'"];
+    let mut cases = 0;
+    for n in 4..=6usize {
+        for round in 0..3 {
+            let leaves: Vec<String> = pool[..n].iter().map(|s| s.to_string()).collect();
+            let from_s = random_tree(&leaves, "z", &mut rng);
+            let to_s = random_tree(&leaves, "w", &mut rng);
+            let form = if round % 2 == 0 {
+                Form::SixJOnly
+            } else {
+                Form::Symbols
+            };
+            cases += agree_with_brute(&from_s, &to_s, &leaves, form, &mut rng);
+        }
+    }
+    // the two reported cases
+    let leaves: Vec<String> = ["x", "j2", "j3", "j4"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    cases += agree_with_brute(
+        "((x, j2) j12, (j3, j4) j34) J",
+        "((x, j3) j13, (j2, j4) j24) J",
+        &leaves,
+        Form::SixJOnly,
+        &mut rng,
+    );
+    let leaves: Vec<String> = ["a", "b", "c", "d", "e"]
+        .iter()
+        .map(|s| s.to_string())
+        .collect();
+    cases += agree_with_brute(
+        "((((a, b) p, c) q, d) r, e) J",
+        "((((e, b) s, c) t, d) u, a) J",
+        &leaves,
+        Form::SixJOnly,
+        &mut rng,
+    );
+    assert!(cases >= 20, "only {cases} value choices");
 }
 
 /// Every binary tree shape over leaves in the given order.

@@ -112,7 +112,7 @@ fn a_deliberately_wrong_rule_is_caught_and_named() {
     let wrong = Rule::new(
         "wrong-6j-zero",
         RuleKind::Special,
-        "a test's invention",
+        "-- a test's invention",
         "{a, b, c; d, e, 0}",
         "delta(a, e) delta(b, d) tri(a, b, c) / (hat(a) hat(b))",
     )
@@ -138,7 +138,11 @@ fn every_step_is_recorded_with_its_source_and_verification() {
     let names: Vec<&str> = out.steps.iter().map(|s| s.rule.as_str()).collect();
     assert_eq!(names, ["normal-form", "3j-zero", "6j-zero"]);
     for s in &out.steps {
-        assert!(!s.source.is_empty() && s.checked > 0, "{}", s.rule);
+        assert!(
+            !s.source.citations.is_empty() && s.checked > 0,
+            "{}",
+            s.rule
+        );
     }
     assert!(out.nonzero > 0);
 }

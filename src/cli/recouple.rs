@@ -6,7 +6,7 @@ use super::eval::parse_assignment;
 use super::{out, outln, read_arg, Failure, Io};
 use crate::numeric::eval::Evaluator;
 use crate::numeric::Surd;
-use crate::recouple::{matrix, only_6j, recouple};
+use crate::recouple::{matrix, recouple_as, Form};
 use crate::render::latex;
 use crate::simplify::Options;
 use clap::Args;
@@ -54,12 +54,13 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         }
         return Ok(());
     }
-    let r = recouple(&from, &to, &Options::default())?;
-    let result = if a.only_6j {
-        only_6j(&r.outcome.result)
+    let form = if a.only_6j {
+        Form::SixJOnly
     } else {
-        r.outcome.result.clone()
+        Form::Symbols
     };
+    let r = recouple_as(&from, &to, &Options::default(), form)?;
+    let result = r.outcome.result.clone();
     let value = match &a.at {
         Some(s) => {
             let at = parse_assignment(s)?;
@@ -92,7 +93,13 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
             "latex": latex::expr(&result),
             "sums": sums,
             "symbols": {"6j": six, "9j": nine},
-            "verified": {"checked": r.outcome.checked, "nonzero": r.outcome.nonzero},
+            "verified": {
+                "against": "the overlap of the two coupled states from its definition",
+                "checked": r.outcome.checked,
+                "nonzero": r.outcome.nonzero,
+                "max_j": crate::expr::lin::fmt_q(&r.outcome.certificate.max_j),
+                "whole": r.outcome.certificate.compared,
+            },
         });
         if let Some(v) = &value {
             j["exact"] = serde_json::Value::String(v.to_string());

@@ -45,7 +45,7 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
             .iter()
             .map(|s| {
                 serde_json::json!({
-                    "rule": s.rule, "source": s.source,
+                    "rule": s.rule, "source": s.source.text(), "reference": s.source.json(),
                     "before": s.before.to_string(), "after": s.after.to_string(),
                     "checked": s.checked, "nonzero": s.nonzero,
                 })
@@ -59,7 +59,12 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
                 "result": out.result.to_string(),
                 "latex": latex::expr(&out.result),
                 "steps": steps,
-                "verified": {"checked": out.checked, "nonzero": out.nonzero},
+                "verified": {
+                    "checked": out.checked,
+                    "nonzero": out.nonzero,
+                    "max_j": crate::expr::lin::fmt_q(&out.certificate.max_j),
+                    "whole": out.certificate.compared,
+                },
                 "notes": out.notes,
             })
         )?;

@@ -21,7 +21,7 @@ pub struct GraphRewrite {
     /// the rule's name
     pub rule: String,
     /// its source
-    pub source: String,
+    pub source: crate::rules::Source,
     /// what replaces the term
     pub replacement: Expr,
     /// the instance of the rule: (left side, right side)

@@ -9,8 +9,11 @@
 
 pub mod matrix;
 
+use crate::algebra::normal::canonical_expr;
 use crate::expr::{CouplingTree, Expr, Factor, Lin, Name, Term, Q};
-use crate::simplify::{simplify, Options, Outcome, SimplifyError};
+use crate::simplify::{
+    expand_definition, gate, simplify, Derivation, Options, Outcome, Proposal, SimplifyError,
+};
 use std::collections::{BTreeMap, BTreeSet};
 
 /// Why two trees cannot be recoupled.
@@ -322,6 +325,23 @@ fn expand(
 /// fresh name).
 pub fn overlap(from: &CouplingTree, to: &CouplingTree) -> Expr {
     let (f, t, factor) = cancel_common(from, to);
+    overlap_of(from, to, &f, &t, factor)
+}
+
+/// The overlap from its definition: both coupled states expanded in the
+/// product basis, nothing cancelled (the reference a recoupling result is
+/// verified against).
+pub fn overlap_definition(from: &CouplingTree, to: &CouplingTree) -> Expr {
+    overlap_of(from, to, from, to, Term::one())
+}
+
+fn overlap_of(
+    from: &CouplingTree,
+    to: &CouplingTree,
+    f: &CouplingTree,
+    t: &CouplingTree,
+    factor: Term,
+) -> Expr {
     let mut taken: BTreeSet<Name> = BTreeSet::new();
     for tree in [from, to] {
         for l in tree.leaves().into_iter().chain(tree.internal_labels()) {
@@ -342,13 +362,13 @@ pub fn overlap(from: &CouplingTree, to: &CouplingTree) -> Expr {
     let mut cgs = Vec::new();
     let mut bound = Vec::new();
     let mut leaf_ms = BTreeMap::new();
-    match (&f, &t) {
+    match (f, t) {
         (CouplingTree::Leaf(_), _) | (_, CouplingTree::Leaf(_)) => {
             // everything cancelled: the overlap is the factor itself
         }
         _ => {
             expand(
-                &f,
+                f,
                 &mut names,
                 &mut cgs,
                 &mut bound,
@@ -356,7 +376,7 @@ pub fn overlap(from: &CouplingTree, to: &CouplingTree) -> Expr {
                 &mut leaf_ms,
             );
             expand(
-                &t,
+                t,
                 &mut names,
                 &mut cgs,
                 &mut bound,
@@ -371,13 +391,28 @@ pub fn overlap(from: &CouplingTree, to: &CouplingTree) -> Expr {
     Expr::from_term(term.normalized())
 }
 
-/// The recoupling coefficient and the simplification that produced it.
+/// The recoupling coefficient and the derivation that produced it.
 #[derive(Clone, Debug)]
 pub struct Recoupling {
-    /// the overlap as written before simplification
+    /// the overlap as written before simplification (common subtrees
+    /// cancelled)
     pub overlap: Expr,
-    /// the simplification (result, steps, verification)
+    /// the overlap from its definition (nothing cancelled): the result was
+    /// verified against it
+    pub definition: Expr,
+    /// the derivation: result, steps, and the certificate of the gate
+    /// against `definition`
     pub outcome: Outcome,
+}
+
+/// How a recoupling coefficient is written.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
+pub enum Form {
+    /// 6j and 9j symbols, the fewest sums found
+    #[default]
+    Symbols,
+    /// 6j symbols only: every 9j as its sum over three 6j
+    SixJOnly,
 }
 
 impl Recoupling {
@@ -456,66 +491,76 @@ pub fn recouple(
     to: &CouplingTree,
     opts: &Options,
 ) -> Result<Recoupling, RecoupleError> {
+    recouple_as(from, to, opts, Form::Symbols)
+}
+
+/// Derives the recoupling coefficient `<FROM | TO>` in the given form; the
+/// printed result passes the verification gate against the overlap's
+/// definition after its last rewrite.
+pub fn recouple_as(
+    from: &CouplingTree,
+    to: &CouplingTree,
+    opts: &Options,
+    form: Form,
+) -> Result<Recoupling, RecoupleError> {
     validate(from, to)?;
     let (f, t, placeholders) = name_numeric_leaves(from, to);
     let mut ov = overlap(&f, &t);
+    let mut definition = overlap_definition(&f, &t);
     let mut outcome = simplify(&ov, opts)?;
+    let mut result = outcome.result.clone();
     for (n, v) in &placeholders {
         ov = ov.substitute(n, v);
-        outcome.result = outcome.result.substitute(n, v);
+        definition = definition.substitute(n, v);
+        result = result.substitute(n, v);
         for st in &mut outcome.steps {
             st.before = st.before.substitute(n, v);
             st.after = st.after.substitute(n, v);
         }
     }
+    // the numbers put back, the derivation goes on: their normal form,
+    // and the 9j written as 6j sums on request, every step recorded
+    let mut d = Derivation::resume(
+        &ov,
+        result.clone(),
+        std::mem::take(&mut outcome.steps),
+        opts,
+    );
     if !placeholders.is_empty() {
-        outcome.result = crate::algebra::normal::canonical_expr(&outcome.result, false);
+        let tidy = canonical_expr(&result, false);
+        if tidy != result {
+            d.advance(Proposal {
+                rule: "normal-form".into(),
+                source: crate::rules::Source::default()
+                    .noted("the numeric leaves put back, then the normal form"),
+                next: tidy,
+                local: None,
+            })?;
+        }
     }
+    if form == Form::SixJOnly {
+        expand_definition(&mut d, "9j-as-6j-sum")?;
+    }
+    let (result, steps) = d.finish();
+    let certificate = gate(&definition, &result, &opts.final_spot)?;
+    let mut notes = outcome.notes;
+    if !certificate.compared {
+        notes.push("the overlap's definition is too large to evaluate within the budget, so the result was verified step by step only".into());
+    }
+    outcome = Outcome {
+        input: ov.clone(),
+        checked: certificate.checked,
+        nonzero: certificate.nonzero,
+        certificate,
+        result,
+        steps,
+        notes,
+    };
     Ok(Recoupling {
         overlap: ov,
+        definition,
         outcome,
     })
-}
-
-/// Every 9j written as a sum over x of three 6j (9j-as-6j-sum, Edmonds
-/// 6.4.3), for numeric codes that only have 6j routines.
-pub fn only_6j(e: &Expr) -> Expr {
-    let mut out = Expr::zero();
-    for t in &e.terms {
-        let mut cur = vec![t.clone()];
-        loop {
-            let mut next = Vec::new();
-            let mut changed = false;
-            for u in cur {
-                let Some(i) = u.factors.iter().position(|f| matches!(f, Factor::NineJ(_))) else {
-                    next.push(u);
-                    continue;
-                };
-                let Factor::NineJ(a) = &u.factors[i] else {
-                    unreachable!()
-                };
-                let mut rest = u.clone();
-                rest.factors.remove(i);
-                let text = format!(
-                    "sum(x: (-1)^(2*x) (2*x+1) {{{}, {}, {}; {}, {}, x}} {{{}, {}, {}; {}, x, {}}} {{{}, {}, {}; x, {}, {}}})",
-                    a[0], a[1], a[2], a[5], a[8], a[3], a[4], a[5], a[1], a[7], a[6], a[7], a[8], a[0], a[3]
-                );
-                let sum = crate::syntax::parse(&text).expect("9j-as-6j-sum parses");
-                for s in &sum.terms {
-                    next.push(rest.mul(s));
-                }
-                changed = true;
-            }
-            cur = next;
-            if !changed {
-                break;
-            }
-        }
-        for u in cur {
-            out.push(u);
-        }
-    }
-    out
 }
 
 /// Values of the free variables as small rationals (helper for callers).

@@ -22,13 +22,36 @@ fn internal(n: &Name) -> Name {
     Name::new(format!("\u{2}{n}"))
 }
 
+/// The term with every internal summed variable (a rule's own, brought in
+/// by a rewrite) given a readable name: the rule's name, primed until it
+/// is new to the term.
+pub fn readable_bound(t: &Term) -> Term {
+    let mut taken: BTreeSet<Name> = t.all_vars();
+    let mut map = BTreeMap::new();
+    for b in &t.bound {
+        if let Some(plain) = b.as_str().strip_prefix('\u{2}') {
+            let mut n = Name::new(plain);
+            while taken.contains(&n) {
+                n = n.primed();
+            }
+            taken.insert(n.clone());
+            map.insert(b.clone(), n);
+        }
+    }
+    if map.is_empty() {
+        t.clone()
+    } else {
+        t.rename(&map)
+    }
+}
+
 /// A rule prepared for matching (its variables renamed apart).
 #[derive(Clone, Debug)]
 pub struct Pattern {
     /// the rule's name
     pub name: String,
     /// the rule's source
-    pub source: String,
+    pub source: crate::rules::Source,
     symbols: Vec<Factor>,
     powers: Vec<(Lin, Q)>,
     phase: Lin,
@@ -128,8 +151,14 @@ impl Pattern {
     /// phase (`None` for other shapes).
     pub fn new(rule: &Rule) -> Option<Pattern> {
         let t0 = &rule.lhs.terms[0];
-        let mut names: BTreeSet<Name> = rule.lhs.free_vars();
-        names.extend(t0.bound.iter().cloned());
+        // every name of the rule goes internal, the right side's own
+        // summed variables too: no substituted value can be captured
+        let mut lhs_names: BTreeSet<Name> = rule.lhs.free_vars();
+        lhs_names.extend(t0.bound.iter().cloned());
+        let mut names = lhs_names.clone();
+        for t in &rule.rhs.terms {
+            names.extend(t.bound.iter().cloned());
+        }
         let map: BTreeMap<Name, Name> = names.iter().map(|v| (v.clone(), internal(v))).collect();
         let t = t0.rename(&map);
         let mut symbols = Vec::new();
@@ -164,7 +193,8 @@ impl Pattern {
             .iter()
             .map(|b| (b.clone(), kinds.get(b).copied().unwrap_or(Kind::Other)))
             .collect();
-        let vars: BTreeSet<Name> = map.values().cloned().collect();
+        // the unknowns of matching: the left side's names only
+        let vars: BTreeSet<Name> = lhs_names.iter().map(internal).collect();
         let free: BTreeSet<Name> = rule.lhs.free_vars().iter().map(internal).collect();
         let rhs = rule.rhs.rename(&map);
         Some(Pattern {
@@ -520,7 +550,7 @@ impl Pattern {
         }
         let mut out = Expr::zero();
         for r in &rhs.terms {
-            out.push(rest.mul_inside(r));
+            out.push(readable_bound(&rest.mul_inside(r)));
         }
         Some(out)
     }
@@ -611,6 +641,7 @@ impl Pattern {
                 rhs = rhs.substitute(v, by);
             }
         }
+        let rhs = Expr::merged(rhs.terms.iter().map(readable_bound));
         (Expr::from_term(lhs.normalized()), rhs)
     }
 }

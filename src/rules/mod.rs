@@ -6,6 +6,9 @@
 
 pub mod apply;
 pub mod matcher;
+pub mod source;
+
+pub use source::Source;
 
 use crate::expr::{Expr, Name};
 use crate::syntax::parse;
@@ -33,7 +36,7 @@ pub struct Rule {
     /// what it rewrites
     pub kind: RuleKind,
     /// the published source
-    pub source: String,
+    pub source: Source,
     /// left side (the pattern)
     pub lhs: Expr,
     /// right side (the replacement)
@@ -111,10 +114,15 @@ impl Rule {
                 only_r.join(", ")
             )));
         }
+        let source = if source.trim().is_empty() {
+            Source::default()
+        } else {
+            Source::parse(source).map_err(|e| err(format!("source: {e}")))?
+        };
         Ok(Rule {
             name: name.to_string(),
             kind,
-            source: source.to_string(),
+            source,
             lhs: l,
             rhs: r,
         })
@@ -191,6 +199,12 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
                 ),
                 None => (source, Vec::new()),
             };
+            if source.trim().is_empty() {
+                return Err(RuleError {
+                    name: name.to_string(),
+                    message: "a catalog rule needs a published source".into(),
+                });
+            }
             head = Some((name.to_string(), kind, source.trim().to_string(), unused));
         } else if let Some(r) = line.strip_prefix("==") {
             flush(&mut head, &mut lhs, r, &mut out)?;

@@ -3,6 +3,7 @@
 
 pub mod check;
 pub mod diagnose;
+pub mod gate;
 pub mod rng;
 pub mod sample;
 pub mod spot;
