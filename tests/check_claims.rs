@@ -3,31 +3,13 @@
 //! repairing every wrong-phase, wrong-factor and swapped variant (each
 //! repair re-checked at other points). Sources: tests/data/identities.txt.
 
+mod common;
+
+use common::blocks;
 use recoup::expr::Q;
 use recoup::syntax::parse;
 use recoup::verify::check::{check, Verdict};
 use recoup::verify::spot::SpotSettings;
-
-fn blocks(text: &str) -> Vec<(String, String, String, String)> {
-    let mut out = Vec::new();
-    let mut cur: Option<(String, String, String, String)> = None;
-    for line in text.lines().map(str::trim) {
-        if line.is_empty() || line.starts_with('#') {
-            continue;
-        }
-        if let Some(rest) = line.strip_prefix('[') {
-            out.extend(cur.take());
-            let (name, tag) = rest.split_once(']').unwrap();
-            cur = Some((name.into(), tag.trim().into(), String::new(), String::new()));
-        } else if let Some(r) = line.strip_prefix("==") {
-            cur.as_mut().unwrap().3 = r.trim().into();
-        } else {
-            cur.as_mut().unwrap().2 = line.into();
-        }
-    }
-    out.extend(cur);
-    out
-}
 
 fn settings(lhs: &str, seed: u64) -> SpotSettings {
     let heavy = lhs.matches('(').count() > 14 || lhs.matches('<').count() > 4;
@@ -42,7 +24,8 @@ fn settings(lhs: &str, seed: u64) -> SpotSettings {
 
 #[test]
 fn every_identity_checks_equal() {
-    for (name, source, lhs, rhs) in blocks(include_str!("data/identities.txt")) {
+    for b in blocks(include_str!("data/identities.txt")) {
+        let (name, source, lhs, rhs) = (b.name, b.tag, b.lhs, b.rhs);
         let l = parse(&lhs).unwrap();
         let r = parse(&rhs).unwrap();
         let res = check(&l, &r, &settings(&lhs, 21)).unwrap();
@@ -58,7 +41,8 @@ fn every_identity_checks_equal() {
 fn wrong_variants_are_caught_and_repaired() {
     let cases = blocks(include_str!("data/wrong_claims.txt"));
     assert!(cases.len() >= 20, "{} variants", cases.len());
-    for (name, tag, lhs, rhs) in cases {
+    for b in cases {
+        let (name, tag, lhs, rhs) = (b.name, b.tag, b.lhs, b.rhs);
         let l = parse(&lhs).unwrap();
         let r = parse(&rhs).unwrap();
         let res = check(&l, &r, &settings(&lhs, 33)).unwrap();

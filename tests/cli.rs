@@ -64,7 +64,7 @@ fn parse_errors_point_at_line_and_column_with_a_caret() {
 
 #[test]
 fn eval_prints_exact_and_float() {
-    // IDENTITIES.md table values (Condon–Shortley, from memory)
+    // Condon–Shortley table values (Condon and Shortley 1935, from memory)
     let (code, out, _) = run(&["eval", "<1, 1; 1/2, -1/2 | 3/2, 1/2>"], None);
     assert_eq!(code, 0);
     assert_eq!(out, "sqrt(1/3)\t0.5773502691896257\n");
@@ -110,7 +110,7 @@ fn table_text_json_and_csv() {
     let v: serde_json::Value = serde_json::from_str(&out).unwrap();
     assert_eq!(v["j1"], "1/2");
     let e = &v["entries"];
-    // <1/2 1/2; 1/2 -1/2 | 1 0> = sqrt(1/2) (IDENTITIES.md table values)
+    // <1/2 1/2; 1/2 -1/2 | 1 0> = sqrt(1/2) (Condon and Shortley 1935, from memory)
     let hit = e
         .as_array()
         .unwrap()
@@ -229,7 +229,7 @@ fn simplify_text_steps_and_json() {
 
 #[test]
 fn graph_dot_and_json() {
-    // recouple-3 as four CGs (IDENTITIES.md), drawn as its 3j graph
+    // recouple-3 as four CGs (Edmonds 1957, eq. 6.1.5, from memory), drawn as its 3j graph
     let input = "sum(m1, m2, m3, m12, m23: <j1, m1; j2, m2 | j12, m12> <j12, m12; j3, m3 | J, M> <j2, m2; j3, m3 | j23, m23> <j1, m1; j23, m23 | J, M>)";
     let (code, out, _) = run(&["graph", input], None);
     assert_eq!(code, 0);

@@ -1,4 +1,4 @@
-//! Projection sums reduced by the graph method (GRAPH-PRIMITIVES.md;
+//! Projection sums reduced by the graph method (Yutsis, Levinson and Vanagas 1962;
 //! Yutsis, Levinson and Vanagas 1960, from memory): the standard sums in
 //! disguise (renamed, factors reordered, symbols in other symmetric
 //! spellings) reduce with no projection sum left and the right value; the
@@ -40,7 +40,7 @@ fn settings(seed: u64) -> SpotSettings {
 
 #[test]
 fn the_standard_projection_sums_reduce_in_any_disguise() {
-    // left sides and right sides from IDENTITIES.md (Edmonds equation
+    // left sides and right sides of standard identities (Edmonds 1957 equation
     // numbers recalled from memory there)
     let cases = [
         ("3j-orthogonality (Edmonds 3.7.8)",

@@ -2,45 +2,14 @@
 //! spot-evaluation at random admissible points (sources beside each entry
 //! in tests/data/identities.txt).
 
+mod common;
+
 use recoup::expr::Q;
 use recoup::syntax::parse;
 use recoup::verify::spot::{compare, SpotSettings};
 
-struct Case {
-    name: String,
-    source: String,
-    lhs: String,
-    rhs: String,
-}
-
-fn cases() -> Vec<Case> {
-    let text = include_str!("data/identities.txt");
-    let mut out = Vec::new();
-    let mut cur: Option<Case> = None;
-    for line in text.lines() {
-        let line = line.trim();
-        if line.starts_with('#') || line.is_empty() {
-            continue;
-        }
-        if let Some(rest) = line.strip_prefix('[') {
-            if let Some(c) = cur.take() {
-                out.push(c);
-            }
-            let (name, source) = rest.split_once(']').unwrap();
-            cur = Some(Case {
-                name: name.to_string(),
-                source: source.trim().to_string(),
-                lhs: String::new(),
-                rhs: String::new(),
-            });
-        } else if let Some(r) = line.strip_prefix("==") {
-            cur.as_mut().unwrap().rhs = r.trim().to_string();
-        } else {
-            cur.as_mut().unwrap().lhs = line.to_string();
-        }
-    }
-    out.extend(cur);
-    out
+fn cases() -> Vec<common::Block> {
+    common::blocks(include_str!("data/identities.txt"))
 }
 
 #[test]
@@ -64,7 +33,7 @@ fn every_identity_holds_at_random_admissible_points() {
             rep.mismatches.is_empty(),
             "{} ({}) fails at {:?}",
             c.name,
-            c.source,
+            c.tag,
             rep.mismatches[0]
         );
         assert!(

@@ -1,5 +1,5 @@
 //! Sums over angular momenta collapsed by the catalog's identities
-//! (IDENTITIES.md "Sums over angular momenta", Edmonds equation numbers
+//! (sums over angular momenta, Edmonds 1957 equation numbers
 //! recalled from memory there): each identity renamed, respelled, with a
 //! spectator 6j and hat, and wrapped in an outer sum; a two-level case
 //! where a projection-sum reduction yields the sum; a near miss that is not
@@ -124,7 +124,7 @@ fn each_identity_with_spectators_and_inside_an_outer_sum() {
 
 #[test]
 fn a_projection_sum_whose_reduction_yields_a_j_sum_that_collapses() {
-    // six 3j: a 6j as its tetrahedral projection sum (IDENTITIES.md
+    // six 3j: a 6j as its tetrahedral projection sum (Edmonds 1957 section 6.2;
     // 6j-as-projection-sum) sharing x with a second 6j, times a bubble;
     // the graph steps give sum(x: ... {..x..} {..x..}) and orthogonality
     // (Edmonds 6.2.9) removes it

@@ -1,5 +1,5 @@
-//! Recoupling coefficients: the three of IDENTITIES.md exactly (Edmonds
-//! 6.1.5 and 6.4.2, from memory there); random pairs of trees with 3 to 12
+//! Recoupling coefficients: three standard ones exactly (Edmonds 1957,
+//! eqs. 6.1.5 and 6.4.2, from memory); random pairs of trees with 3 to 12
 //! leaves against an independent brute-force overlap of coupled states built
 //! from Clebsch–Gordan coefficients; the number of sums for trees of 5 and
 //! 6 leaves against the fewest over every reduction order; error cases.

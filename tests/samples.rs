@@ -31,7 +31,7 @@ fn the_readme_example_reduces_to_one_6j() {
     let text = include_str!("../samples/toy-overlap.txt");
     let (code, out) = run(&["simplify", "--steps", "-"], Some(text));
     assert_eq!(code, 0);
-    // recouple-3 (Edmonds 6.1.5, IDENTITIES.md), in its textbook arrangement
+    // recouple-3 (Edmonds 1957, eq. 6.1.5, from memory), in its textbook arrangement
     assert!(
         out.trim_end()
             .ends_with("(-1)^(j1+j2+j3+J) hat(j12) hat(j23) {j1, j2, j12; j3, J, j23}"),

@@ -56,7 +56,7 @@ fn special_values_in_any_spelling() {
     assert_eq!(simp("{0, b, d; c, e, a}"), simp("{a, b, c; d, e, 0}"));
     let r = simp("{x, y, z; 0, z, y}");
     assert!(!r.contains('{'), "{r}");
-    // 3j-zero (IDENTITIES.md) with the zero column first and m flipped
+    // 3j-zero (Edmonds 1957 section 3.7, from memory) with the zero column first and m flipped
     assert_eq!(simp("(0, j, j; 0, m, -m)"), simp("(j, j, 0; m, -m, 0)"));
     assert_eq!(simp("(0, j, j; 0, -m, m)"), "(-1)^(j+m) / hat(j)");
     assert_eq!(simp("(j, j, 0; m, -m, 0)"), "(-1)^(j-m) / hat(j)");
@@ -72,7 +72,7 @@ fn special_values_in_any_spelling() {
 
 #[test]
 fn phases_and_selection_rules_in_the_normal_form() {
-    // DESIGN.md "Phases" (common practice, no source)
+    // phases modulo integrality (common practice, no source)
     assert_eq!(simp("(-1)^(4*j) {j, a, b; c, d, e}"), "{a, b, j; d, e, c}");
     assert_eq!(
         simp("(-1)^(2*(a+b+c)) {a, b, c; d, e, f}"),

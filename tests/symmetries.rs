@@ -1,6 +1,6 @@
 //! Every element of every symbol's symmetry group, with the phase it
 //! costs, checked by exact spot-evaluation: the classical groups (3j 12,
-//! CG 4, 6j 24, 9j 72; IDENTITIES.md "Symmetries", common practice) and
+//! CG 4, 6j 24, 9j 72; Edmonds 1957 sections 3.7, 6.2, 6.4, common practice) and
 //! Regge's (3j 72, 6j 144; Regge 1958/1959, from memory). Projections are
 //! written with conservation solved (z = -x-y), the form in which the
 //! symmetries are identities of functions.

@@ -423,7 +423,7 @@ mod tests {
 
     #[test]
     fn the_phases_design_md_lists() {
-        // DESIGN.md "Phases" (common practice, no source)
+        // phases modulo integrality (common practice, no source)
         assert_eq!(reduced("(-1)^(4*j) {a, b, j; c, d, e}"), "0");
         assert_eq!(reduced("(-1)^(2*(a+b+c)) {a, b, c; d, e, f}"), "0");
         assert_eq!(reduced("(-1)^(2*m) (j, j, 0; m, -m, 0)"), "2*j");

@@ -3,7 +3,7 @@
 //! projection that fills one slot of two vertices (as `m` in one and `-m`
 //! in the other, or with equal signs) is a line between them; every other
 //! slot is an external leg. The reduction (`reduce`) rewrites the term with
-//! the graph steps of GRAPH-PRIMITIVES.md chosen from this picture; `dot`
+//! the graph steps (Yutsis, Levinson and Vanagas 1962) chosen from this picture; `dot`
 //! draws it.
 
 pub mod cycles;

@@ -177,7 +177,7 @@ mod tests {
 
     #[test]
     fn small_clebsch_gordan_values_match_the_standard_table() {
-        // IDENTITIES.md "Table values" (Condon–Shortley table, from memory).
+        // Condon–Shortley table values (Condon and Shortley 1935, from memory).
         assert_eq!(s(&clebsch_gordan(1, 1, 1, -1, 2, 0)), "sqrt(1/2)");
         assert_eq!(s(&clebsch_gordan(1, 1, 1, -1, 0, 0)), "sqrt(1/2)");
         assert_eq!(s(&clebsch_gordan(2, 2, 2, -2, 4, 0)), "sqrt(1/6)");

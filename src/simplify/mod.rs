@@ -164,6 +164,13 @@ pub fn verified_step(
     s: &SpotSettings,
 ) -> Result<Step, SimplifyError> {
     let rep = compare(before, after, s)?;
+    if rep.checked == 0 {
+        if let Some(why) = &rep.undefined_why {
+            return Err(SimplifyError::Eval(EvalError::Arithmetic(format!(
+                "the expression is undefined at every point tried, so no step can be verified: {why}"
+            ))));
+        }
+    }
     if let Some(m) = rep.mismatches.first() {
         return Err(SimplifyError::Unverified(Box::new(Unverified {
             rule: rule.to_string(),

@@ -28,7 +28,7 @@ mod grammar {
     pub struct Grammar;
 }
 
-/// Parses an expression of the language (DESIGN.md).
+/// Parses an expression of the language (the README's table).
 pub fn parse(input: &str) -> Result<Expr, ParseError> {
     let input = input.strip_prefix('\u{feff}').unwrap_or(input);
     guard::check(input)?;

@@ -85,6 +85,13 @@ pub fn certify(
         };
         match compare_within(reference, result, &settings, budget, 3) {
             Ok(rep) => {
+                if rep.checked == 0 {
+                    if let Some(why) = rep.undefined_why {
+                        return Err(GateError::Eval(EvalError::Arithmetic(format!(
+                            "the input is undefined at every point tried, so the result cannot be verified: {why}"
+                        ))));
+                    }
+                }
                 if let Some(m) = rep.mismatches.first() {
                     return Err(GateError::Mismatch {
                         at: m.at.clone(),

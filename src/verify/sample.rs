@@ -180,9 +180,22 @@ impl Sampler {
             for t in &e.terms {
                 crate::limits::tick();
                 let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+                // the admissibility every formula assumes of its free
+                // projections: only columns whose projection holds one
+                // (a column like (-m, 0) is a selection rule, not a
+                // precondition)
                 let mut cols = Constraints::default();
                 for f in &t.factors {
-                    cols.add_columns(f);
+                    for (j, m) in f.columns() {
+                        let free_projection = m
+                            .vars()
+                            .any(|v| !bound.contains(v) && kinds.get(v) == Some(&Kind::Projection));
+                        if free_projection {
+                            cols.ge.push(j - m);
+                            cols.ge.push(j + m);
+                            cols.integral.push(j - m);
+                        }
+                    }
                 }
                 // a phase only means something where its exponent is an
                 // integer: that is part of every expression's domain

@@ -99,6 +99,7 @@ fn side_value(ev: &Evaluator<Surd>, e: &Expr, p: &Point) -> Result<SpotValue, Ev
     match ev.eval(e, p) {
         Ok(v) => Ok(SpotValue::Number(v)),
         Err(EvalError::Arithmetic(why)) => Ok(SpotValue::Undefined(why)),
+        Err(e @ EvalError::PhaseNotInteger { .. }) => Ok(SpotValue::Undefined(e.to_string())),
         Err(e) => Err(e),
     }
 }
@@ -128,6 +129,8 @@ pub struct SpotReport {
     /// points skipped because both sides (or, for a rewrite, its input)
     /// are undefined there
     pub undefined: usize,
+    /// why the first skipped point was undefined
+    pub undefined_why: Option<String>,
     /// values at the points (for diagnosis): every point of a random
     /// comparison, a uniform sample of the nonzero points of an
     /// exhaustive one
@@ -144,6 +147,7 @@ impl SpotReport {
             mismatches: Vec::new(),
             mismatch_count: 0,
             undefined: 0,
+            undefined_why: None,
             values: Vec::new(),
             seen_nonzero: 0,
             rng: Rng::new(17),
@@ -166,12 +170,14 @@ impl SpotReport {
     ) {
         let (a, b) = match (a, b) {
             (SpotValue::Number(a), SpotValue::Number(b)) => (a, b),
-            (SpotValue::Undefined(_), SpotValue::Undefined(_)) => {
+            (SpotValue::Undefined(why), SpotValue::Undefined(_)) => {
                 self.undefined += 1;
+                self.undefined_why.get_or_insert(why);
                 return;
             }
-            (SpotValue::Undefined(_), _) if lhs_is_domain => {
+            (SpotValue::Undefined(why), _) if lhs_is_domain => {
                 self.undefined += 1;
+                self.undefined_why.get_or_insert(why);
                 return;
             }
             (a, b) => {

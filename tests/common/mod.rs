@@ -95,3 +95,44 @@ pub fn sums_left(e: &Expr, kind: Option<Kind>) -> usize {
         .max()
         .unwrap_or(0)
 }
+
+/// One identity of a block file (`[name] source`, the left side, `==` the
+/// right side): tests/data/identities.txt and tests/data/wrong_claims.txt.
+#[derive(Clone, Debug)]
+pub struct Block {
+    /// the entry's name
+    pub name: String,
+    /// its source (or, for wrong claims, the kind of mistake)
+    pub tag: String,
+    /// the left side as written
+    pub lhs: String,
+    /// the right side as written
+    pub rhs: String,
+}
+
+/// The blocks of a block file.
+pub fn blocks(text: &str) -> Vec<Block> {
+    let mut out = Vec::new();
+    let mut cur: Option<Block> = None;
+    for line in text.lines().map(str::trim) {
+        if line.is_empty() || line.starts_with('#') {
+            continue;
+        }
+        if let Some(rest) = line.strip_prefix('[') {
+            out.extend(cur.take());
+            let (name, tag) = rest.split_once(']').unwrap();
+            cur = Some(Block {
+                name: name.into(),
+                tag: tag.trim().into(),
+                lhs: String::new(),
+                rhs: String::new(),
+            });
+        } else if let Some(r) = line.strip_prefix("==") {
+            cur.as_mut().unwrap().rhs = r.trim().into();
+        } else {
+            cur.as_mut().unwrap().lhs = line.into();
+        }
+    }
+    out.extend(cur);
+    out
+}
