@@ -72,9 +72,9 @@ fn grid(lhs: &Expr, rhs: &Expr) -> Vec<(Assignment, Surd)> {
     out
 }
 
-/// A point of the grid where `lhs` and `mutated` are both admissible,
-/// evaluate, and differ.
-fn witness(lhs: &Expr, mutated: &Expr, pts: &[(Assignment, Surd)]) -> Option<Assignment> {
+/// A point of the grid (admissible for the unmutated side, whose value it
+/// holds) where `mutated` is admissible too, evaluates, and differs.
+fn witness(mutated: &Expr, pts: &[(Assignment, Surd)]) -> Option<Assignment> {
     let ev = Evaluator::<Surd>::new();
     pts.iter()
         .find(|(p, a)| {
@@ -225,9 +225,9 @@ fn mutants() -> Vec<Mutant> {
                 (lhs.clone(), m.clone())
             };
             let found = if left_mutated {
-                witness(&rhs, &m, &grid(&rhs, &m))
+                witness(&m, &grid(&rhs, &m))
             } else {
-                witness(&lhs, &m, &pts)
+                witness(&m, &pts)
             };
             if let Some(w) = found {
                 out.push(Mutant {
