@@ -239,13 +239,21 @@ fn sums_match_the_fewest_over_every_reduction_order() {
             o.final_spot.samples = 6;
             let out = simplify(&e, &o).unwrap();
             let ours = interchanges(&out);
-            let best = fewest_sums(&Bare::from_edges(n, &edges), ours).unwrap_or(ours);
+            // the search may look beyond the engine's count: a result
+            // better than the true fewest would show a defect in one of
+            // them, and a worse one is counted below
+            let best = fewest_sums(&Bare::from_edges(n, &edges), ours + 2).unwrap_or_else(|| {
+                panic!("V={n} {edges:?}: no order with at most {} sums", ours + 2)
+            });
             total += 1;
             if ours == best {
                 matched += 1;
             }
             report.push(format!("V={n}: ours {ours}, fewest {best}"));
-            assert!(ours >= best, "the search must not do worse than the engine");
+            assert!(
+                ours >= best,
+                "V={n} {edges:?}: the engine needs {ours} sums, fewer than the fewest ({best})"
+            );
         }
     }
     // graphs without triangles, where the order matters most: the cube,
@@ -297,7 +305,8 @@ fn sums_match_the_fewest_over_every_reduction_order() {
         o.final_spot.samples = 6;
         let out = simplify(&e, &o).unwrap();
         let ours = interchanges(&out);
-        let best = fewest_sums(&Bare::from_edges(n, &edges), ours).unwrap_or(ours);
+        let best = fewest_sums(&Bare::from_edges(n, &edges), ours + 2)
+            .unwrap_or_else(|| panic!("{name}: no order with at most {} sums", ours + 2));
         total += 1;
         if ours == best {
             matched += 1;

@@ -1,7 +1,7 @@
 //! An independent search for the fewest sums on bare cubic graphs (no
-//! angular momenta, no phases): every order of bubbles, triangles, closed
-//! 6j/9j pieces and interchanges, by iterative deepening on the number of
-//! interchanges. Shared by the graph and recoupling tests.
+//! angular momenta, no phases): every order of loops (separation on one
+//! line), bubbles, triangles, closed 6j/9j pieces and interchanges, by
+//! iterative deepening on the number of interchanges. Shared by the graph and recoupling tests.
 
 /// A cubic multigraph with external legs: `adj[v][s]` is `Some((w, t))`
 /// when slot s of v is joined to slot t of w, `None` for an external leg.
@@ -59,6 +59,30 @@ impl Bare {
     /// Free reductions: closed pieces of 2, 4 or 6 vertices, bubbles,
     /// triangles. Returns true when one applied.
     fn free_step(&mut self) -> bool {
+        // a loop at a vertex (separation on one line): the third leg
+        // carries j = 0, so its other end joins its two remaining lines
+        for v in self.alive() {
+            let sl = self.slots(v);
+            for s in 0..3 {
+                let Some((w, t)) = sl[s] else { continue };
+                if w != v {
+                    continue;
+                }
+                let third = 3 - s - t;
+                let a = sl[third];
+                self.adj[v] = None;
+                if let Some((y, u)) = a {
+                    let ys = self.slots(y);
+                    let others: Vec<usize> = (0..3).filter(|x| *x != u).collect();
+                    let (b, c) = (ys[others[0]], ys[others[1]]);
+                    self.adj[y] = None;
+                    if b != Some((y, others[1])) {
+                        self.join(b, c);
+                    }
+                }
+                return true;
+            }
+        }
         // bubble: v, w joined by two lines
         for v in self.alive() {
             let sl = self.slots(v);
