@@ -62,6 +62,13 @@ pub fn tick() {
     }
 }
 
+/// Seconds left before the deadline on this thread (`None`: no deadline).
+pub fn seconds_left() -> Option<f64> {
+    DEADLINE
+        .with(|d| d.get())
+        .map(|(at, _)| at.saturating_duration_since(Instant::now()).as_secs_f64())
+}
+
 /// True when a deadline is in force on this thread.
 pub fn has_deadline() -> bool {
     DEADLINE.with(|d| d.get().is_some())

@@ -82,6 +82,14 @@ impl From<crate::numeric::eval::EvalError> for Failure {
         use crate::numeric::eval::EvalError;
         match e {
             EvalError::TooLarge | EvalError::SymbolTooLarge(..) => Failure::Limit(e.to_string()),
+            EvalError::TooSlow { ref what, .. } => Failure::Limit(format!(
+                "{e}; raise it with --time-limit SECONDS{}",
+                if what.contains("exact") {
+                    "; eval --float is much faster"
+                } else {
+                    ""
+                }
+            )),
             other => Failure::Input(other.to_string()),
         }
     }

@@ -64,9 +64,7 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     let value = match &a.at {
         Some(s) => {
             let at = parse_assignment(s)?;
-            let v = Evaluator::<Surd>::new()
-                .eval_checked(&result, &at)
-                .map_err(|e| Failure::input(e.to_string()))?;
+            let v = Evaluator::<Surd>::new().eval_checked(&result, &at)?;
             Some(v)
         }
         None => None,

@@ -38,7 +38,7 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
         ..Options::default()
     };
     opts.final_spot = super::check::settings(&a.max_j, a.samples, false, opts.final_spot.seed)?;
-    let out = simplify(&e, &opts).map_err(|e| Failure::input(e.to_string()))?;
+    let out = simplify(&e, &opts)?;
     if a.json {
         let steps: Vec<serde_json::Value> = out
             .steps

@@ -500,29 +500,21 @@ pub fn power_of_rational(k: Q, e: Q) -> Option<Surd> {
     if n.unsigned_abs() > 4096 {
         return None;
     }
-    // k^(n/2) = (k^|n|)^(1/2) inverted if negative
-    let mut p = BigRational::one();
-    for _ in 0..n.unsigned_abs() {
-        p *= &kb;
+    // k^(n/2) = k^(|n| div 2) sqrt(k)^(|n| mod 2), inverted if negative:
+    // only k itself is ever put under a root (so no large radicand has to
+    // be factored)
+    let mut q = BigRational::one();
+    for _ in 0..(n.unsigned_abs() / 2) {
+        q *= &kb;
+    }
+    let mut v = Surd::from_rational(q);
+    if n % 2 != 0 {
+        v = &v * &Surd::signed_sqrt(false, &kb).ok()?;
     }
     if n < 0 {
-        if p.is_zero() {
-            return None;
-        }
-        p = p.recip();
+        return v.recip();
     }
-    if n % 2 == 0 {
-        // integer power: p is k^(2|e|); we need k^e = sqrt(p) exactly = k^(n/2)
-        let mut q = BigRational::one();
-        for _ in 0..(n.unsigned_abs() / 2) {
-            q *= &kb;
-        }
-        if n < 0 {
-            q = q.recip();
-        }
-        return Some(Surd::from_rational(q));
-    }
-    Surd::signed_sqrt(false, &p).ok()
+    Some(v)
 }
 
 impl Expr {

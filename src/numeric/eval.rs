@@ -101,6 +101,16 @@ pub enum EvalError {
     /// A symbol too large to evaluate this way.
     #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
     SymbolTooLarge(String, i64),
+    /// A symbol that would take longer than the time left.
+    #[error("{what} takes about {estimate} s here, more than the {left} s left of the time limit")]
+    TooSlow {
+        /// the symbol, in words
+        what: String,
+        /// the estimated time, whole seconds
+        estimate: u64,
+        /// the time left, whole seconds
+        left: u64,
+    },
     /// A sum with too many points.
     #[error("the sums visit more points than the evaluation budget allows; refusing to go on")]
     TooLarge,
@@ -117,6 +127,18 @@ pub enum SymbolKind {
     SixJ,
     /// 9j
     NineJ,
+}
+
+impl SymbolKind {
+    /// The kind in words.
+    pub fn words(&self) -> &'static str {
+        match self {
+            SymbolKind::ThreeJ => "3j symbol",
+            SymbolKind::Cg => "Clebsch-Gordan coefficient",
+            SymbolKind::SixJ => "6j symbol",
+            SymbolKind::NineJ => "9j symbol",
+        }
+    }
 }
 
 /// Which numbers an evaluation produces, with a product type that is cheap
@@ -141,6 +163,12 @@ pub trait Field: Clone {
     /// the largest doubled argument a symbol is evaluated for (beyond it
     /// the evaluation is refused rather than left to run for minutes)
     fn max_doubled_arg() -> i64;
+    /// a rough cost in seconds of one symbol with this largest doubled
+    /// argument, for symbols slow enough to be refused up front when the
+    /// time left is shorter (measured on the project's machines)
+    fn estimated_seconds(kind: SymbolKind, largest_doubled: i64) -> f64;
+    /// `exact` or `floating-point`, for messages
+    fn arithmetic() -> &'static str;
     /// the empty product
     fn prod_one() -> Self::Prod;
     /// a nonzero value as a product factor
@@ -203,6 +231,17 @@ impl Field for Surd {
     }
     fn max_doubled_arg() -> i64 {
         2 * MAX_EXACT_J
+    }
+    fn arithmetic() -> &'static str {
+        "exact"
+    }
+    fn estimated_seconds(kind: SymbolKind, largest_doubled: i64) -> f64 {
+        // exact 9j: 0.5 s at j = 500, 3.6 s at j = 1000, about j^2.9
+        let j = largest_doubled as f64 / 2.0;
+        match kind {
+            SymbolKind::NineJ => 7.2e-9 * j.powf(2.9),
+            _ => 0.0,
+        }
     }
     fn prod_one() -> SurdProd {
         SurdProd::Fast(Factored::one())
@@ -287,6 +326,17 @@ impl Field for f64 {
     }
     fn max_doubled_arg() -> i64 {
         2 * MAX_FLOAT_J
+    }
+    fn arithmetic() -> &'static str {
+        "floating-point"
+    }
+    fn estimated_seconds(kind: SymbolKind, largest_doubled: i64) -> f64 {
+        // float 9j: about 9 s at j = 1000, growing as j^2
+        let j = largest_doubled as f64 / 2.0;
+        match kind {
+            SymbolKind::NineJ => 9e-6 * j * j,
+            _ => 0.0,
+        }
     }
     fn prod_one() -> f64 {
         1.0
@@ -951,6 +1001,24 @@ impl<F: Field> Evaluator<F> {
                     let p = match cached {
                         Some(p) => p,
                         None => {
+                            let biggest = a.iter().map(|x| x.abs()).max().unwrap_or(0);
+                            let cost = F::estimated_seconds(*kind, biggest);
+                            if cost > 1.0 {
+                                if let Some(left) = crate::limits::seconds_left() {
+                                    if cost > left {
+                                        return Err(EvalError::TooSlow {
+                                            what: format!(
+                                                "the {} {} with j up to {}",
+                                                F::arithmetic(),
+                                                kind.words(),
+                                                crate::expr::lin::fmt_q(&Q::new(biggest, 2))
+                                            ),
+                                            estimate: cost.ceil() as u64,
+                                            left: left.floor() as u64,
+                                        });
+                                    }
+                                }
+                            }
                             let v = F::symbol(*kind, &a[..args.len()]);
                             let p = (!v.is_zero()).then(|| F::prod_of(&v));
                             let mut m = self.cache.borrow_mut();

@@ -59,6 +59,23 @@ pub struct Outcome {
     pub notes: Vec<String>,
 }
 
+/// Most variables one term may have: the normal form's phase lattice costs
+/// about the cube of this (800 variables take several seconds).
+pub const MAX_TERM_VARS: usize = 800;
+
+/// Refuses, before any work, a term too large for the normal form.
+fn check_size(e: &Expr) -> Result<(), SimplifyError> {
+    for t in &e.terms {
+        let n = t.all_vars().len();
+        if n > MAX_TERM_VARS {
+            return Err(SimplifyError::Limit(format!(
+                "a term with {n} variables is beyond the size the normal form handles ({MAX_TERM_VARS} variables; its phase lattice grows as the cube): simplify independent factors separately"
+            )));
+        }
+    }
+    Ok(())
+}
+
 /// Summation points the final comparison may visit in all (it checks
 /// fewer points, at least 3, when the input's sums are expensive).
 pub const FINAL_BUDGET: u64 = 600_000;
@@ -246,6 +263,7 @@ impl<'a> Derivation<'a> {
     /// it has one, else the whole before and after), and the step
     /// recorded with exactly the expression the next step sees.
     pub fn advance(&mut self, p: Proposal) -> Result<(), SimplifyError> {
+        check_size(&p.next)?;
         let next = self.tidy(&p.next);
         let (checked, nonzero) = match &p.local {
             Some((il, ir)) => {
@@ -563,6 +581,7 @@ fn graphical_route(
 /// Simplifies an expression with the catalog's rules, verifying each step,
 /// and passes the result through the verification gate against the input.
 pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
+    check_size(input)?;
     // free projections are admissible: j - m is an integer for the input's
     // free columns, even after the symbols that showed it are gone
     let mut d = Driver {

@@ -27,15 +27,17 @@ use std::collections::{BTreeMap, BTreeSet};
 /// Values for the free variables.
 pub type Point = BTreeMap<Name, Q>;
 
-/// A constraint set with its index.
+/// A constraint set with its index and, for each variable (by position
+/// in the sampler's list), the variables it shares a constraint with.
 #[derive(Clone, Debug)]
 struct Rules {
     c: Constraints,
     ix: Indexed,
+    neighbours: Vec<Vec<usize>>,
 }
 
 impl Rules {
-    fn new(mut c: Constraints) -> Rules {
+    fn new(mut c: Constraints, index: &BTreeMap<Name, usize>) -> Rules {
         crate::limits::tick();
         // a product of equal symbols repeats its rules: keep each once
         for v in [&mut c.ge, &mut c.eq, &mut c.integral] {
@@ -43,7 +45,25 @@ impl Rules {
             v.dedup();
         }
         let ix = Indexed::new(&c);
-        Rules { c, ix }
+        let mut neighbours: Vec<BTreeSet<usize>> = vec![BTreeSet::new(); index.len()];
+        for l in c.ge.iter().chain(&c.eq).chain(&c.integral) {
+            let vs: Vec<usize> = l.vars().filter_map(|v| index.get(v).copied()).collect();
+            for &a in &vs {
+                for &b in &vs {
+                    if a != b {
+                        neighbours[a].insert(b);
+                    }
+                }
+            }
+        }
+        Rules {
+            c,
+            ix,
+            neighbours: neighbours
+                .into_iter()
+                .map(|n| n.into_iter().collect())
+                .collect(),
+        }
     }
 }
 
@@ -107,6 +127,7 @@ pub enum Count {
 #[derive(Clone, Debug)]
 pub struct Sampler {
     vars: Vec<(Name, Kind)>,
+    index: BTreeMap<Name, usize>,
     base: Rules,
     per_term: Vec<Rules>,
     /// for each per-term rule set, the triads it implies
@@ -246,19 +267,25 @@ impl Sampler {
                 extend(&mut base, &tr.holds());
             }
         }
-        let merge = |c: &Constraints| {
-            let mut m = base.clone();
-            extend(&mut m, c);
-            Rules::new(m)
-        };
-        let per_term: Vec<Rules> = per_term.iter().map(merge).collect();
-        let all = merge(&all);
         // angular momenta first: projection ranges depend on them
         let mut vars: Vec<(Name, Kind)> = kinds.into_iter().collect();
         vars.sort_by_key(|(_, k)| *k);
+        let index: BTreeMap<Name, usize> = vars
+            .iter()
+            .enumerate()
+            .map(|(i, (n, _))| (n.clone(), i))
+            .collect();
+        let merge = |c: &Constraints| {
+            let mut m = base.clone();
+            extend(&mut m, c);
+            Rules::new(m, &index)
+        };
+        let per_term: Vec<Rules> = per_term.iter().map(merge).collect();
+        let all = merge(&all);
         Sampler {
             vars,
-            base: Rules::new(base),
+            base: Rules::new(base, &index),
+            index,
             per_term,
             per_term_triads,
             all,
@@ -321,7 +348,9 @@ impl Sampler {
     }
 
     /// One attempt at a random point under `rules`, with one variable
-    /// pinned first when `pinned` says so.
+    /// pinned first when `pinned` says so. The most constrained variable
+    /// goes next; after each choice only the ranges of the variables that
+    /// share a constraint with it are computed again.
     fn try_point(
         &self,
         rules: &Rules,
@@ -330,36 +359,50 @@ impl Sampler {
         pinned: Option<(usize, Q)>,
     ) -> Option<Point> {
         crate::limits::tick();
+        let n = self.vars.len();
         let mut env = Point::new();
-        let mut left: Vec<usize> = (0..self.vars.len()).collect();
+        let mut left = vec![true; n];
+        let mut ranges: Vec<Option<(u64, Range)>> = vec![None; n];
+        let assign = |i: usize, x: Q, env: &mut Point, ranges: &mut Vec<Option<(u64, Range)>>| {
+            env.insert(self.vars[i].0.clone(), x);
+            for &k in &rules.neighbours[i] {
+                ranges[k] = None;
+            }
+        };
+        let mut remaining = n;
         if let Some((i, x)) = pinned {
             let (v, k) = &self.vars[i];
             let r = self.range(&rules.ix, v, *k, &env, max_j);
             if !r.values().is_some_and(|vs| vs.contains(&x)) {
                 return None;
             }
-            env.insert(v.clone(), x);
-            left.retain(|&k| k != i);
+            assign(i, x, &mut env, &mut ranges);
+            left[i] = false;
+            remaining -= 1;
         }
-        while !left.is_empty() {
+        while remaining > 0 {
             // the most constrained variable next
-            let mut best: Option<(usize, u64, Range)> = None;
-            for (pos, &i) in left.iter().enumerate() {
-                let (v, k) = &self.vars[i];
-                let r = self.range(&rules.ix, v, *k, &env, max_j);
-                let n = r.count().unwrap_or(u64::MAX);
-                if best.as_ref().is_none_or(|b| n < b.1) {
-                    best = Some((pos, n, r));
+            let mut best: Option<(usize, u64)> = None;
+            for i in (0..n).filter(|&i| left[i]) {
+                if ranges[i].is_none() {
+                    let (v, k) = &self.vars[i];
+                    let r = self.range(&rules.ix, v, *k, &env, max_j);
+                    ranges[i] = Some((r.count().unwrap_or(u64::MAX), r));
+                }
+                let c = ranges[i].as_ref().unwrap().0;
+                if best.is_none_or(|b| c < b.1) {
+                    best = Some((i, c));
                 }
             }
-            let (pos, n, r) = best.unwrap();
-            if n == 0 || n == u64::MAX {
+            let (i, count) = best.unwrap();
+            if count == 0 || count == u64::MAX {
                 return None;
             }
-            let vals = r.values().unwrap();
+            let vals = ranges[i].as_ref().unwrap().1.values().unwrap();
             let x = vals[rng.below(vals.len() as u64) as usize];
-            let i = left.remove(pos);
-            env.insert(self.vars[i].0.clone(), x);
+            assign(i, x, &mut env, &mut ranges);
+            left[i] = false;
+            remaining -= 1;
         }
         Self::satisfies(&rules.c, &env).then_some(env)
     }
@@ -418,7 +461,7 @@ impl Sampler {
                     .clone()
             };
             extend(&mut c, &tr.broken(rng.below(4)));
-            let rules = Rules::new(c);
+            let rules = Rules::new(c, &self.index);
             if let Some(p) = self.try_point(&rules, rng, max_j, None) {
                 return Some(p);
             }
