@@ -36,3 +36,33 @@ fn every_catalog_entry_holds() {
         );
     }
 }
+
+/// The README's list of references is the bibliography in full, and every
+/// work the bibliography holds is listed there.
+#[test]
+fn the_readme_lists_every_cited_work() {
+    let readme = include_str!("../README.md");
+    let section = readme
+        .split("## References")
+        .nth(1)
+        .expect("the README has a References section");
+    for w in recoup::rules::source::BIBLIOGRAPHY {
+        let line = format!("- {}: {}", w.short, w.full);
+        assert!(section.contains(&line), "the README lacks: {line}");
+    }
+    let listed = section
+        .lines()
+        .take_while(|l| !l.starts_with("## "))
+        .filter(|l| l.starts_with("- "))
+        .count();
+    assert_eq!(listed, recoup::rules::source::BIBLIOGRAPHY.len());
+    // no rule cites a working note instead of the literature
+    for r in catalog() {
+        let text = r.source.text();
+        assert!(
+            !text.contains(".md"),
+            "{} cites a file, not a publication: {text}",
+            r.name
+        );
+    }
+}
