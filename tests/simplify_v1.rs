@@ -146,3 +146,36 @@ fn every_step_is_recorded_with_its_source_and_verification() {
     }
     assert!(out.nonzero > 0);
 }
+
+/// The trace tells the truth: for every left side of the identity list
+/// (sources in tests/data/identities.txt) the last step is exactly the
+/// result, and each step starts where the one before ended.
+#[test]
+fn the_last_step_is_the_printed_result() {
+    let text = include_str!("data/identities.txt");
+    let mut n = 0;
+    for line in text.lines().map(str::trim) {
+        if line.is_empty() || line.starts_with('#') || line.starts_with('[') {
+            continue;
+        }
+        let e = parse(line.trim_start_matches("==").trim()).unwrap();
+        let out = simplify(&e, &Options::default()).unwrap_or_else(|err| panic!("{line}: {err}"));
+        if let Some(last) = out.steps.last() {
+            assert_eq!(last.after, out.result, "{line}");
+            n += 1;
+        }
+        for w in out.steps.windows(2) {
+            assert_eq!(
+                w[0].after, w[1].before,
+                "{line}: {} then {}",
+                w[0].rule, w[1].rule
+            );
+        }
+    }
+    assert!(n >= 20, "only {n} inputs had steps");
+    // the reported case: a sum step followed by the normal form's tidy
+    let e = parse("sum(x: (2*x+1) {a, b, x; a, b, c})").unwrap();
+    let out = simplify(&e, &Options::default()).unwrap();
+    assert_eq!(out.steps.last().unwrap().after, out.result);
+    assert_eq!(out.result.to_string(), "(-1)^(2*c) tri(a, b, c)");
+}
