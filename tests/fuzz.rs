@@ -152,27 +152,16 @@ fn expr(rng: &mut Rng, depth: u32) -> String {
     out
 }
 
-/// A random coupling tree over some leaves.
+/// A random coupling tree over some leaves (the library's random shape),
+/// with a random name for the intermediates and a random total.
 fn tree(rng: &mut Rng, leaves: &[String]) -> String {
-    let mut items: Vec<String> = leaves.to_vec();
-    for i in (1..items.len()).rev() {
-        let k = rng.below(i as u64 + 1) as usize;
-        items.swap(i, k);
+    let prefix = pick(rng, &["x", "y", "s", "t"]);
+    let t = recoup::recouple::random_tree_over(leaves, prefix, rng);
+    let total = pick(rng, &["J", "J", "2", "1/2", "3/2"]);
+    match t.strip_suffix(" J") {
+        Some(body) => format!("{body} {total}"),
+        None => t,
     }
-    let mut count = 0;
-    while items.len() > 1 {
-        let i = rng.below(items.len() as u64 - 1) as usize;
-        let a = items.remove(i);
-        let b = items.remove(i);
-        count += 1;
-        let label = if items.is_empty() {
-            pick(rng, &["J", "J", "2", "1/2", "3/2"]).to_string()
-        } else {
-            format!("{}{count}", pick(rng, &["x", "y", "s", "t"]))
-        };
-        items.insert(i, format!("({a}, {b}) {label}"));
-    }
-    items.pop().unwrap_or_default()
 }
 
 /// Byte-level mutations of a text: deletion, insertion of a grammar

@@ -91,17 +91,6 @@ fn times(e: &Expr, t: &Term) -> Expr {
     out
 }
 
-fn swapped(f: &Factor, i: usize, k: usize) -> Factor {
-    let mut vals: Vec<Lin> = f.lins().into_iter().cloned().collect();
-    vals.swap(i, k);
-    let mut idx = 0;
-    f.map_lins(&mut |_| {
-        let v = vals[idx].clone();
-        idx += 1;
-        v
-    })
-}
-
 /// The candidate mutations of a right side (before witnesses are sought).
 fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
     let mut out = Vec::new();
@@ -144,7 +133,7 @@ fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
             if f.is_symbol() {
                 for i in 0..n {
                     for k in i + 1..n {
-                        let g = swapped(f, i, k);
+                        let g = f.with_args_swapped(i, k);
                         if g == *f {
                             continue;
                         }

@@ -68,6 +68,19 @@ impl Factor {
         }
     }
 
+    /// The same factor with arguments `i` and `k` (in `lins` order)
+    /// exchanged.
+    pub fn with_args_swapped(&self, i: usize, k: usize) -> Factor {
+        let mut vals: Vec<Lin> = self.lins().into_iter().cloned().collect();
+        vals.swap(i, k);
+        let mut idx = 0;
+        self.map_lins(&mut |_| {
+            let v = vals[idx].clone();
+            idx += 1;
+            v
+        })
+    }
+
     /// Renames variables.
     pub fn rename(&self, map: &BTreeMap<Name, Name>) -> Factor {
         self.map_lins(&mut |l| l.rename(map))

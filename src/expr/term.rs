@@ -156,12 +156,22 @@ impl Term {
 
     /// Renames bound variables so none of them is in `avoid`.
     pub fn freshen(&self, avoid: &BTreeSet<Name>) -> Term {
+        self.rename_bound(avoid, |b| avoid.contains(b).then(|| b.primed()))
+    }
+
+    /// Renames each bound variable for which `start` gives a name: that
+    /// name, primed until it is neither a variable of the term, nor in
+    /// `avoid`, nor already chosen.
+    pub fn rename_bound(
+        &self,
+        avoid: &BTreeSet<Name>,
+        start: impl Fn(&Name) -> Option<Name>,
+    ) -> Term {
         let mut taken: BTreeSet<Name> = avoid.clone();
         taken.extend(self.all_vars());
         let mut map = BTreeMap::new();
         for b in &self.bound {
-            if avoid.contains(b) {
-                let mut n = b.primed();
+            if let Some(mut n) = start(b) {
                 while taken.contains(&n) {
                     n = n.primed();
                 }

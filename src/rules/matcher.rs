@@ -26,23 +26,9 @@ fn internal(n: &Name) -> Name {
 /// by a rewrite) given a readable name: the rule's name, primed until it
 /// is new to the term.
 pub fn readable_bound(t: &Term) -> Term {
-    let mut taken: BTreeSet<Name> = t.all_vars();
-    let mut map = BTreeMap::new();
-    for b in &t.bound {
-        if let Some(plain) = b.as_str().strip_prefix('\u{2}') {
-            let mut n = Name::new(plain);
-            while taken.contains(&n) {
-                n = n.primed();
-            }
-            taken.insert(n.clone());
-            map.insert(b.clone(), n);
-        }
-    }
-    if map.is_empty() {
-        t.clone()
-    } else {
-        t.rename(&map)
-    }
+    t.rename_bound(&BTreeSet::new(), |b| {
+        b.as_str().strip_prefix('\u{2}').map(Name::new)
+    })
 }
 
 /// A rule prepared for matching (its variables renamed apart).

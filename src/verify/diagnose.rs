@@ -571,7 +571,7 @@ fn diagnose_values(
             let n = f.lins().len();
             for i in 0..n {
                 for k in i + 1..n {
-                    let swapped = swap_args(f, i, k);
+                    let swapped = f.with_args_swapped(i, k);
                     if swapped == *f {
                         continue;
                     }
@@ -602,17 +602,6 @@ fn diagnose_values(
         }
     }
     None
-}
-
-fn swap_args(f: &Factor, i: usize, k: usize) -> Factor {
-    let mut idx = 0;
-    let mut vals: Vec<Lin> = f.lins().into_iter().cloned().collect();
-    vals.swap(i, k);
-    f.map_lins(&mut |_| {
-        let v = vals[idx].clone();
-        idx += 1;
-        v
-    })
 }
 
 /// Words for a repair factor: "(-1)^(a+b)", "hat(j)^2/2", ...
