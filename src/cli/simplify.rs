@@ -80,11 +80,17 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
                 } else {
                     " \\\\"
                 };
+                // each step labelled with its published source (the rule's
+                // name where it has none)
+                let label = if s.source.citations.is_empty() && s.source.note.is_none() {
+                    s.rule.clone()
+                } else {
+                    s.source.latex()
+                };
                 outln!(
                     io,
-                    "  &= {} && \\text{{{}}}{end}",
+                    "  &= {} && \\text{{{label}}}{end}",
                     latex::expr(&s.after),
-                    s.rule
                 )?;
             }
             outln!(io, "\\end{{align*}}")?;
