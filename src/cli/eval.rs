@@ -28,6 +28,13 @@ pub struct EvalArgs {
     batch: bool,
 }
 
+impl EvalArgs {
+    /// True for `--batch`.
+    pub fn is_batch(&self) -> bool {
+        self.batch
+    }
+}
+
 /// Parses `a=1,b=1/2,m=-3/2`; a name given twice is an error.
 pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
     let mut out = Assignment::new();
@@ -112,7 +119,7 @@ fn text_line(exact: &Option<Surd>, f: f64) -> String {
     }
 }
 
-pub fn run(a: EvalArgs, io: &mut Io) -> Result<(), Failure> {
+pub fn run(a: EvalArgs, io: &mut Io, seconds: f64) -> Result<(), Failure> {
     let at = match &a.at {
         Some(s) => parse_assignment(s)?,
         None => Assignment::new(),
@@ -123,7 +130,7 @@ pub fn run(a: EvalArgs, io: &mut Io) -> Result<(), Failure> {
                 "--batch reads expressions from standard input; give no EXPR",
             ));
         }
-        return batch(&a, &at, io);
+        return batch(&a, &at, io, seconds);
     }
     let Some(text) = &a.expr else {
         return Err(Failure::input("eval needs an expression (or --batch)"));
@@ -164,8 +171,11 @@ fn next_lines(io: &mut Io, buf: &mut Vec<u8>) -> Result<Option<Vec<Vec<u8>>>, Fa
     ))
 }
 
-fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io) -> Result<(), Failure> {
+/// The batch: each line has the time limit to itself (a long batch is
+/// not cut off; one slow line is reported and the run goes on).
+fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(), Failure> {
     let mut failed = 0usize;
+    let mut slow = 0usize;
     let mut notes = Vec::new();
     let mut buf = Vec::new();
     let mut n = 0usize;
@@ -185,7 +195,20 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io) -> Result<(), Failure> {
                 for note in crate::syntax::literal_zero_notes(&e) {
                     notes.push(format!("line {n}: {note}"));
                 }
-                answer(&e, at, a.float).map(Some).map_err(|e| e.to_string())
+                match crate::limits::within_time_limit(Some(seconds), || answer(&e, at, a.float)) {
+                    Ok(Err(e)) if matches!(Failure::from(e.clone()), Failure::Limit(_)) => {
+                        slow += 1;
+                        Err(format!("limit reached: {e}"))
+                    }
+                    Ok(r) => r.map(Some).map_err(|e| e.to_string()),
+                    Err(up) => {
+                        slow += 1;
+                        Err(format!(
+                            "limit reached: this line took longer than the time limit of {} s (raise it with --time-limit SECONDS)",
+                            up.seconds
+                        ))
+                    }
+                }
             });
             match res {
                 Ok(None) => {}
@@ -213,6 +236,12 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io) -> Result<(), Failure> {
     }
     for note in notes {
         writeln!(io.err, "recoup: note: {note}")?;
+    }
+    if slow > 0 && slow == failed {
+        return Err(Failure::limit(format!(
+            "{slow} line{} of the batch reached a limit (see above)",
+            if slow == 1 { "" } else { "s" }
+        )));
     }
     if failed > 0 {
         return Err(Failure::input(format!(

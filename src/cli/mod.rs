@@ -254,9 +254,9 @@ fn time_limit_seconds(s: f64) -> Result<f64, Failure> {
     Ok(s.min(1e9))
 }
 
-fn dispatch(command: Command, io: &mut Io) -> Result<i32, Failure> {
+fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure> {
     match command {
-        Command::Eval(a) => eval::run(a, io).map(|_| EXIT_OK),
+        Command::Eval(a) => eval::run(a, io, seconds).map(|_| EXIT_OK),
         Command::Table(a) => table::run(a, io).map(|_| EXIT_OK),
         Command::Simplify(a) => simplify::run(a, io).map(|_| EXIT_OK),
         Command::Check(a) => check::run(a, io),
@@ -319,7 +319,13 @@ where
         Err(f) => return report(f, io),
     };
     let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
-        within_time_limit(Some(seconds), || dispatch(cli.command, io))
+        // a batch gives each line the time limit; everything else has it
+        // for the whole command
+        let whole = match &cli.command {
+            Command::Eval(a) if a.is_batch() => None,
+            _ => Some(seconds),
+        };
+        within_time_limit(whole, || dispatch(cli.command, io, seconds))
     }));
     let code = match outcome {
         Ok(Ok(Ok(code))) => code,

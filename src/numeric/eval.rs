@@ -43,7 +43,7 @@ pub const MAX_EXACT_J: i64 = 20_000;
 pub const MAX_FLOAT_J: i64 = 50_000;
 
 /// Why an expression could not be evaluated.
-#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum EvalError {
     /// A free variable without a value.
     #[error("{0} has no value (give it with --at {0}=...)")]
@@ -102,14 +102,16 @@ pub enum EvalError {
     #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
     SymbolTooLarge(String, i64),
     /// A symbol that would take longer than the time left.
-    #[error("{what} takes about {estimate} s here, more than the {left} s left of the time limit")]
+    #[error(
+        "{what} takes about {estimate:.0} s here, more than the {left:.1} s left of the time limit"
+    )]
     TooSlow {
         /// the symbol, in words
         what: String,
-        /// the estimated time, whole seconds
-        estimate: u64,
-        /// the time left, whole seconds
-        left: u64,
+        /// the estimated time, seconds
+        estimate: f64,
+        /// the time left, seconds
+        left: f64,
     },
     /// A sum with too many points.
     #[error("the sums visit more points than the evaluation budget allows; refusing to go on")]
@@ -1013,8 +1015,8 @@ impl<F: Field> Evaluator<F> {
                                                 kind.words(),
                                                 crate::expr::lin::fmt_q(&Q::new(biggest, 2))
                                             ),
-                                            estimate: cost.ceil() as u64,
-                                            left: left.floor() as u64,
+                                            estimate: cost,
+                                            left,
                                         });
                                     }
                                 }
