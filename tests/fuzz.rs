@@ -20,7 +20,7 @@ use std::time::{Duration, Instant};
 /// Time limit passed to every run (seconds).
 const TIME_LIMIT: &str = "2";
 /// Most a run may take beyond its time limit before it counts as a hang.
-const GRACE: Duration = Duration::from_secs(20);
+const GRACE: Duration = Duration::from_secs(8);
 
 fn pick<'a>(rng: &mut Rng, xs: &[&'a str]) -> &'a str {
     xs[rng.below(xs.len() as u64) as usize]

@@ -67,6 +67,7 @@ fn lcm_den(ls: &[&Lin]) -> i128 {
 fn echelon(mut rows: Vec<Vec<i128>>, ncols: usize) -> Vec<(usize, Vec<i128>)> {
     let mut out = Vec::new();
     for col in 0..ncols {
+        crate::limits::tick();
         loop {
             // rows with a nonzero entry in col
             let nz: Vec<usize> = (0..rows.len()).filter(|&i| rows[i][col] != 0).collect();
@@ -332,8 +333,10 @@ impl PhaseLattice {
         let mut best = self.vec_badness(&v);
         let mut cand = vec![0i128; v.len()];
         for _ in 0..32 {
+            crate::limits::check_now();
             let mut improved = false;
             for g in &self.gens {
+                crate::limits::tick();
                 for sign in [1i128, -1] {
                     for ((c, x), y) in cand.iter_mut().zip(&v).zip(g) {
                         *c = x + sign * y;
