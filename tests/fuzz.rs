@@ -521,4 +521,37 @@ fn the_reported_defects_stay_fixed() {
     assert_eq!(run_case(&["eval".into(), signs], b""), Ok(2));
     let sums = "sum(x: ".repeat(5_000) + "1";
     assert_eq!(run_case(&["eval".into(), sums], b""), Ok(2));
+    // 300 independent 3j: refused before work (a size limit)
+    let many: Vec<String> = (0..300)
+        .map(|i| format!("(a{i}, b{i}, c{i}; m{i}, n{i}, p{i})"))
+        .collect();
+    assert_eq!(run_case(&["simplify".into(), many.join(" ")], b""), Ok(3));
+    // a recoupling of 80 leaves stops at the time limit, on time
+    let leaves: Vec<String> = (1..=80).map(|k| format!("j{k}")).collect();
+    let mut rng = Rng::new(5);
+    let from = recoup::recouple::random_tree_over(&leaves, "a", &mut rng);
+    let to = recoup::recouple::random_tree_over(&leaves, "b", &mut rng);
+    let got = run_case(&["recouple".into(), from, to], b"");
+    assert!(matches!(got, Ok(0) | Ok(3)), "{got:?}");
+    // the sum over two projections at j = 200 and the exact 9j at j = 2000
+    // and 20000 end within the time limit (or are refused at once)
+    for e in [
+        "sum(m1, m2: (200, 200, 200; m1, m2, -m1-m2)^2)",
+        "sum(x, y: {100, 100, x; 100, 100, y})",
+        "{2000, 2000, 2000; 2000, 2000, 2000; 2000, 2000, 2000}",
+        "{20000, 20000, 20000; 20000, 20000, 20000; 20000, 20000, 20000}",
+    ] {
+        let got = run_case(&["eval".into(), e.into()], b"");
+        assert!(matches!(got, Ok(0) | Ok(3)), "{e}: {got:?}");
+    }
+    let got = run_case(
+        &[
+            "recouple".into(),
+            "--matrix".into(),
+            "((100, 100) s, 100) J".into(),
+            "(100, (100, 100) t) J".into(),
+        ],
+        b"",
+    );
+    assert_eq!(got, Ok(3));
 }
