@@ -91,6 +91,9 @@ fn phases_and_selection_rules_in_the_normal_form() {
     assert_eq!(simp("(a, b, c; 1, 0, 0)"), "0");
     assert_eq!(simp("{a, b, c; d, e, f} tri(a, a+2, 1)"), "0");
     assert_eq!(simp("(a, b, 1/2; m, -m, 1/2)"), "0");
+    // triads that give s both parities (s + 7 + 1/2 and s + 1/2 + 1/2
+    // integers): zero everywhere, not a phase (-1)^(1/2)
+    assert_eq!(simp("(-1)^(s) {s, 7, 1/2; t, 1/2, 1/2}"), "0");
     // a literal projection that does not belong to its j is bad input
     let e = parse("(a, a, 1/2; m, -m, 0)").unwrap_err();
     assert_eq!(e.column, 20, "{e}");

@@ -51,6 +51,14 @@ pub fn selection_zero(t: &Term) -> bool {
             }
         }
     }
+    // integrality rules that contradict each other (two triads that give
+    // one variable both parities): no point makes the term nonzero
+    let (ints, zeros) = crate::algebra::lattice::integral_forms(t);
+    if !ints.is_empty()
+        && PhaseLattice::new(&t.kinds(), &ints, &zeros).is_integer(&Lin::constant(Q::new(1, 2)))
+    {
+        return true;
+    }
     // a symmetry that maps a symbol to itself with the phase -1
     let lattice = PhaseLattice::of_term(t);
     for f in t.factors.iter().filter(|f| f.is_symbol()) {

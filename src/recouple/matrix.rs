@@ -107,6 +107,26 @@ fn labeling_counts(t: &CouplingTree) -> std::collections::BTreeMap<Q, u128> {
     }
 }
 
+/// For numeric leaves: an error naming the allowed totals when no state of
+/// the tree has its (numeric or fixed) labels.
+pub fn reachable(t: &CouplingTree) -> Result<(), RecoupleError> {
+    if !t.leaves().iter().all(|l| l.is_constant()) || !labeling_counts(t).is_empty() {
+        return Ok(());
+    }
+    let allowed = labeling_counts(&with_free_root(t));
+    if allowed.is_empty() {
+        return Err(RecoupleError::NoStates(format!(
+            "no state has the numeric intermediates given in {t}: one of its couplings breaks the triangle rule"
+        )));
+    }
+    let totals: Vec<String> = allowed.keys().map(qstr).collect();
+    Err(RecoupleError::NoStates(format!(
+        "no state of these leaves has the total {}: the totals the triangle rules allow are {}",
+        t.label(),
+        totals.join(", ")
+    )))
+}
+
 /// Most labelings (summed over every total) a matrix request may list.
 pub const MAX_LABELINGS: u128 = 20_000;
 
@@ -121,17 +141,9 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
     }
     crate::recouple::validate(from, to)?;
     // sizes first: no block larger than MAX_DIM, no listing beyond the limit
+    reachable(from)?;
     let counts_from = labeling_counts(from);
     let counts_to = labeling_counts(to);
-    if counts_from.is_empty() {
-        let allowed = labeling_counts(&with_free_root(from));
-        let totals: Vec<String> = allowed.keys().map(qstr).collect();
-        return Err(RecoupleError::NoStates(format!(
-            "no state of these leaves has the total {}: the totals allowed by the triangle rules are {}",
-            from.label(),
-            totals.join(", ")
-        )));
-    }
     for (jt, n) in &counts_from {
         if *n > MAX_DIM as u128 {
             return Err(RecoupleError::Limit(format!(

@@ -504,6 +504,9 @@ pub fn recouple_as(
     form: Form,
 ) -> Result<Recoupling, RecoupleError> {
     validate(from, to)?;
+    // numeric leaves and a numeric total no state has: say so, not 0
+    matrix::reachable(from)?;
+    matrix::reachable(to)?;
     let (f, t, placeholders) = name_numeric_leaves(from, to);
     let mut ov = overlap(&f, &t);
     let mut definition = overlap_definition(&f, &t);
