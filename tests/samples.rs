@@ -51,8 +51,12 @@ fn the_other_samples() {
     let claims = include_str!("../samples/toy-claims.txt");
     let (code, _) = run(&["check", &line(claims, 3), &line(claims, 4)], None);
     assert_eq!(code, 0);
-    let (code, _) = run(&["check", &line(claims, 3), "1"], None);
+    let (code, out) = run(&["check", &line(claims, 3), "1"], None);
     assert_eq!(code, 1);
+    assert!(
+        out.contains("the right side lacks tri(a, b, c)") && out.contains("(-1)^(2*a+2*b)"),
+        "{out}"
+    );
     let schemes = include_str!("../samples/toy-schemes.txt");
     let (code, out) = run(&["recouple", &line(schemes, 2), &line(schemes, 3)], None);
     assert_eq!(code, 0);
