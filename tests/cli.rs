@@ -363,3 +363,59 @@ fn recouple_results_and_errors() {
         assert!(err.contains(what), "{f} | {t}: {err}");
     }
 }
+
+#[test]
+fn declarations_on_the_command_line_and_in_the_text() {
+    // the scalar-product sum of the reduction issue: k is a tensor rank,
+    // an integer in the physics
+    let sum = "sum(q: (-1)^q (a, k, b; 0, q, -q) (a, k, b; 0, -q, q))";
+    // undeclared, a point with half-odd k is named with the phase as
+    // written and the declaration that rules it out
+    let (code, out, err) = run(&["eval", sum, "--at", "a=1,b=1/2,k=3/2"], None);
+    assert_eq!(code, 2);
+    assert!(out.is_empty());
+    insta::assert_snapshot!(err, @"recoup: at a = 1, b = 1/2, k = 3/2, q = -1/2, the phase (-1)^q (line 1, column 8) has the exponent -1/2, which is not an integer. If b and k only take integer values, declare so: --integer b,k (or begin the expression with `integer b, k;`)");
+    // declared on the command line or in the text: the same result
+    let (code, by_option, err) = run(&["simplify", "--integer", "k,q", sum], None);
+    assert_eq!(code, 0, "{err}");
+    let text = format!("integer k, q; {sum}");
+    let (code, by_text, _) = run(&["simplify", &text], None);
+    assert_eq!(code, 0);
+    assert_eq!(by_option, by_text);
+    let (_, json, _) = run(&["simplify", "--json", "--integer", "k", sum], None);
+    assert!(json.contains(r#""declared":"integer k;""#), "{json}");
+    // a value against the declaration is bad input
+    let (code, _, err) = run(
+        &["eval", "--integer", "k", sum, "--at", "a=1,b=1/2,k=3/2"],
+        None,
+    );
+    assert_eq!(code, 2);
+    assert!(err.contains("k = 3/2 is not integer"), "{err}");
+    // the domain of check follows the declaration: (-1)^(2k) = 1 for
+    // integer k, -1 for half-odd k (common practice, no source)
+    let lhs = "(-1)^(2*k) {a, b, k; c, d, e}";
+    let rhs = "{a, b, k; c, d, e}";
+    assert_eq!(run(&["check", lhs, rhs], None).0, 1);
+    assert_eq!(run(&["check", "--integer", "k", lhs, rhs], None).0, 0);
+    assert_eq!(run(&["check", "--half-odd", "k", lhs, rhs], None).0, 1);
+    assert_eq!(
+        run(&["check", "--half-odd", "k", lhs, &format!("-{rhs}")], None).0,
+        0
+    );
+    // clashing declarations and bad names
+    let (code, _, err) = run(&["eval", "--integer", "k", "--half-odd", "k", "1"], None);
+    assert_eq!(code, 2);
+    assert!(err.contains("declared both integer and half-odd"), "{err}");
+    assert_eq!(run(&["eval", "--integer", "2k", "1"], None).0, 2);
+    // in a batch a line's declarations hold for that line only
+    let (code, out, err) = run(
+        &["eval", "--batch", "--at", "k=1"],
+        Some("integer k; k+1\nhalf-odd k; k\nk\n"),
+    );
+    assert_eq!(code, 2);
+    assert_eq!(
+        out,
+        "2\t2\nerror\tline 2: k = 1 is not half-odd, and k is declared half-odd\n1\t1\n"
+    );
+    assert!(err.contains("line 2: k = 1 is not half-odd"), "{err}");
+}

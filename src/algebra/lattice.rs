@@ -31,9 +31,22 @@ pub struct PhaseLattice {
     gens: Vec<Vec<i128>>,
 }
 
-/// Forms known to be integers in a term, and forms known to be zero.
+/// Forms known to be integers in a term, and forms known to be zero
+/// (declared parities included).
 pub fn integral_forms(t: &Term) -> (Vec<Lin>, Vec<Lin>) {
+    integral_forms_except(t, None)
+}
+
+/// `integral_forms` without the declaration of `skip` (to test whether
+/// the rest of the term implies it).
+pub fn integral_forms_except(t: &Term, skip: Option<&Name>) -> (Vec<Lin>, Vec<Lin>) {
     let mut ints = Vec::new();
+    if !super::declare::nothing_declared() {
+        let vars = t.all_vars();
+        ints.extend(super::declare::declared_forms(
+            vars.iter().filter(|v| Some(*v) != skip),
+        ));
+    }
     let mut zeros = Vec::new();
     for f in &t.factors {
         for [a, b, c] in f.triads() {

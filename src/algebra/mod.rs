@@ -2,6 +2,7 @@
 //! linear constraints (and, later, phases modulo integrality and symmetry
 //! canonical forms).
 
+pub mod declare;
 pub mod lattice;
 pub mod normal;
 pub mod selection;

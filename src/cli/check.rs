@@ -160,6 +160,7 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
                 "mismatches": r.mismatches,
                 "broken_triads": r.broken_triads,
                 "exhaustive": r.domain.is_some(),
+                "declared": super::simplify::declared_text(),
                 "domain_points": r.domain,
                 "counterexample": cx,
                 "diagnosis": diag,

@@ -1,6 +1,6 @@
 //! `recoup eval`: one expression, or `--batch` lines from standard input.
 
-use super::input::{decode, parse_expr, read_arg, validate_literals};
+use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
 use super::{outln, Failure, Io};
 use crate::expr::{Name, Q};
 use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
@@ -137,7 +137,7 @@ pub fn run(a: EvalArgs, io: &mut Io, seconds: f64) -> Result<(), Failure> {
     };
     let text = read_arg(text, io)?;
     let e = parse_expr(&text)?;
-    let (exact, f) = answer(&e, &at, a.float)?;
+    let (exact, f) = answer(&e, &at, a.float).map_err(|err| explain_phase(&text, &e, err))?;
     validate_literals(&e, &text, io)?;
     if a.json {
         outln!(io, "{}", json_line(&exact, f))?;
@@ -191,11 +191,24 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                 if line.trim().is_empty() || line.trim_start().starts_with('#') {
                     return Ok(None);
                 }
-                let e = crate::syntax::parse(&line).map_err(|e| format!("parse error at {e}"))?;
+                // a line's declarations hold for that line only
+                let (line_declared, e) = crate::syntax::parse_declared(&line)
+                    .map_err(|e| format!("parse error at {e}"))?;
+                let mut declared = crate::algebra::declare::current();
+                declared.extend(&line_declared).map_err(|c| c.to_string())?;
                 for note in crate::syntax::literal_zero_notes(&e) {
                     notes.push(format!("line {n}: {note}"));
                 }
-                match crate::limits::within_time_limit(Some(seconds), || answer(&e, at, a.float)) {
+                let work = || {
+                    if let Some((name, parity, _)) = crate::algebra::declare::unimplied_summed(&e) {
+                        return Ok(Err(EvalError::Arithmetic(format!(
+                            "{name} is summed and declared {}, but its values are fixed by the names it couples to; declare those instead",
+                            parity.word()
+                        ))));
+                    }
+                    crate::limits::within_time_limit(Some(seconds), || answer(&e, at, a.float))
+                };
+                match crate::algebra::declare::scoped(&declared, work) {
                     Ok(Err(e)) if matches!(Failure::from(e.clone()), Failure::Limit(_)) => {
                         slow += 1;
                         Err(format!("limit reached: {e}"))

@@ -17,6 +17,8 @@ mod recouple;
 mod simplify;
 mod table;
 
+use crate::algebra::declare::{self, Declarations, Parity};
+use crate::expr::Name;
 use crate::limits::within_time_limit;
 use clap::{Parser, Subcommand};
 use std::ffi::OsString;
@@ -147,6 +149,42 @@ pub struct Cli {
     /// stop with exit code 3 after this many seconds of work
     #[arg(long, global = true, value_name = "SECONDS", default_value_t = DEFAULT_TIME_LIMIT)]
     time_limit: f64,
+    /// names that only take integer values (0, 1, 2, ...), comma separated
+    #[arg(long, global = true, value_name = "NAMES", value_delimiter = ',')]
+    integer: Vec<String>,
+    /// names that only take half-odd values (1/2, 3/2, ...), comma separated
+    #[arg(
+        long = "half-odd",
+        global = true,
+        value_name = "NAMES",
+        value_delimiter = ','
+    )]
+    half_odd: Vec<String>,
+}
+
+/// The declarations of --integer and --half-odd.
+fn declarations_of(cli: &Cli) -> Result<Declarations, Failure> {
+    let mut d = Declarations::new();
+    for (names, parity, option) in [
+        (&cli.integer, Parity::Integer, "--integer"),
+        (&cli.half_odd, Parity::HalfOdd, "--half-odd"),
+    ] {
+        for n in names {
+            let n = n.trim();
+            let ok = n.chars().next().is_some_and(|c| c.is_ascii_alphabetic())
+                && n.trim_end_matches('\'')
+                    .chars()
+                    .all(|c| c.is_ascii_alphanumeric() || c == '_');
+            if !ok {
+                return Err(Failure::input(format!(
+                    "{option} takes names separated by commas (letters, digits, _, trailing primes); got {n:?}"
+                )));
+            }
+            d.declare(Name::new(n), parity)
+                .map_err(|c| Failure::input(c.to_string()))?;
+        }
+    }
+    Ok(d)
 }
 
 #[derive(Subcommand, Debug)]
@@ -318,6 +356,10 @@ where
         Ok(s) => s,
         Err(f) => return report(f, io),
     };
+    let declared = match declarations_of(&cli) {
+        Ok(d) => d,
+        Err(f) => return report(f, io),
+    };
     let outcome = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
         // a batch gives each line the time limit; everything else has it
         // for the whole command
@@ -325,7 +367,9 @@ where
             Command::Eval(a) if a.is_batch() => None,
             _ => Some(seconds),
         };
-        within_time_limit(whole, || dispatch(cli.command, io, seconds))
+        declare::scoped(&declared, || {
+            within_time_limit(whole, || dispatch(cli.command, io, seconds))
+        })
     }));
     let code = match outcome {
         Ok(Ok(Ok(code))) => code,

@@ -31,6 +31,12 @@ pub struct SimplifyArgs {
     max_j: String,
 }
 
+/// The declarations in force, in the language (`integer k; half-odd s;`).
+pub fn declared_text() -> Option<String> {
+    let d = crate::algebra::declare::current();
+    (!d.is_empty()).then(|| d.to_string())
+}
+
 pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
     let e = parse_expr(&read_arg(&a.expr, io)?)?;
     let mut opts = Options {
@@ -56,6 +62,7 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
             "{}",
             serde_json::json!({
                 "input": out.input.to_string(),
+                "declared": declared_text(),
                 "result": out.result.to_string(),
                 "latex": latex::expr(&out.result),
                 "steps": steps,
@@ -101,6 +108,9 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
     }
     if a.steps {
         outln!(io, "input: {}", out.input)?;
+        if let Some(d) = declared_text() {
+            outln!(io, "declared: {d}")?;
+        }
         super::print_steps(io, &out.steps, &out.notes)?;
         outln!(
             io,

@@ -42,8 +42,10 @@ struct Patterns {
 fn patterns() -> &'static Patterns {
     static P: OnceLock<Patterns> = OnceLock::new();
     P.get_or_init(|| {
-        let p =
-            |n: &str| Pattern::new(rule(n)).unwrap_or_else(|| panic!("rule {n} is not a pattern"));
+        let p = |n: &str| {
+            crate::algebra::declare::suspended(|| Pattern::new(rule(n)))
+                .unwrap_or_else(|| panic!("rule {n} is not a pattern"))
+        };
         Patterns {
             cg: p("cg-to-3j"),
             theta: p("theta"),

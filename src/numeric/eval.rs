@@ -85,12 +85,27 @@ pub enum EvalError {
         jvalue: String,
     },
     /// A phase whose exponent is not an integer.
-    #[error("the phase (-1)^({exponent}) has the non-integer exponent {value} here")]
+    #[error(
+        "the phase (-1)^({exponent}) has the non-integer exponent {value} at {}",
+        point_text(at)
+    )]
     PhaseNotInteger {
-        /// the exponent as written
+        /// the exponent (as in the normal form)
         exponent: String,
         /// its value
         value: String,
+        /// every variable's value at that point (summed ones included)
+        at: Vec<(Name, Q)>,
+    },
+    /// A value against the variable's declared parity.
+    #[error("{name} = {value} is not {parity}, and {name} is declared {parity}")]
+    AgainstDeclaration {
+        /// the variable
+        name: Name,
+        /// its value
+        value: String,
+        /// the declared parity in words
+        parity: &'static str,
     },
     /// A summed variable with no finite range.
     #[error("the summed variable {0} is not bounded by any triangle rule or projection range in its term")]
@@ -699,6 +714,15 @@ fn qstr(q: &Q) -> String {
     crate::expr::lin::fmt_q(q)
 }
 
+/// `a = 1, m = -1/2` for a point.
+pub fn point_text(at: &[(Name, Q)]) -> String {
+    let parts: Vec<String> = at
+        .iter()
+        .map(|(n, q)| format!("{n} = {}", qstr(q)))
+        .collect();
+    parts.join(", ")
+}
+
 /// Checks user-given values: every free variable has a value that is a
 /// multiple of 1/2, angular momenta are nonnegative, and a projection
 /// written alone (or negated) in a column has |m| <= j and j - m integer.
@@ -725,6 +749,15 @@ pub fn check_assignment(e: &Expr, at: &Assignment) -> Result<(), EvalError> {
                 name: v.clone(),
                 value: qstr(val),
             });
+        }
+        if let Some(p) = crate::algebra::declare::parity_of(v) {
+            if !p.admits(*val) {
+                return Err(EvalError::AgainstDeclaration {
+                    name: v.clone(),
+                    value: qstr(val),
+                    parity: p.word(),
+                });
+            }
         }
     }
     let get = |n: &Name| at.get(n).copied();
@@ -1050,6 +1083,12 @@ impl<F: Field> Evaluator<F> {
                 return Err(EvalError::PhaseNotInteger {
                     exponent: text.clone(),
                     value: qstr(&ph.value(env)),
+                    at: c
+                        .names
+                        .iter()
+                        .zip(env.iter())
+                        .map(|(n, v)| (n.clone(), Q::new(*v, 2)))
+                        .collect(),
                 });
             }
             if (n / d2).rem_euclid(2) == 1 {

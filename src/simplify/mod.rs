@@ -372,11 +372,13 @@ fn sums_stay_bounded(e: &Expr) -> bool {
 fn sum_patterns() -> &'static [crate::rules::matcher::Pattern] {
     static P: std::sync::OnceLock<Vec<crate::rules::matcher::Pattern>> = std::sync::OnceLock::new();
     P.get_or_init(|| {
-        catalog()
-            .iter()
-            .filter(|r| r.kind == RuleKind::MomentumSum)
-            .filter_map(crate::rules::matcher::Pattern::new)
-            .collect()
+        crate::algebra::declare::suspended(|| {
+            catalog()
+                .iter()
+                .filter(|r| r.kind == RuleKind::MomentumSum)
+                .filter_map(crate::rules::matcher::Pattern::new)
+                .collect()
+        })
     })
 }
 

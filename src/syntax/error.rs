@@ -86,6 +86,8 @@ fn rule_words(rule: Rule) -> Option<&'static str> {
         Rule::tree_child | Rule::tree_leaf => "an angular momentum (a name or a number)",
         Rule::tree_label => "the name of the coupled angular momentum",
         Rule::fraction => "a number",
+        Rule::declaration => "a declaration like `integer k, q;`",
+        Rule::parity_word => "`integer` or `half-odd`",
         _ => return None,
     })
 }

@@ -79,7 +79,8 @@ fn split_across_lines(input: &str) -> Result<(), ParseError> {
         let starts_operand = b.is_ascii_alphanumeric() || matches!(b, b'(' | b'{' | b'<');
         if newline_since_last && starts_operand {
             if let Some(prev) = last_significant {
-                if !matches!(prev, b'+' | b'-' | b'*' | b'/' | b'^') {
+                // `;` and `,` outside brackets end or continue a declaration
+                if !matches!(prev, b'+' | b'-' | b'*' | b'/' | b'^' | b';' | b',') {
                     return Err(ParseError::at(
                         input,
                         i,

@@ -783,6 +783,56 @@ fn neg(v: Value) -> Value {
 }
 
 /// Lowers the `expr` pair of a whole input.
+/// Every phase `(-1)^e` written in the text under `pair`, with its
+/// exponent and byte offset.
+pub(super) fn written_phases(input: &str, pair: Pair<Rule>, out: &mut Vec<(String, Lin, usize)>) {
+    let ctx = Ctx {
+        input,
+        work: std::cell::Cell::new(0),
+    };
+    let mut stack = vec![pair];
+    while let Some(p) = stack.pop() {
+        if p.as_rule() == Rule::phase {
+            let text = p.as_str().to_string();
+            let at = p.as_span().start();
+            let ex = p.clone().into_inner().next().unwrap();
+            let inner = ex.into_inner().next().unwrap();
+            let eat = inner.as_span().start();
+            if let Ok(l) = ctx
+                .primary(inner)
+                .and_then(|v| ctx.as_lin(v, eat, "the exponent of a phase"))
+            {
+                out.push((text, l, at));
+            }
+            continue;
+        }
+        stack.extend(p.into_inner());
+    }
+    out.sort_by_key(|w| w.2);
+}
+
+/// Adds the names of one `integer a, b;` / `half-odd s;` declaration.
+pub(super) fn lower_declaration(
+    input: &str,
+    pair: Pair<Rule>,
+    into: &mut crate::algebra::declare::Declarations,
+) -> R<()> {
+    use crate::algebra::declare::Parity;
+    let mut inner = pair.into_inner();
+    let word = inner.next().unwrap();
+    let parity = if word.as_str() == "integer" {
+        Parity::Integer
+    } else {
+        Parity::HalfOdd
+    };
+    for name in inner {
+        let at = name.as_span().start();
+        into.declare(Name::new(name.as_str()), parity)
+            .map_err(|c| ParseError::at(input, at, c.to_string()))?;
+    }
+    Ok(())
+}
+
 pub(super) fn lower_expr(input: &str, pair: Pair<Rule>) -> R<Expr> {
     let ctx = Ctx {
         input,

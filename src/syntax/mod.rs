@@ -13,6 +13,7 @@ pub use guard::{MAX_DEPTH, MAX_INPUT, MAX_SIGN_RUN};
 pub use lower::literal_problem;
 pub use print::{print_factor, print_term};
 
+use crate::algebra::declare::Declarations;
 use crate::expr::{CouplingTree, Expr};
 use grammar::{Grammar, Rule};
 use num_traits::Signed;
@@ -28,16 +29,79 @@ mod grammar {
     pub struct Grammar;
 }
 
-/// Parses an expression of the language (the README's table).
+/// Parses an expression of the language (the README's table). Text that
+/// declares parities (`integer k;`) is refused here: read it with
+/// `parse_declared`, which returns the declarations too.
 pub fn parse(input: &str) -> Result<Expr, ParseError> {
+    let input = input.strip_prefix('\u{feff}').unwrap_or(input);
+    let (declarations, e) = parse_declared(input)?;
+    if !declarations.is_empty() {
+        return Err(ParseError::at(
+            input,
+            0,
+            "this text declares parities; read it with parse_declared, which keeps them",
+        ));
+    }
+    Ok(e)
+}
+
+/// Parses an expression that may start with declarations (`integer k, q;
+/// half-odd s;`), returning both.
+pub fn parse_declared(input: &str) -> Result<(Declarations, Expr), ParseError> {
     let input = input.strip_prefix('\u{feff}').unwrap_or(input);
     guard::check(input)?;
     pest::set_error_detail(true);
     let mut pairs =
         Grammar::parse(Rule::expression_input, input).map_err(|e| error::from_pest(input, e))?;
     let top = pairs.next().unwrap();
-    let expr = top.into_inner().next().unwrap();
-    lower::lower_expr(input, expr)
+    let mut declarations = Declarations::new();
+    for pair in top.into_inner() {
+        match pair.as_rule() {
+            Rule::declaration => lower::lower_declaration(input, pair, &mut declarations)?,
+            Rule::expr => return Ok((declarations, lower::lower_expr(input, pair)?)),
+            _ => {}
+        }
+    }
+    unreachable!("the grammar puts an expression in every input")
+}
+
+/// A phase as the user wrote it.
+#[derive(Clone, Debug)]
+pub struct WrittenPhase {
+    /// the text, e.g. `(-1)^(j-m)`
+    pub text: String,
+    /// its exponent
+    pub exponent: crate::expr::Lin,
+    /// one-based line and column
+    pub line: usize,
+    /// one-based column
+    pub column: usize,
+}
+
+/// Every phase written in an expression's text, in order (empty when the
+/// text does not parse).
+pub fn written_phases(input: &str) -> Vec<WrittenPhase> {
+    let input = input.strip_prefix('\u{feff}').unwrap_or(input);
+    if guard::check(input).is_err() {
+        return Vec::new();
+    }
+    let Ok(mut pairs) = Grammar::parse(Rule::expression_input, input) else {
+        return Vec::new();
+    };
+    let mut found = Vec::new();
+    lower::written_phases(input, pairs.next().unwrap(), &mut found);
+    found
+        .into_iter()
+        .map(|(text, exponent, at)| {
+            let e = ParseError::at(input, at, "");
+            WrittenPhase {
+                text,
+                exponent,
+                line: e.line,
+                column: e.column,
+            }
+        })
+        .collect()
 }
 
 /// Parses a coupling tree such as `((j1, j2) j12, j3) J`.

@@ -16,7 +16,8 @@
 //! shows), and for each point one variable pinned to a value that cycles
 //! through its whole range (stratification: every variable's range is
 //! covered, not only what rejection sampling reaches). Exhaustive
-//! enumeration visits every point of the domain, counted first.
+//! enumeration visits every point of the domain, counted first. Declared
+//! parities (`algebra::declare`) narrow the domain of their names.
 
 use super::rng::Rng;
 use crate::algebra::selection::{range_indexed, Constraints, Indexed, Range};
@@ -262,6 +263,9 @@ impl Sampler {
                 base.ge.push(Lin::var(v.clone()));
             }
         }
+        // declared parities narrow the domain
+        base.integral
+            .extend(crate::algebra::declare::declared_forms(kinds.keys()));
         if triangles_hold {
             for tr in &triads {
                 extend(&mut base, &tr.holds());
@@ -321,9 +325,12 @@ impl Sampler {
     pub fn strata(&self, i: usize, max_j: Q) -> Vec<Q> {
         let (lo, hi) = Self::bounds(self.vars[i].1, max_j);
         let (mut x, hi) = (lo.unwrap(), hi.unwrap());
+        let declared = crate::algebra::declare::parity_of(&self.vars[i].0);
         let mut out = Vec::new();
         while x <= hi {
-            out.push(x);
+            if declared.is_none_or(|p| p.admits(x)) {
+                out.push(x);
+            }
             x += Q::new(1, 2);
         }
         out
