@@ -182,3 +182,25 @@ fn the_last_step_is_the_printed_result() {
     assert_eq!(out.steps.last().unwrap().after, out.result);
     assert_eq!(out.result.to_string(), "(-1)^(2*c) tri(a, b, c)");
 }
+
+#[test]
+fn a_sum_over_a_projection_its_symbol_pins_has_one_term() {
+    // a Clebsch-Gordan coefficient vanishes unless M = m1 + m2, a 3j unless
+    // m1 + m2 + m3 = 0 (common practice, no source): one term is left
+    assert_eq!(
+        simp("sum(M: <j1, m1; j2, m2 | J, M>)"),
+        simp("<j1, m1; j2, m2 | J, m1+m2>")
+    );
+    assert_eq!(
+        simp("sum(m3: (j1, j2, j3; m1, m2, m3))"),
+        "(j1, j2, j3; m1, m2, -m1-m2)"
+    );
+    // factors of the summed projection go along
+    let s = simp("sum(M: hat(M) <j1, m1; j2, m2 | J, M> delta(M, K))");
+    assert!(!s.contains("sum("), "{s}");
+    // a projection shared with another summed one stays summed: the
+    // conservation law does not pin it to free variables
+    assert!(simp("sum(m2, m3: (j1, j2, j3; m1, m2, m3))").contains("sum("));
+    // a projection that two symbols hold is a line of the graph, not pinned
+    assert!(simp("sum(m3: (j1, j2, j3; m1, m2, m3) (j1, j2, j4; m1, m2, m3))").contains("sum("));
+}

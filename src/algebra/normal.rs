@@ -7,7 +7,7 @@
 //! eliminated where a summed variable allows it, and alpha-equivalent
 //! terms merged. Pure algebra: the simplifier verifies every use.
 
-use super::lattice::PhaseLattice;
+use super::lattice::{integral_forms, PhaseLattice};
 use super::symmetry::{canonical, classical_images};
 use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
 use num_traits::Signed;
@@ -53,7 +53,7 @@ pub fn selection_zero(t: &Term) -> bool {
     }
     // integrality rules that contradict each other (two triads that give
     // one variable both parities): no point makes the term nonzero
-    let (ints, zeros) = crate::algebra::lattice::integral_forms(t);
+    let (ints, zeros) = integral_forms(t);
     if !ints.is_empty()
         && PhaseLattice::new(&t.kinds(), &ints, &zeros).is_integer(&Lin::constant(Q::new(1, 2)))
     {
@@ -169,6 +169,54 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
         }
     }
     (cur, changed)
+}
+
+/// Eliminates sums over a projection that one symbol alone holds and whose
+/// conservation law pins it to free variables: `sum(M: <j1, m1; j2, m2 |
+/// J, M> F(M))` becomes `<j1, m1; j2, m2 | J, m1+m2> F(m1+m2)`, since every
+/// other term of the sum vanishes. Done only where the pinned value has
+/// the parity the symbol's columns need wherever the term is defined
+/// (implied by its other columns, its triads, declarations and `facts`),
+/// so that a value the sum never reaches gives a symbol that is 0.
+pub fn eliminate_pinned_projections(t: &Term, facts: &[Lin]) -> Term {
+    let mut cur = t.clone();
+    'again: loop {
+        for v in cur.bound.clone() {
+            let holders: Vec<usize> = (0..cur.factors.len())
+                .filter(|&i| cur.factors[i].is_symbol() && cur.factors[i].has(&v))
+                .collect();
+            let [i] = holders.as_slice() else { continue };
+            let f = &cur.factors[*i];
+            let Some(c) = f.conservation() else { continue };
+            let k = c.coeff(&v);
+            if k.abs() != Q::from_integer(1) || c.vars().any(|x| *x != v && cur.bound.contains(x)) {
+                continue;
+            }
+            let by = c.substitute(&v, &Lin::zero()).scale(-k.recip());
+            let mut next = cur.clone();
+            next.bound.retain(|x| *x != v);
+            let next = next.substitute(&v, &by);
+            // the integer forms of the new term, without the columns the
+            // substitution made
+            let g = f.substitute(&v, &by);
+            let made: Vec<Lin> = f
+                .columns()
+                .into_iter()
+                .zip(g.columns())
+                .filter(|((_, m), _)| m.has(&v))
+                .map(|(_, (j, m))| j - m)
+                .collect();
+            let (mut ints, zeros) = integral_forms(&next);
+            ints.retain(|l| !made.contains(l));
+            ints.extend(facts.iter().cloned());
+            let lattice = PhaseLattice::new(&next.kinds(), &ints, &zeros);
+            if made.iter().all(|l| lattice.is_integer(l)) {
+                cur = next;
+                continue 'again;
+            }
+        }
+        return cur;
+    }
 }
 
 /// Uses each delta between free variables to rewrite the rest of the term:
@@ -358,6 +406,7 @@ pub fn canonical_expr_assuming(e: &Expr, regge: bool, facts: &[Lin]) -> Expr {
     let mut out = Expr::zero();
     for t in &e.terms {
         let (t, _) = eliminate_deltas(t);
+        let t = eliminate_pinned_projections(&t, facts);
         let t = substitute_free_deltas(&t);
         if let Some(c) = canonical_term_assuming(&t, regge, facts) {
             push_merging(&mut out, c);
