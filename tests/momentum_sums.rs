@@ -24,6 +24,10 @@ const IDENTITIES: &[(&str, &str, &str)] = &[
     ("9j-orthogonality", "sum(c, f: (2*c+1) (2*f+1) (2*g+1) (2*h+1) {a, b, c; d, e, f; g, h, i} {a, b, c; d, e, f; g', h', i})", "delta(g, g') delta(h, h') tri(a, d, g) tri(b, e, h) tri(g, h, i)"),
     ("9j-from-6j-sum", "sum(x: (-1)^(2*x) (2*x+1) {a, b, c; f, i, x} {d, e, f; b, x, h} {g, h, i; x, a, d})", "{a, b, c; d, e, f; g, h, i}"),
     ("3j-completeness", "sum(j3, m3: (2*j3+1) (j1, j2, j3; m1, m2, m3) (j1, j2, j3; m1', m2', m3))", "delta(m1, m1') delta(m2, m2')"),
+    // Edmonds 6.4.3 with 6.2.9 (from memory)
+    ("9j-6j-sum", "sum(x: (2*x+1) {a, b, x; d, e, f; g, h, i} {a, b, x; f, i, y})", "(-1)^(2*y) {d, e, f; b, y, h} {g, h, i; y, a, d}"),
+    // Edmonds 6.1.5 with 6.2.9 (from memory): the coupled state expanded back
+    ("coupled-state-recoupling", "sum(x, mx: (-1)^(x-mx) (2*x+1) {j1, j2, x; j3, J, y} (j1, j2, x; m1, m2, mx) (x, j3, J; -mx, m3, M))", "sum(my: (-1)^(2*j3) (-1)^(y-my) (j1, J, y; m1, M, my) (y, j3, j2; -my, m3, m2))"),
 ];
 
 fn sums_left(e: &Expr) -> usize {
@@ -45,7 +49,9 @@ fn equal(a: &Expr, b: &Expr, seed: u64) -> bool {
 /// whose 6j are the same symbols up to symmetry) its standard form, applied.
 fn used_rule(out: &recoup::simplify::Outcome, name: &str) -> bool {
     out.steps.iter().any(|s| {
-        s.rule == name || (name == "6j-orthogonality-crossed" && s.rule == "6j-orthogonality")
+        s.rule == name
+            || (name == "6j-orthogonality-crossed" && s.rule == "6j-orthogonality")
+            || (name == "3j-completeness" && s.rule == "3j-completeness-pinned")
     })
 }
 
@@ -232,5 +238,35 @@ fn the_graphical_route_works_without_the_closed_form_identities() {
                 out.result
             );
         }
+    }
+}
+
+#[test]
+fn sums_written_with_clebsch_gordan_coefficients() {
+    // the summed projection is pinned by the conservation law (one term
+    // left), the coefficients are written as 3j for the identity, and back
+    for (lhs, want) in [
+        // completeness of the Clebsch-Gordan coefficients (common practice, no source)
+        (
+            "sum(J, M: <j1, m1; j2, m2 | J, M> <j1, m1'; j2, m2' | J, M>)",
+            "delta(m1, m1') delta(m2, m2')",
+        ),
+        // a state ((j1, j2) j12, j3) J expanded back into (j1, (j2, j3) j23) J
+        // with the recoupling coefficient of Edmonds eq. 6.1.5 (from memory)
+        (
+            "sum(j12, m12: (-1)^(j1+j2+j3+J) hat(j12) hat(j23) {j1, j2, j12; j3, J, j23} <j1, m1; j2, m2 | j12, m12> <j12, m12; j3, m3 | J, M>)",
+            "<j1, m1; j23, m2+m3 | J, M> <j2, m2; j3, m3 | j23, m2+m3>",
+        ),
+    ] {
+        let input = parse(lhs).unwrap();
+        let out = simplify(&input, &Options::default()).unwrap();
+        assert_eq!(out.result.to_string(), want, "{lhs}");
+        assert!(equal(&input, &parse(want).unwrap(), 77), "{lhs}");
+        // and in a disguise: renamed, respelled, factors shuffled
+        let mut rng = Rng::new(404);
+        let disguised = disguise(lhs, &mut rng);
+        let out = simplify(&disguised, &Options::default()).unwrap();
+        assert_eq!(sums_left(&out.result), 0, "{disguised}: {}", out.result);
+        assert!(equal(&disguised, &out.result, 78));
     }
 }

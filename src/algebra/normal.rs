@@ -171,10 +171,12 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
     (cur, changed)
 }
 
-/// Eliminates sums over a projection that one symbol alone holds and whose
-/// conservation law pins it to free variables: `sum(M: <j1, m1; j2, m2 |
-/// J, M> F(M))` becomes `<j1, m1; j2, m2 | J, m1+m2> F(m1+m2)`, since every
-/// other term of the sum vanishes. Done only where the pinned value has
+/// Eliminates sums over a projection that a symbol's conservation law pins
+/// to free variables: `sum(M: <j1, m1; j2, m2 | J, M> F(M))` becomes
+/// `<j1, m1; j2, m2 | J, m1+m2> F(m1+m2)`, since every other term of the
+/// sum vanishes. (A line of the projection graph pinned this way is a
+/// bridge between two vertices with external legs, which no graph step
+/// uses.) Done only where the pinned value has
 /// the parity the symbol's columns need wherever the term is defined
 /// (implied by its other columns, its triads, declarations and `facts`),
 /// so that a value the sum never reaches gives a symbol that is 0.
@@ -182,29 +184,36 @@ pub fn eliminate_pinned_projections(t: &Term, facts: &[Lin]) -> Term {
     let mut cur = t.clone();
     'again: loop {
         for v in cur.bound.clone() {
-            let holders: Vec<usize> = (0..cur.factors.len())
-                .filter(|&i| cur.factors[i].is_symbol() && cur.factors[i].has(&v))
+            let holders: Vec<&Factor> = cur
+                .factors
+                .iter()
+                .filter(|f| f.is_symbol() && f.has(&v))
                 .collect();
-            let [i] = holders.as_slice() else { continue };
-            let f = &cur.factors[*i];
-            let Some(c) = f.conservation() else { continue };
-            let k = c.coeff(&v);
-            if k.abs() != Q::from_integer(1) || c.vars().any(|x| *x != v && cur.bound.contains(x)) {
-                continue;
-            }
-            let by = c.substitute(&v, &Lin::zero()).scale(-k.recip());
+            // a holder whose conservation law pins v to free variables
+            let pinned = holders.iter().find_map(|f| {
+                let c = f.conservation()?;
+                let k = c.coeff(&v);
+                let free = c.vars().all(|x| *x == v || !cur.bound.contains(x));
+                (k.abs() == Q::from_integer(1) && free)
+                    .then(|| c.substitute(&v, &Lin::zero()).scale(-k.recip()))
+            });
+            let Some(by) = pinned else { continue };
             let mut next = cur.clone();
             next.bound.retain(|x| *x != v);
             let next = next.substitute(&v, &by);
             // the integer forms of the new term, without the columns the
             // substitution made
-            let g = f.substitute(&v, &by);
-            let made: Vec<Lin> = f
-                .columns()
-                .into_iter()
-                .zip(g.columns())
-                .filter(|((_, m), _)| m.has(&v))
-                .map(|(_, (j, m))| j - m)
+            let made: Vec<Lin> = holders
+                .iter()
+                .flat_map(|f| {
+                    let g = f.substitute(&v, &by);
+                    f.columns()
+                        .into_iter()
+                        .zip(g.columns())
+                        .filter(|((_, m), _)| m.has(&v))
+                        .map(|(_, (j, m))| j - m)
+                        .collect::<Vec<Lin>>()
+                })
                 .collect();
             let (mut ints, zeros) = integral_forms(&next);
             ints.retain(|l| !made.contains(l));

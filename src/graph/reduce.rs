@@ -97,6 +97,19 @@ fn cg_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
     let idx = t.factors.iter().position(|f| {
         matches!(f, Factor::Cg(_)) && f.m_slots().iter().any(|l| summed.iter().any(|b| l.has(b)))
     })?;
+    cg_to_3j_at(t, idx, regge)
+}
+
+/// Converts the first Clebsch–Gordan coefficient that holds any summed
+/// variable into a 3j (cg-to-3j): the sum identities are stated with 3j.
+pub fn cg_in_sum_step(t: &Term) -> Option<GraphRewrite> {
+    let idx = t.factors.iter().position(|f| {
+        matches!(f, Factor::Cg(_)) && t.bound.iter().any(|b| f.has(b))
+    })?;
+    cg_to_3j_at(t, idx, false)
+}
+
+fn cg_to_3j_at(t: &Term, idx: usize, regge: bool) -> Option<GraphRewrite> {
     // bind the pattern to this CG's arguments exactly
     let Factor::Cg(a) = &t.factors[idx] else {
         return None;

@@ -396,16 +396,18 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             "interchange-backwards",
         )));
     }
+    let usable = || {
+        extra
+            .iter()
+            .chain(sum_patterns().iter())
+            .filter(|p| !opts.skip_rules.contains(&p.name))
+    };
     for regge in [false, true] {
         for (i, t) in cur.terms.iter().enumerate() {
             if t.bound.is_empty() {
                 continue;
             }
-            for p in extra
-                .iter()
-                .chain(sum_patterns().iter())
-                .filter(|p| !opts.skip_rules.contains(&p.name))
-            {
+            for p in usable() {
                 crate::limits::tick();
                 let found = if regge {
                     p.apply_simplest(t, &Default::default(), true, 512)
@@ -427,6 +429,44 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
                     local: Some(p.instance(t, &m)),
                 });
             }
+        }
+    }
+    // the identities are stated with 3j: a sum whose Clebsch-Gordan
+    // coefficients hold a summed variable has them written as 3j first,
+    // one at a time, when an identity fits the term so written
+    for (i, t) in cur.terms.iter().enumerate() {
+        let Some(first) = crate::graph::reduce::cg_in_sum_step(t) else {
+            continue;
+        };
+        let mut written = first.replacement.clone();
+        while let Some(next) = written
+            .terms
+            .first()
+            .filter(|_| written.terms.len() == 1)
+            .and_then(crate::graph::reduce::cg_in_sum_step)
+        {
+            written = next.replacement;
+        }
+        let Some(as_3j) = written.terms.first().filter(|_| written.terms.len() == 1) else {
+            continue;
+        };
+        let fits = [false, true].iter().any(|&regge| {
+            usable().any(|p| {
+                if regge {
+                    p.apply_simplest(as_3j, &Default::default(), true, 512)
+                        .is_some()
+                } else {
+                    p.apply_first(as_3j, &Default::default(), false).is_some()
+                }
+            })
+        });
+        if fits {
+            return Some(Proposal {
+                rule: first.rule,
+                source: first.source,
+                next: replace_term(cur, i, &first.replacement),
+                local: Some(first.instance),
+            });
         }
     }
     None
