@@ -103,9 +103,10 @@ fn cg_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
 /// Converts the first Clebsch–Gordan coefficient that holds any summed
 /// variable into a 3j (cg-to-3j): the sum identities are stated with 3j.
 pub fn cg_in_sum_step(t: &Term) -> Option<GraphRewrite> {
-    let idx = t.factors.iter().position(|f| {
-        matches!(f, Factor::Cg(_)) && t.bound.iter().any(|b| f.has(b))
-    })?;
+    let idx = t
+        .factors
+        .iter()
+        .position(|f| matches!(f, Factor::Cg(_)) && t.bound.iter().any(|b| f.has(b)))?;
     cg_to_3j_at(t, idx, false)
 }
 
