@@ -191,29 +191,47 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                 if line.trim().is_empty() || line.trim_start().starts_with('#') {
                     return Ok(None);
                 }
-                // a line's declarations hold for that line only
-                let (line_declared, e) = crate::syntax::parse_declared(&line)
-                    .map_err(|e| format!("parse error at {e}"))?;
-                let mut declared = crate::algebra::declare::current();
-                declared.extend(&line_declared).map_err(|c| c.to_string())?;
-                for note in crate::syntax::literal_zero_notes(&e) {
-                    notes.push(format!("line {n}: {note}"));
-                }
-                let work = || {
-                    if let Some((name, parity, _)) = crate::algebra::declare::unimplied_summed(&e) {
-                        return Ok(Err(EvalError::Arithmetic(format!(
-                            "{name} is summed and declared {}, but its values are fixed by the names it couples to; declare those instead",
-                            parity.word()
-                        ))));
-                    }
-                    crate::limits::within_time_limit(Some(seconds), || answer(&e, at, a.float))
+                // the whole line, parsing included, has the time limit;
+                // its declarations hold for that line only
+                let line_work = || -> Result<_, (bool, String)> {
+                    let (line_declared, e) = crate::syntax::parse_declared(&line)
+                        .map_err(|e| (false, format!("parse error at {e}")))?;
+                    let mut declared = crate::algebra::declare::current();
+                    declared
+                        .extend(&line_declared)
+                        .map_err(|c| (false, c.to_string()))?;
+                    let line_notes = crate::syntax::literal_zero_notes(&e);
+                    crate::algebra::declare::scoped(&declared, || {
+                        if let Some((name, parity, _)) =
+                            crate::algebra::declare::unimplied_summed(&e)
+                        {
+                            return Err((false, format!(
+                                "{name} is summed and declared {}, but its values are fixed by the names it couples to; declare those instead",
+                                parity.word()
+                            )));
+                        }
+                        match answer(&e, at, a.float) {
+                            Ok(v) => Ok((line_notes, v)),
+                            Err(e) if matches!(Failure::from(e.clone()), Failure::Limit(_)) => {
+                                Err((true, format!("limit reached: {e}")))
+                            }
+                            Err(e) => Err((false, e.to_string())),
+                        }
+                    })
                 };
-                match crate::algebra::declare::scoped(&declared, work) {
-                    Ok(Err(e)) if matches!(Failure::from(e.clone()), Failure::Limit(_)) => {
-                        slow += 1;
-                        Err(format!("limit reached: {e}"))
+                match crate::limits::within_time_limit(Some(seconds), line_work) {
+                    Ok(Ok((line_notes, v))) => {
+                        for note in line_notes {
+                            notes.push(format!("line {n}: {note}"));
+                        }
+                        Ok(Some(v))
                     }
-                    Ok(r) => r.map(Some).map_err(|e| e.to_string()),
+                    Ok(Err((limit, msg))) => {
+                        if limit {
+                            slow += 1;
+                        }
+                        Err(msg)
+                    }
                     Err(up) => {
                         slow += 1;
                         Err(format!(
