@@ -8,6 +8,7 @@
 
 pub mod cycles;
 pub mod dot;
+pub mod plan;
 pub mod reduce;
 pub mod samples;
 

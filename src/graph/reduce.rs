@@ -7,6 +7,7 @@
 //! rule applied by the matcher; the driver verifies it.
 
 use super::cycles::shortest_cycle;
+use super::plan::{best_interchange, Measure};
 use super::Graph;
 use crate::algebra::unify::Subst;
 use crate::expr::{Expr, Factor, Kind, Lin, Term};
@@ -125,6 +126,12 @@ fn cg_to_3j_at(t: &Term, idx: usize, regge: bool) -> Option<GraphRewrite> {
 
 /// The next graph step for a term, if any.
 pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
+    next_step_skipping(t, regge, &[])
+}
+
+/// `next_step` without the steps named in `skip` (for example
+/// `9j-recognition`, when a 9j would be written as a sum of 6j anyway).
+pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<GraphRewrite> {
     if !has_projection_sum(t) {
         return None;
     }
@@ -151,6 +158,9 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
             6 => &ps.nine_j,
             _ => continue,
         };
+        if skip.contains(&p.name) {
+            continue;
+        }
         if let Some(r) = rewrite_in(p, t, &none, regge, Some(&factors_of(c))) {
             return Some(r);
         }
@@ -178,6 +188,32 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
             }
         }
     }
+    // the interchange that starts a reduction with the fewest sums, when
+    // the search finds one within its budget: counted with 9j as sums of
+    // 6j, and where 9j symbols may stay, counted with them as no sum (a
+    // 9j is kept only where it saves a sum)
+    let as_six_j = |nine_j_is_a_sum| Measure {
+        nine_j_is_a_sum,
+        budget: PLAN_BUDGET,
+    };
+    let six_j_plan = best_interchange(&g, &as_six_j(true));
+    let plan = if skip.iter().any(|s| s == "9j-recognition") {
+        six_j_plan
+    } else {
+        match (six_j_plan, best_interchange(&g, &as_six_j(false))) {
+            (Some(a), Some(b)) if b.sums < a.sums => Some(b),
+            (Some(a), _) => Some(a),
+            (None, b) => b,
+        }
+    };
+    if let Some(c) = plan {
+        let ma = &g.vertices[c.keep.0].cols[c.keep.1].1;
+        let md = &g.vertices[c.moved.0].cols[c.moved.1].1;
+        let r = interchange_at(t, &g, c.line, [c.keep.0, c.moved.0], ma, md, regge);
+        if r.is_some() {
+            return r;
+        }
+    }
     let c = shortest_cycle(&g)?;
     if c.len() < 3 {
         return None;
@@ -189,22 +225,42 @@ pub fn next_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
         let next = c.lines[(i + 1) % n];
         let a = c.vertices[i];
         let b = c.vertices[(i + 1) % n];
-        let ma = g.vertices[a].cols[g.slot_of(prev, a)].1.clone();
-        let md = g.vertices[b].cols[g.slot_of(next, b)].1.clone();
-        let p = &ps.interchange;
-        let v = Lin::var(g.lines[x].var.clone());
-        let allowed = factors_of(&[a, b]);
-        // each of the three may enter the pattern with either sign (the
-        // images of a vertex include its sign flip)
-        for signs in 0..8u8 {
-            let pick = |l: &Lin, bit: u8| if signs >> bit & 1 == 0 { l.clone() } else { -l };
-            let mut req = Subst::new();
-            req.insert(p.var("ma"), pick(&ma, 0));
-            req.insert(p.var("md"), pick(&md, 1));
-            req.insert(p.var("mx"), pick(&v, 2));
-            if let Some(r) = rewrite_in(p, t, &req, regge, Some(&allowed)) {
-                return Some(r);
-            }
+        let ma = &g.vertices[a].cols[g.slot_of(prev, a)].1;
+        let md = &g.vertices[b].cols[g.slot_of(next, b)].1;
+        if let Some(r) = interchange_at(t, &g, x, [a, b], ma, md, regge) {
+            return Some(r);
+        }
+    }
+    None
+}
+
+/// Most bare graphs the interchange search visits per step.
+const PLAN_BUDGET: usize = 20_000;
+
+/// The interchange on line `x` between vertices `ends`: the leg `ma` of the
+/// first stays, the leg `md` of the second moves across.
+fn interchange_at(
+    t: &Term,
+    g: &Graph,
+    x: usize,
+    ends: [usize; 2],
+    ma: &Lin,
+    md: &Lin,
+    regge: bool,
+) -> Option<GraphRewrite> {
+    let p = &patterns().interchange;
+    let v = Lin::var(g.lines[x].var.clone());
+    let allowed: Vec<usize> = ends.iter().map(|&e| g.vertices[e].factor).collect();
+    // each of the three may enter the pattern with either sign (the
+    // images of a vertex include its sign flip)
+    for signs in 0..8u8 {
+        let pick = |l: &Lin, bit: u8| if signs >> bit & 1 == 0 { l.clone() } else { -l };
+        let mut req = Subst::new();
+        req.insert(p.var("ma"), pick(ma, 0));
+        req.insert(p.var("md"), pick(md, 1));
+        req.insert(p.var("mx"), pick(&v, 2));
+        if let Some(r) = rewrite_in(p, t, &req, regge, Some(&allowed)) {
+            return Some(r);
         }
     }
     None

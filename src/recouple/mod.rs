@@ -508,11 +508,42 @@ pub fn recouple_as(
     matrix::reachable(from)?;
     matrix::reachable(to)?;
     let (f, t, placeholders) = name_numeric_leaves(from, to);
-    let mut ov = overlap(&f, &t);
-    let mut definition = overlap_definition(&f, &t);
+    let ov = overlap(&f, &t);
+    let definition = overlap_definition(&f, &t);
+    if form == Form::Symbols {
+        return derive(ov, definition, &placeholders, opts, form);
+    }
+    // 6j only: a 9j is a sum over three 6j, so the fewest sums of 6j
+    // products may come from a reduction that never forms a 9j; both
+    // reductions are derived and verified, the one with fewer sums (then
+    // fewer symbols) is kept
+    let first = derive(ov.clone(), definition.clone(), &placeholders, opts, form)?;
+    let mut no_nine = opts.clone();
+    no_nine
+        .skip_rules
+        .extend(["9j-recognition", "9j-from-6j-sum"].map(String::from));
+    let Ok(second) = derive(ov, definition, &placeholders, &no_nine, form) else {
+        return Ok(first);
+    };
+    let measure = |r: &Recoupling| (r.sums(), r.symbols().0 + r.symbols().1);
+    Ok(if measure(&second) < measure(&first) {
+        second
+    } else {
+        first
+    })
+}
+
+/// One derivation of the recoupling coefficient from its overlap.
+fn derive(
+    mut ov: Expr,
+    mut definition: Expr,
+    placeholders: &[(Name, Lin)],
+    opts: &Options,
+    form: Form,
+) -> Result<Recoupling, RecoupleError> {
     let mut outcome = simplify(&ov, opts)?;
     let mut result = outcome.result.clone();
-    for (n, v) in &placeholders {
+    for (n, v) in placeholders {
         ov = ov.substitute(n, v);
         definition = definition.substitute(n, v);
         result = result.substitute(n, v);

@@ -11,7 +11,7 @@
 use crate::algebra::normal::{canonical_expr_assuming, free_projection_facts};
 use crate::expr::Q;
 use crate::expr::{Expr, Factor, Term};
-use crate::graph::reduce::next_step;
+use crate::graph::reduce::next_step_skipping;
 use crate::graph::Graph;
 use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
@@ -836,7 +836,7 @@ fn next_proposal(
     }
     // the graph reduction of projection sums
     for (i, t) in cur.terms.iter().enumerate() {
-        if let Some(r) = next_step(t, opts.regge) {
+        if let Some(r) = next_step_skipping(t, opts.regge, &opts.skip_rules) {
             return Some(Proposal {
                 rule: r.rule,
                 source: r.source,
