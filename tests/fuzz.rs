@@ -484,6 +484,21 @@ fn the_reported_defects_stay_fixed() {
         (&["eval", "{1, 1, 1; 1, 1, 1; 1, 1, -1}"], "", 2),
         (&["eval", "sum(x: {x, 1, 1; 1, 1, -1})"], "", 2),
         (&["simplify", "{1, 1, 1; 3, 2, -1}"], "", 2),
+        // found by a long run: a bubble whose open leg is the number 2 in a
+        // column of a symbolic j (the rule assumes the leg admissible)
+        (
+            &[
+                "simplify",
+                "sum(m1, m2, m3: (-1)^(j1-m1+j2-m2+j3-m3) (j1, j2, j3; m1, m2, m3) (j1, j2, j3; -m1, -2, -m3))",
+            ],
+            "",
+            0,
+        ),
+        (
+            &["simplify", "sum(m1, m2: (j1, j2, j; m1, m2, 0) (j1, j2, k; -m1, -m2, 0))"],
+            "",
+            0,
+        ),
         (&["check", "{1, 1, 1; 3, 2, -1}", "0"], "", 2),
         (&["latex", "hat(1/3)"], "", 2),
         (&["graph", "(1, 1, 1; 1/3, 0, 0)"], "", 2),

@@ -223,7 +223,7 @@ fn random_cubic_graphs_up_to_20_vertices_reduce_completely() {
     }
 }
 
-use common::bare::{fewest_sums, Bare};
+use common::bare::{fewest_six_j_sums, fewest_sums, Bare};
 
 #[test]
 fn sums_match_the_fewest_over_every_reduction_order() {
@@ -315,6 +315,60 @@ fn sums_match_the_fewest_over_every_reduction_order() {
     }
     eprintln!(
         "{}\nmatched the fewest on {matched} of {total}",
+        report.join("\n")
+    );
+    assert_eq!(matched, total, "{}", report.join("\n"));
+}
+
+/// Options that write 9j symbols as sums over 6j (as `--only-6j` does).
+fn six_j_only() -> Options {
+    let mut o = Options::default();
+    o.final_spot.samples = 6;
+    o.skip_rules = vec!["9j-recognition".into(), "9j-from-6j-sum".into()];
+    o
+}
+
+#[test]
+fn sums_of_6j_match_the_fewest_over_every_order_up_to_12_vertices() {
+    // random connected cubic graphs of 4-12 vertices (a sample, not every
+    // graph), reduced with 9j written as sums of 6j, against an
+    // independent search over every order of interchanges
+    let mut rng = Rng::new(6006);
+    let mut matched = 0;
+    let mut total = 0;
+    let mut report = Vec::new();
+    for n in [4usize, 6, 8, 10, 12] {
+        for _ in 0..10 {
+            let edges = random_cubic(n, &mut rng);
+            let e = parse(&graph_expr(n, &edges)).unwrap();
+            let out = simplify(&e, &six_j_only()).unwrap();
+            assert_eq!(
+                projection_sums_left(&out.result),
+                0,
+                "V={n}: {}",
+                out.result
+            );
+            assert!(
+                out.result.terms.iter().all(|t| !t
+                    .factors
+                    .iter()
+                    .any(|f| matches!(f, recoup::expr::Factor::NineJ(_)))),
+                "V={n}: {}",
+                out.result
+            );
+            let ours = momentum_sums_left(&out.result);
+            let best = fewest_six_j_sums(&Bare::from_edges(n, &edges), ours + 1).unwrap();
+            assert!(
+                ours >= best,
+                "V={n} {edges:?}: {ours} sums, fewer than the fewest {best}"
+            );
+            total += 1;
+            matched += usize::from(ours == best);
+            report.push(format!("V={n}: ours {ours}, fewest {best}"));
+        }
+    }
+    eprintln!(
+        "{}\n6j sums at the fewest on {matched} of {total}",
         report.join("\n")
     );
     assert_eq!(matched, total, "{}", report.join("\n"));

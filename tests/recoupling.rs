@@ -6,7 +6,7 @@
 
 mod common;
 
-use common::bare::{fewest_sums, Bare};
+use common::bare::{fewest_six_j_sums, fewest_sums, Bare};
 use recoup::expr::{CouplingTree, Lin, Name, Q};
 use recoup::numeric::eval::{Assignment, Evaluator};
 use recoup::numeric::float::clebsch_gordan_f64;
@@ -477,4 +477,39 @@ fn the_12j_and_15j_of_the_first_kind_come_back_as_one_sum_of_6j() {
         }
     }
     insta::assert_snapshot!(printed.join("\n"));
+}
+
+#[test]
+fn sums_of_6j_for_seven_and_eight_leaves_against_the_fewest_over_every_order() {
+    // random pairs of trees, written with 6j only, against an independent
+    // search over every order of interchanges (a 9j counting one sum)
+    let mut rng = Rng::new(707);
+    let (mut total, mut at_most) = (0, 0);
+    let mut report = Vec::new();
+    for n in [7usize, 8] {
+        let leaves: Vec<String> = (1..=n).map(|k| format!("j{k}")).collect();
+        for _ in 0..6 {
+            let f = random_tree(&leaves, "a", &mut rng);
+            let t = random_tree(&leaves, "b", &mut rng);
+            let r = recouple_as(
+                &parse_tree(&f).unwrap(),
+                &parse_tree(&t).unwrap(),
+                &Options::default(),
+                Form::SixJOnly,
+            )
+            .unwrap_or_else(|e| panic!("{f} | {t}: {e}"));
+            let ours = r.sums();
+            let best = fewest_six_j_sums(&bare_of(&r), ours + 1)
+                .unwrap_or_else(|| panic!("{f} | {t}: no order with {} sums", ours + 1));
+            total += 1;
+            // a sum identity may even remove a sum the graph needs
+            at_most += usize::from(ours <= best);
+            report.push(format!("{n} leaves: {f} | {t}: ours {ours}, fewest {best}"));
+        }
+    }
+    eprintln!(
+        "{}\nat the fewest (or below) on {at_most} of {total}",
+        report.join("\n")
+    );
+    assert_eq!(at_most, total, "{}", report.join("\n"));
 }

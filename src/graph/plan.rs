@@ -335,10 +335,82 @@ impl Bare {
     }
 }
 
-/// Can `g` be reduced with at most `k` more sums? Counts visited graphs.
-fn within(g: &Bare, k: usize, m: &Measure, visited: &mut usize) -> Option<bool> {
-    *visited += 1;
-    if *visited > m.budget {
+/// What the search has learnt: graphs (after their free steps, by their
+/// signature) that cannot be finished with a number of sums, and the
+/// graphs visited.
+#[derive(Default)]
+struct Search {
+    fails_with: std::collections::HashMap<u64, usize>,
+    visited: usize,
+}
+
+impl Bare {
+    /// A signature equal for isomorphic graphs: colour refinement started
+    /// from each vertex's external legs and distance profile. Different
+    /// graphs may share one (then the search may miss an order, never
+    /// make a wrong rewrite: every rewrite is verified symbolically).
+    fn signature(&self) -> u64 {
+        use std::hash::{Hash, Hasher};
+        let h = |x: &dyn Fn(&mut std::collections::hash_map::DefaultHasher)| {
+            let mut s = std::collections::hash_map::DefaultHasher::new();
+            x(&mut s);
+            s.finish()
+        };
+        let n = self.adj.len();
+        let alive: Vec<usize> = self.alive().collect();
+        let mut colour = vec![0u64; n];
+        for &v in &alive {
+            // vertices and legs at each distance
+            let mut dist = vec![usize::MAX; n];
+            dist[v] = 0;
+            let mut queue = std::collections::VecDeque::from([v]);
+            let mut profile: Vec<(usize, usize)> = Vec::new();
+            while let Some(x) = queue.pop_front() {
+                let d = dist[x];
+                if profile.len() <= d {
+                    profile.resize(d + 1, (0, 0));
+                }
+                profile[d].0 += 1;
+                for e in self.slots(x) {
+                    match e {
+                        None => profile[d].1 += 1,
+                        Some((y, _)) if dist[y] == usize::MAX => {
+                            dist[y] = d + 1;
+                            queue.push_back(y);
+                        }
+                        _ => {}
+                    }
+                }
+            }
+            colour[v] = h(&|s| profile.hash(s));
+        }
+        for _ in 0..3 {
+            let next: Vec<u64> = (0..n)
+                .map(|v| {
+                    if self.adj[v].is_none() {
+                        return 0;
+                    }
+                    let mut around: Vec<u64> = self
+                        .slots(v)
+                        .iter()
+                        .map(|e| e.map_or(1, |(w, _)| colour[w]))
+                        .collect();
+                    around.sort_unstable();
+                    h(&|s| (colour[v], &around).hash(s))
+                })
+                .collect();
+            colour = next;
+        }
+        let mut all: Vec<u64> = alive.iter().map(|&v| colour[v]).collect();
+        all.sort_unstable();
+        h(&|s| all.hash(s))
+    }
+}
+
+/// Can `g` be reduced with at most `k` more sums? `None` past the budget.
+fn within(g: &Bare, k: usize, m: &Measure, s: &mut Search) -> Option<bool> {
+    s.visited += 1;
+    if s.visited > m.budget {
         return None;
     }
     let mut g = g.clone();
@@ -353,11 +425,17 @@ fn within(g: &Bare, k: usize, m: &Measure, visited: &mut usize) -> Option<bool> 
     if k == 0 {
         return Some(false);
     }
+    let sig = g.signature();
+    if s.fails_with.get(&sig).is_some_and(|&f| f >= k) {
+        return Some(false);
+    }
     for (_, _, h) in g.interchanges() {
-        if within(&h, k - 1, m, visited)? {
+        if within(&h, k - 1, m, s)? {
             return Some(true);
         }
     }
+    // interchanges commute often: remember the dead end
+    s.fails_with.insert(sig, k);
     Some(false)
 }
 
@@ -372,10 +450,10 @@ pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
         return None;
     }
     let options = bare.interchanges();
-    let mut visited = 0;
+    let mut search = Search::default();
     for k in 1..=bare.adj.len() {
         for (keep, moved, h) in &options {
-            if within(h, k - 1, m, &mut visited)? {
+            if within(h, k - 1, m, &mut search)? {
                 let line = g.lines.iter().position(|l| {
                     (l.tail.0 == keep.0 && l.head.0 == moved.0)
                         || (l.tail.0 == moved.0 && l.head.0 == keep.0)
@@ -396,8 +474,8 @@ pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
 /// finishes within its budget.
 pub fn fewest_sums(g: &Graph, m: &Measure) -> Option<usize> {
     let bare = Bare::of(g);
-    let mut visited = 0;
-    (0..=bare.adj.len()).find_map(|k| match within(&bare, k, m, &mut visited) {
+    let mut search = Search::default();
+    (0..=bare.adj.len()).find_map(|k| match within(&bare, k, m, &mut search) {
         Some(true) => Some(Some(k)),
         Some(false) => None,
         None => Some(None),

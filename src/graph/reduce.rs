@@ -235,7 +235,7 @@ pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<Grap
 }
 
 /// Most bare graphs the interchange search visits per step.
-const PLAN_BUDGET: usize = 20_000;
+const PLAN_BUDGET: usize = 200_000;
 
 /// The interchange on line `x` between vertices `ends`: the leg `ma` of the
 /// first stays, the leg `md` of the second moves across.

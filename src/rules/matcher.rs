@@ -16,6 +16,7 @@ use crate::algebra::symmetry::{classical_images, regge_images, Image};
 use crate::algebra::unify::{apply, unify_partial, Subst};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
 use crate::numeric::Surd;
+use num_traits::{Signed, Zero};
 use std::collections::{BTreeMap, BTreeSet};
 
 fn internal(n: &Name) -> Name {
@@ -29,6 +30,42 @@ pub fn readable_bound(t: &Term) -> Term {
     t.rename_bound(&BTreeSet::new(), |b| {
         b.as_str().strip_prefix('\u{2}').map(Name::new)
     })
+}
+
+/// The free projections of a pattern's symbols (`±p` in a column) that no
+/// column of some term of the right side holds with the same angular
+/// momentum (and that its deltas do not pin, with their j, to 0).
+fn unguarded_projections(lhs: &Term, rhs: &Expr, free: &BTreeSet<Name>) -> Vec<(Name, Lin)> {
+    let kinds = lhs.kinds();
+    let mut out: Vec<(Name, Lin)> = Vec::new();
+    for f in &lhs.factors {
+        for (j, m) in f.columns() {
+            let Some((p, _)) = m.as_signed_var() else {
+                continue;
+            };
+            if !free.contains(p) || kinds.get(p) != Some(&Kind::Projection) {
+                continue;
+            }
+            // held in a column, or pinned with its j to 0 by deltas
+            let zero = |t: &Term, l: &Lin| {
+                t.factors.iter().any(|g| match g {
+                    Factor::Delta(a, b) => (a == l && b.is_zero()) || (b == l && a.is_zero()),
+                    _ => false,
+                })
+            };
+            let held = |t: &Term| {
+                t.factors.iter().any(|g| {
+                    g.columns()
+                        .iter()
+                        .any(|(cj, cm)| *cj == j && cm.as_signed_var().map(|x| x.0) == Some(p))
+                }) || (zero(t, m) && zero(t, j))
+            };
+            if !rhs.terms.iter().all(held) && !out.iter().any(|(q, _)| q == p) {
+                out.push((p.clone(), j.clone()));
+            }
+        }
+    }
+    out
 }
 
 /// A rule prepared for matching (its variables renamed apart).
@@ -47,6 +84,11 @@ pub struct Pattern {
     vars: BTreeSet<Name>,
     free: BTreeSet<Name>,
     rhs: Expr,
+    /// free projections of the left side, with their angular momentum,
+    /// that the right side holds in no column: the rule assumes them
+    /// admissible (`|m| <= j`, `j - m` an integer) and its right side
+    /// would not vanish where they are not
+    unguarded: Vec<(Name, Lin)>,
 }
 
 /// Incremental solution of the pattern equations: determined variables
@@ -183,6 +225,7 @@ impl Pattern {
         let vars: BTreeSet<Name> = lhs_names.iter().map(internal).collect();
         let free: BTreeSet<Name> = rule.lhs.free_vars().iter().map(internal).collect();
         let rhs = rule.rhs.rename(&map);
+        let unguarded = unguarded_projections(&t, &rhs, &free);
         Some(Pattern {
             name: rule.name.clone(),
             source: rule.source.clone(),
@@ -195,6 +238,60 @@ impl Pattern {
             vars,
             free,
             rhs,
+            unguarded,
+        })
+    }
+
+    /// True when every free projection the rule assumes admissible is
+    /// admissible in the term wherever the term is defined: a free
+    /// variable (the domain assumes it), a summed one that another factor
+    /// holds in a column of the same angular momentum, 0 for an integer j,
+    /// or a number within a numeric j. Anything else (a compound form, a
+    /// number against a symbolic j) could lose a zero of the left side.
+    fn projections_admissible(&self, t: &Term, m: &Match) -> bool {
+        let mut lattice: Option<PhaseLattice> = None;
+        self.unguarded.iter().all(|(p, j)| {
+            let l = apply(&Lin::var(p.clone()), &m.subst);
+            let jv = apply(j, &m.subst);
+            if let Some((v, _)) = l.as_signed_var() {
+                if !t.bound.contains(v) {
+                    return true;
+                }
+                return t.factors.iter().enumerate().any(|(i, f)| {
+                    !m.factors.contains(&i)
+                        && f.columns().iter().any(|(cj, cm)| {
+                            **cj == jv && cm.as_signed_var().map(|x| x.0) == Some(v)
+                        })
+                });
+            }
+            if !l.is_constant() {
+                return false;
+            }
+            let c = l.constant_part();
+            if jv.is_constant() {
+                let jn = jv.constant_part();
+                return c.abs() <= jn && (jn - c).is_integer();
+            }
+            // j integer by the rest of the term (not by the matched
+            // symbols' own columns, whose zeros are what is at stake)
+            c.is_zero()
+                && lattice
+                    .get_or_insert_with(|| {
+                        let mut rest = t.clone();
+                        rest.phase = Lin::zero();
+                        rest.factors = t
+                            .factors
+                            .iter()
+                            .enumerate()
+                            .filter(|(i, _)| !m.factors.contains(i))
+                            .map(|(_, f)| f.clone())
+                            .collect();
+                        let (mut ints, zeros) = crate::algebra::lattice::integral_forms(&rest);
+                        let all = t.all_vars();
+                        ints.extend(crate::algebra::declare::declared_forms(&all));
+                        PhaseLattice::new(&t.kinds(), &ints, &zeros)
+                    })
+                    .is_integer(&jv)
         })
     }
 
@@ -347,7 +444,9 @@ impl Pattern {
         let k = chosen.len();
         if k == self.symbols.len() {
             if let Some(m) = self.finish(t, solver, chosen) {
-                *done = accept(m);
+                if self.projections_admissible(t, &m) {
+                    *done = accept(m);
+                }
             }
             return;
         }

@@ -59,6 +59,11 @@ impl Bare {
     /// Free reductions: closed pieces of 2, 4 or 6 vertices, bubbles,
     /// triangles. Returns true when one applied.
     fn free_step(&mut self) -> bool {
+        self.free_step_counting(&mut 0, false)
+    }
+    /// `free_step`, adding 1 to `sums` for a closed K3,3 (a 9j) when
+    /// `nine_j_is_a_sum`.
+    fn free_step_counting(&mut self, sums: &mut usize, nine_j_is_a_sum: bool) -> bool {
         // a loop at a vertex (separation on one line): the third leg
         // carries j = 0, so its other end joins its two remaining lines
         for v in self.alive() {
@@ -159,6 +164,9 @@ impl Bare {
                     for v in c {
                         self.adj[v] = None;
                     }
+                    if bip && nine_j_is_a_sum {
+                        *sums += 1;
+                    }
                     return true;
                 }
             }
@@ -247,6 +255,27 @@ impl Bare {
         }
         out
     }
+}
+
+/// The fewest sums over every order when every 9j is written as a sum
+/// over three 6j (a closed K3,3 counts one sum), by iterative deepening.
+pub fn fewest_six_j_sums(g: &Bare, limit: usize) -> Option<usize> {
+    fn can(g: &Bare, k: usize) -> bool {
+        let mut g = g.clone();
+        let mut spent = 0;
+        while g.free_step_counting(&mut spent, true) {}
+        if spent > k {
+            return false;
+        }
+        if g.done() {
+            return true;
+        }
+        if k == spent {
+            return false;
+        }
+        g.interchanges().iter().any(|h| can(h, k - spent - 1))
+    }
+    (0..=limit).find(|&k| can(g, k))
 }
 
 /// The fewest interchanges over every order (iterative deepening).
