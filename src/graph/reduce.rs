@@ -196,15 +196,22 @@ pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<Grap
         nine_j_is_a_sum,
         budget: PLAN_BUDGET,
     };
-    let six_j_plan = best_interchange(&g, &as_six_j(true));
-    let plan = if skip.iter().any(|s| s == "9j-recognition") {
-        six_j_plan
+    // past PLAN_MAX_VERTICES the search would rarely finish within its
+    // budget: the shortest-cycle choice below is kept there
+    let small = g.vertices.len() <= PLAN_MAX_VERTICES;
+    let six_j_plan = if small {
+        best_interchange(&g, &as_six_j(true))
     } else {
-        match (six_j_plan, best_interchange(&g, &as_six_j(false))) {
-            (Some(a), Some(b)) if b.sums < a.sums => Some(b),
-            (Some(a), _) => Some(a),
-            (None, b) => b,
+        None
+    };
+    let plan = match six_j_plan {
+        Some(a) if !skip.iter().any(|s| s == "9j-recognition") => {
+            match best_interchange(&g, &as_six_j(false)) {
+                Some(b) if b.sums < a.sums => Some(b),
+                _ => Some(a),
+            }
         }
+        other => other,
     };
     if let Some(c) = plan {
         let ma = &g.vertices[c.keep.0].cols[c.keep.1].1;
@@ -235,7 +242,10 @@ pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<Grap
 }
 
 /// Most bare graphs the interchange search visits per step.
-const PLAN_BUDGET: usize = 200_000;
+const PLAN_BUDGET: usize = 100_000;
+
+/// Largest graph (in vertices) the interchange search is run on.
+const PLAN_MAX_VERTICES: usize = 20;
 
 /// The interchange on line `x` between vertices `ends`: the leg `ma` of the
 /// first stays, the leg `md` of the second moves across.
