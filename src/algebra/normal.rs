@@ -53,22 +53,36 @@ pub fn selection_zero(t: &Term) -> bool {
     }
     // integrality rules that contradict each other (two triads that give
     // one variable both parities): no point makes the term nonzero
+    // (forms with integer coefficients and constants only span such forms,
+    // which never give 1/2: the lattice is built only otherwise)
     let (ints, zeros) = integral_forms(t);
-    if !ints.is_empty()
+    let fractional =
+        |l: &Lin| !l.constant_part().is_integer() || l.terms().any(|(_, c)| !c.is_integer());
+    if ints.iter().chain(&zeros).any(fractional)
         && PhaseLattice::new(&t.kinds(), &ints, &zeros).is_integer(&Lin::constant(Q::new(1, 2)))
     {
         return true;
     }
-    // a symmetry that maps a symbol to itself with the phase -1
-    let lattice = PhaseLattice::of_term(t);
-    for f in t.factors.iter().filter(|f| f.is_symbol()) {
-        for img in classical_images(f) {
-            if img.factor == *f && lattice.constant_sign(&img.phase) == Some(true) {
-                return true;
-            }
-        }
+    // a symmetry that maps a symbol to itself with the phase -1 (the
+    // lattice is built only when some symmetry maps a symbol to itself)
+    let fixed: Vec<Lin> = t
+        .factors
+        .iter()
+        .filter(|f| f.is_symbol())
+        .flat_map(|f| {
+            classical_images(f)
+                .into_iter()
+                .filter(|img| img.factor == *f && !img.phase.is_zero())
+                .map(|img| img.phase)
+        })
+        .collect();
+    if fixed.is_empty() {
+        return false;
     }
-    false
+    let lattice = PhaseLattice::of_term(t);
+    fixed
+        .iter()
+        .any(|phase| lattice.constant_sign(phase) == Some(true))
 }
 
 /// The canonical form of one term (`None` when it is zero).

@@ -451,13 +451,33 @@ pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
     }
     let options = bare.interchanges();
     let mut search = Search::default();
-    for k in 1..=bare.adj.len() {
+    // a reduction planned at an earlier step already proved how many sums
+    // this graph needs: start there instead of proving it again
+    let sig = bare.signature();
+    let start = PROVEN.with(|p| p.borrow().get(&(sig, m.nine_j_is_a_sum)).copied());
+    for k in start.unwrap_or(1).max(1)..=bare.adj.len() {
         for (keep, moved, h) in &options {
             if within(h, k - 1, m, &mut search)? {
                 let line = g.lines.iter().position(|l| {
                     (l.tail.0 == keep.0 && l.head.0 == moved.0)
                         || (l.tail.0 == moved.0 && l.head.0 == keep.0)
                 })?;
+                // what the graph after this interchange (and its free
+                // steps) needs, for the next step
+                let mut next = h.clone();
+                let spent = next.reduce_free(m);
+                if start.is_none() || start == Some(k) {
+                    PROVEN.with(|p| {
+                        let mut p = p.borrow_mut();
+                        if p.len() > 10_000 {
+                            p.clear();
+                        }
+                        p.insert(
+                            (next.signature(), m.nine_j_is_a_sum),
+                            k - 1 - spent.min(k - 1),
+                        );
+                    });
+                }
                 return Some(Choice {
                     line,
                     keep: *keep,
@@ -468,6 +488,13 @@ pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
         }
     }
     None
+}
+
+thread_local! {
+    /// Sums proved necessary and sufficient for graphs met as the next
+    /// graph of a planned reduction (by signature and measure).
+    static PROVEN: std::cell::RefCell<std::collections::HashMap<(u64, bool), usize>> =
+        std::cell::RefCell::new(std::collections::HashMap::new());
 }
 
 /// The fewest sums a reduction of `g` leaves under `m`, when the search

@@ -198,7 +198,8 @@ pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<Grap
     };
     // past PLAN_MAX_VERTICES the search would rarely finish within its
     // budget: the shortest-cycle choice below is kept there
-    let small = g.vertices.len() <= PLAN_MAX_VERTICES;
+    let small =
+        g.vertices.len() <= PLAN_MAX_VERTICES && !skip.iter().any(|s| s == INTERCHANGE_SEARCH);
     let six_j_plan = if small {
         best_interchange(&g, &as_six_j(true))
     } else {
@@ -243,6 +244,10 @@ pub fn next_step_skipping(t: &Term, regge: bool, skip: &[String]) -> Option<Grap
 
 /// Most bare graphs the interchange search visits per step.
 const PLAN_BUDGET: usize = 100_000;
+
+/// The name under which `Options::skip_rules` switches the interchange
+/// search off (the shortest-cycle choice alone).
+pub const INTERCHANGE_SEARCH: &str = "interchange-search";
 
 /// Largest graph (in vertices) the interchange search is run on.
 const PLAN_MAX_VERTICES: usize = 20;

@@ -510,27 +510,101 @@ pub fn recouple_as(
     let (f, t, placeholders) = name_numeric_leaves(from, to);
     let ov = overlap(&f, &t);
     let definition = overlap_definition(&f, &t);
-    if form == Form::Symbols {
-        return derive(ov, definition, &placeholders, opts, form);
-    }
-    // 6j only: a 9j is a sum over three 6j, so the fewest sums of 6j
-    // products may come from a reduction that never forms a 9j; both
-    // reductions are derived and verified, the one with fewer sums (then
-    // fewer symbols) is kept
-    let first = derive(ov.clone(), definition.clone(), &placeholders, opts, form)?;
-    let mut no_nine = opts.clone();
-    no_nine
-        .skip_rules
-        .extend(["9j-recognition", "9j-from-6j-sum"].map(String::from));
-    let Ok(second) = derive(ov, definition, &placeholders, &no_nine, form) else {
-        return Ok(first);
+    // The fewest sums come from the interchanges chosen by search where
+    // the graph decides, but where sums of three 6j later fold into 9j or
+    // vanish by an identity, the shortest-cycle choice can end with fewer;
+    // and with 6j only, a reduction that never forms a 9j may be shorter.
+    // Each reduction is derived and verified; the one with the fewest sums
+    // (then fewest 9j, then fewest symbols) is kept.
+    let skipping = |names: &[&str]| {
+        let mut o = opts.clone();
+        o.skip_rules.extend(names.iter().map(|s| s.to_string()));
+        o
     };
-    let measure = |r: &Recoupling| (r.sums(), r.symbols().0 + r.symbols().1);
-    Ok(if measure(&second) < measure(&first) {
-        second
-    } else {
-        first
-    })
+    // the candidates are compared before the gate (their own steps are
+    // verified as they are made); the one kept then passes the gate
+    let other = match form {
+        Form::Symbols => skipping(&[crate::graph::reduce::INTERCHANGE_SEARCH]),
+        Form::SixJOnly => skipping(&["9j-recognition", "9j-from-6j-sum"]),
+    };
+    // the two run side by side (the second on a worker thread that
+    // inherits the time limit and the declarations; if it fails or cannot
+    // start, the first is kept)
+    let left = crate::limits::seconds_left();
+    let declared = crate::algebra::declare::current();
+    let (searched, second) = std::thread::scope(|s| {
+        let worker = std::thread::Builder::new()
+            .stack_size(256 << 20)
+            .spawn_scoped(s, || {
+                crate::limits::within_time_limit(left, || {
+                    crate::algebra::declare::scoped(&declared, || {
+                        derive(ov.clone(), definition.clone(), &placeholders, &other, form)
+                    })
+                })
+            });
+        let searched = derive(ov.clone(), definition.clone(), &placeholders, opts, form);
+        let second = worker
+            .ok()
+            .and_then(|w| w.join().ok())
+            .and_then(|r| r.ok())
+            .and_then(|r| r.ok());
+        (searched, second)
+    });
+    let searched = searched?;
+    let kept = match second {
+        Some(second) if measure(&second.result) < measure(&searched.result) => second,
+        _ => searched,
+    };
+    kept.certified(opts)
+}
+
+/// Sums, then 9j symbols, then all symbols, of the most complex term.
+fn measure(e: &Expr) -> (usize, usize, usize) {
+    let mut worst = (0, 0, 0);
+    for t in &e.terms {
+        let nine = t
+            .factors
+            .iter()
+            .filter(|f| matches!(f, Factor::NineJ(_)))
+            .count();
+        let symbols = t.factors.iter().filter(|f| f.is_symbol()).count();
+        worst = worst.max((t.bound.len(), nine, symbols));
+    }
+    worst
+}
+
+/// A derivation of the recoupling coefficient before the gate.
+struct Derived {
+    overlap: Expr,
+    definition: Expr,
+    result: Expr,
+    steps: Vec<crate::simplify::Step>,
+    notes: Vec<String>,
+}
+
+impl Derived {
+    /// The result through the verification gate against the overlap's
+    /// definition.
+    fn certified(self, opts: &Options) -> Result<Recoupling, RecoupleError> {
+        let certificate = gate(&self.definition, &self.result, &opts.final_spot)?;
+        let mut notes = self.notes;
+        if !certificate.compared {
+            notes.push("the overlap's definition is too large to evaluate within the budget, so the result was verified step by step only".into());
+        }
+        Ok(Recoupling {
+            overlap: self.overlap.clone(),
+            definition: self.definition,
+            outcome: Outcome {
+                input: self.overlap,
+                checked: certificate.checked,
+                nonzero: certificate.nonzero,
+                certificate,
+                result: self.result,
+                steps: self.steps,
+                notes,
+            },
+        })
+    }
 }
 
 /// One derivation of the recoupling coefficient from its overlap.
@@ -540,8 +614,12 @@ fn derive(
     placeholders: &[(Name, Lin)],
     opts: &Options,
     form: Form,
-) -> Result<Recoupling, RecoupleError> {
-    let mut outcome = simplify(&ov, opts)?;
+) -> Result<Derived, RecoupleError> {
+    // the reduction's own final comparison (with the overlap) on a few
+    // points: the gate compares the kept result with the definition fully
+    let mut light = opts.clone();
+    light.final_spot.samples = light.final_spot.samples.min(8);
+    let mut outcome = simplify(&ov, &light)?;
     let mut result = outcome.result.clone();
     for (n, v) in placeholders {
         ov = ov.substitute(n, v);
@@ -576,24 +654,12 @@ fn derive(
         expand_definition(&mut d, "9j-as-6j-sum")?;
     }
     let (result, steps) = d.finish();
-    let certificate = gate(&definition, &result, &opts.final_spot)?;
-    let mut notes = outcome.notes;
-    if !certificate.compared {
-        notes.push("the overlap's definition is too large to evaluate within the budget, so the result was verified step by step only".into());
-    }
-    outcome = Outcome {
-        input: ov.clone(),
-        checked: certificate.checked,
-        nonzero: certificate.nonzero,
-        certificate,
-        result,
-        steps,
-        notes,
-    };
-    Ok(Recoupling {
+    Ok(Derived {
         overlap: ov,
         definition,
-        outcome,
+        result,
+        steps,
+        notes: outcome.notes,
     })
 }
 

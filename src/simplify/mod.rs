@@ -402,9 +402,24 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             .chain(sum_patterns().iter())
             .filter(|p| !opts.skip_rules.contains(&p.name))
     };
+    // terms no identity fits (in any spelling) are remembered, with what
+    // decides it: the options and the declarations
+    let key = no_identity_key(opts);
+    let dead = |t: &Term| NO_IDENTITY.with(|d| d.borrow().contains(&(t.clone(), key)));
+    let bury = |ts: &[Term]| {
+        NO_IDENTITY.with(|d| {
+            let mut d = d.borrow_mut();
+            if d.len() > 20_000 {
+                d.clear();
+            }
+            for t in ts.iter().filter(|t| !t.bound.is_empty()) {
+                d.insert((t.clone(), key));
+            }
+        })
+    };
     for regge in [false, true] {
         for (i, t) in cur.terms.iter().enumerate() {
-            if t.bound.is_empty() {
+            if t.bound.is_empty() || dead(t) {
                 continue;
             }
             for p in usable() {
@@ -418,6 +433,8 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
                     continue;
                 };
                 let source = if regge {
+                    // the terms before it fit nothing in either pass
+                    bury(&cur.terms[..i]);
                     p.source.clone().noted("matched through a Regge symmetry")
                 } else {
                     p.source.clone()
@@ -431,6 +448,7 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             }
         }
     }
+    bury(&cur.terms);
     // the identities are stated with 3j: a sum whose Clebsch-Gordan
     // coefficients hold a summed variable has them written as 3j first,
     // one at a time, when an identity fits the term so written
@@ -470,6 +488,28 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
         }
     }
     None
+}
+
+thread_local! {
+    /// Terms (with the key of what decided it) that no sum identity fits.
+    static NO_IDENTITY: std::cell::RefCell<std::collections::HashSet<(Term, u64)>> =
+        std::cell::RefCell::new(std::collections::HashSet::new());
+}
+
+/// What decides whether a sum identity fits a term besides the term: the
+/// extra and skipped rules, the graphical route's flag, the declarations.
+fn no_identity_key(opts: &Options) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = std::collections::hash_map::DefaultHasher::new();
+    for r in &opts.extra_rules {
+        r.name.hash(&mut h);
+        r.lhs.hash(&mut h);
+        r.rhs.hash(&mut h);
+    }
+    opts.skip_rules.hash(&mut h);
+    opts.backwards_interchange.hash(&mut h);
+    crate::algebra::declare::current().to_string().hash(&mut h);
+    h.finish()
 }
 
 /// Number of sums and of symbols of the most complex term.
