@@ -270,3 +270,20 @@ fn sums_written_with_clebsch_gordan_coefficients() {
         assert!(equal(&disguised, &out.result, 78));
     }
 }
+
+#[test]
+fn a_sum_is_recognised_through_a_regge_symmetry_without_being_asked() {
+    // 6j orthogonality (Edmonds 6.2.9, from memory) with the second 6j
+    // written through a Regge symmetry that keeps the summed column
+    // (Regge 1959, from memory; the spelling is checked equal first)
+    let plain = "{x, a, b; q, c, d}";
+    let regge = "{x, (a+b+c-d)/2, (a+b-c+d)/2; q, (c+d+a-b)/2, (c+d-a+b)/2}";
+    assert!(equal(&parse(plain).unwrap(), &parse(regge).unwrap(), 31));
+    let input = parse(&format!("sum(x: (2*x+1) (2*p+1) {{x, a, b; p, c, d}} {regge})")).unwrap();
+    let out = simplify(&input, &Options::default()).unwrap();
+    assert_eq!(out.result.to_string(), "delta(p, q) tri(a, d, p) tri(b, c, p)");
+    assert!(out
+        .steps
+        .iter()
+        .any(|s| s.source.text().contains("Regge symmetry")));
+}
