@@ -279,9 +279,15 @@ fn a_sum_is_recognised_through_a_regge_symmetry_without_being_asked() {
     let plain = "{x, a, b; q, c, d}";
     let regge = "{x, (a+b+c-d)/2, (a+b-c+d)/2; q, (c+d+a-b)/2, (c+d-a+b)/2}";
     assert!(equal(&parse(plain).unwrap(), &parse(regge).unwrap(), 31));
-    let input = parse(&format!("sum(x: (2*x+1) (2*p+1) {{x, a, b; p, c, d}} {regge})")).unwrap();
+    let input = parse(&format!(
+        "sum(x: (2*x+1) (2*p+1) {{x, a, b; p, c, d}} {regge})"
+    ))
+    .unwrap();
     let out = simplify(&input, &Options::default()).unwrap();
-    assert_eq!(out.result.to_string(), "delta(p, q) tri(a, d, p) tri(b, c, p)");
+    assert_eq!(
+        out.result.to_string(),
+        "delta(p, q) tri(a, d, p) tri(b, c, p)"
+    );
     assert!(out
         .steps
         .iter()

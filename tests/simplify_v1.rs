@@ -207,3 +207,16 @@ fn a_sum_over_a_projection_its_symbol_pins_has_one_term() {
     assert!(!s.contains("sum("), "{s}");
     assert!(s.contains("m1+m2"), "{s}");
 }
+
+#[test]
+fn symbols_with_a_small_argument_take_their_closed_form_outside_sums() {
+    // Edmonds 1957, Table 2 (from memory): (j, 1, j; -m, 0, m) =
+    // (-1)^(j-m) m / sqrt(j (j+1) (2j+1)), here with tri(1, j, j) kept
+    let s = simp("(j, 1, j; -m, 0, m)");
+    assert_eq!(s, "(-1)^(j-m) tri(1, j, j) m / (sqrt(j) sqrt(j+1) hat(j))");
+    // a Table 5 entry in a spelling of its own (columns permuted)
+    let s = simp("{1, c-1, c; a, b, b-1}");
+    assert!(!s.contains('{'), "{s}");
+    // inside a sum over its projection the symbol stays a symbol
+    assert!(simp("sum(m: (j, 1, j; -m, 0, m) (j, 1, j; -m, 0, m))").contains("(j, j, 1;"));
+}

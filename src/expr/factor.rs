@@ -104,7 +104,11 @@ impl Factor {
             Factor::SixJ(a) => a.iter().collect(),
             Factor::NineJ(a) => a.iter().collect(),
             Factor::Tri(t) => t.iter().collect(),
-            Factor::Power(b, e) if is_hat_base(b) && e.denom() == &2 => vec![b],
+            // hat(j) = sqrt(2j+1) says j is an angular momentum; a root of
+            // a form in several names (sqrt(2j-2m+1)) says nothing of them
+            Factor::Power(b, e) if is_hat_base(b) && e.denom() == &2 && b.terms().count() == 1 => {
+                vec![b]
+            }
             _ => vec![],
         }
     }

@@ -23,6 +23,8 @@ pub struct Prepared<'a> {
     coef_term: Term,
     rhs: Expr,
     vars: BTreeSet<Name>,
+    /// only symbols that hold no summed variable (closed forms)
+    outside_sums: bool,
 }
 
 impl<'a> Prepared<'a> {
@@ -46,6 +48,7 @@ impl<'a> Prepared<'a> {
             coef_term,
             rhs: rule.rhs.rename(&map),
             vars: map.values().cloned().collect(),
+            outside_sums: rule.kind == super::RuleKind::ClosedForm,
         })
     }
 
@@ -54,6 +57,9 @@ impl<'a> Prepared<'a> {
     pub fn rewrite(&self, t: &Term, regge: bool) -> Option<Expr> {
         for (i, f) in t.factors.iter().enumerate() {
             if std::mem::discriminant(f) != std::mem::discriminant(&self.pattern) {
+                continue;
+            }
+            if self.outside_sums && t.bound.iter().any(|b| f.has(b)) {
                 continue;
             }
             let images = if regge {

@@ -20,6 +20,10 @@ use std::sync::OnceLock;
 pub enum RuleKind {
     /// a single symbol with special arguments
     Special,
+    /// a closed form of a single symbol with a small argument, used only
+    /// where the symbol holds no summed variable (inside a sum it would
+    /// hide the structure the graph and the sum identities need)
+    ClosedForm,
     /// a sum over projections
     ProjectionSum,
     /// a sum over angular momenta
@@ -179,6 +183,7 @@ pub fn parse_catalog(text: &str) -> Result<Vec<Rule>, RuleError> {
             let (kind, source) = tail.split_once('|').unwrap_or((tail, ""));
             let kind = match kind.trim() {
                 "special" => RuleKind::Special,
+                "closed-form" => RuleKind::ClosedForm,
                 "projection" => RuleKind::ProjectionSum,
                 "sum" => RuleKind::MomentumSum,
                 "definition" => RuleKind::Definition,

@@ -685,7 +685,7 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
         .extra_rules
         .iter()
         .chain(catalog().iter())
-        .filter(|r| r.kind == RuleKind::Special)
+        .filter(|r| matches!(r.kind, RuleKind::Special | RuleKind::ClosedForm))
         .collect();
     let prepared: Vec<Prepared> = rules.iter().filter_map(|r| Prepared::new(r)).collect();
     let mut tried_graphical: std::collections::HashSet<Term> = std::collections::HashSet::new();
