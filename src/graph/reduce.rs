@@ -250,7 +250,7 @@ const PLAN_BUDGET: usize = 100_000;
 pub const INTERCHANGE_SEARCH: &str = "interchange-search";
 
 /// Largest graph (in vertices) the interchange search is run on.
-const PLAN_MAX_VERTICES: usize = 20;
+const PLAN_MAX_VERTICES: usize = 16;
 
 /// The interchange on line `x` between vertices `ends`: the leg `ma` of the
 /// first stays, the leg `md` of the second moves across.
