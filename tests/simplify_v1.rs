@@ -220,3 +220,22 @@ fn symbols_with_a_small_argument_take_their_closed_form_outside_sums() {
     // inside a sum over its projection the symbol stays a symbol
     assert!(simp("sum(m: (j, 1, j; -m, 0, m) (j, 1, j; -m, 0, m))").contains("(j, j, 1;"));
 }
+
+#[test]
+fn a_root_of_a_product_keeps_its_factors_nonnegative() {
+    // (b+c-a-1)(b+c-a) is 2 at a = 0, b = c = 1; the normal form of the
+    // product reads (a-b-c+1)(a-b-c), whose factors are negative there: the
+    // root must not be split into roots of negative numbers
+    use recoup::numeric::eval::eval_exact;
+    let e = parse("sqrt((b+c-a-1)*(b+c-a))").unwrap();
+    let at = [("a", 0), ("b", 1), ("c", 1)]
+        .iter()
+        .map(|(n, v)| {
+            (
+                recoup::expr::Name::new(*n),
+                recoup::expr::Q::from_integer(*v),
+            )
+        })
+        .collect();
+    assert_eq!(eval_exact(&e, &at).unwrap().to_string(), "sqrt(2)");
+}

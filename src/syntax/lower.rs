@@ -654,33 +654,49 @@ impl Ctx<'_> {
                 let (neg, _) = t.scalar().as_signed_square().unwrap();
                 let mut factors = t.factors.clone();
                 let mut coef = t.coef.clone();
-                if neg {
-                    // the light normal form moved a sign out of some linear
-                    // factor (b+c-a became -(a-b-c)); put it back into the
-                    // one that reads as a triangle-type form
-                    let score = |l: &Lin| {
-                        l.terms()
-                            .map(|(_, c)| if *c > Q::zero() { -1 } else { 1 })
-                            .sum::<i32>()
-                    };
-                    let pick = factors
-                        .iter()
-                        .enumerate()
-                        .filter(|(_, f)| matches!(f, Factor::Power(_, e) if e.is_integer() && e.to_integer() % 2 != 0))
-                        .max_by_key(|(_, f)| match f {
-                            Factor::Power(b, _) => score(b),
-                            _ => i32::MIN,
-                        })
-                        .map(|(i, _)| i);
-                    match pick {
-                        Some(i) => {
-                            if let Factor::Power(b, e) = &factors[i] {
-                                factors[i] = Factor::Power(-b, *e);
-                            }
-                            coef = -coef;
+                // the light normal form moves signs out of linear factors
+                // (b+c-a becomes -(a-b-c)), which is harmless in a product
+                // but not under a root: each odd power is turned back to
+                // read as a triangle-type form (more plus than minus signs),
+                // keeping the product's sign, so that no factor under the
+                // root is negative where the whole is not
+                let score = |l: &Lin| {
+                    l.terms()
+                        .map(|(_, c)| if *c > Q::zero() { -1 } else { 1 })
+                        .sum::<i32>()
+                };
+                let odd: Vec<(usize, i32)> = factors
+                    .iter()
+                    .enumerate()
+                    .filter_map(|(i, f)| match f {
+                        Factor::Power(b, e) if e.is_integer() && e.to_integer() % 2 != 0 => {
+                            Some((i, score(b)))
                         }
-                        None => return Err(self.err(at, "square root of a negative number")),
+                        _ => None,
+                    })
+                    .collect();
+                let mut flip: Vec<usize> = odd
+                    .iter()
+                    .filter(|(_, s)| *s > 0)
+                    .map(|(i, _)| *i)
+                    .collect();
+                if (flip.len() % 2 == 1) != neg {
+                    // one more or one fewer: the factor nearest a tie
+                    let Some(&(i, _)) = odd.iter().min_by_key(|(_, s)| s.abs()) else {
+                        return Err(self.err(at, "square root of a negative number"));
+                    };
+                    match flip.iter().position(|x| *x == i) {
+                        Some(k) => {
+                            flip.remove(k);
+                        }
+                        None => flip.push(i),
                     }
+                }
+                for &i in &flip {
+                    if let Factor::Power(b, e) = &factors[i] {
+                        factors[i] = Factor::Power(-b, *e);
+                    }
+                    coef = -coef;
                 }
                 // sqrt(q sqrt(s)) needs s = 1
                 if !t.root.is_one() {
