@@ -164,3 +164,19 @@ fn the_language_reads_declarations_before_the_expression() {
     // the plain parser does not drop declarations silently
     assert!(parse("integer k; k").is_err());
 }
+
+#[test]
+fn a_declaration_lets_a_sum_reduce_that_is_not_an_identity_without_it() {
+    // sum over x of (2x+1) (a, b, x; 0, 0, 0)^2 is 1 for integer a, b
+    // (3j completeness, Edmonds 1957 eq. 3.7.7, from memory) and 0 where a
+    // or b is half-odd (a projection 0 needs an integer j): undeclared it
+    // must stay a sum
+    use recoup::simplify::{simplify, Options};
+    let text = "sum(x: (2*x+1) (a, b, x; 0, 0, 0) (a, b, x; 0, 0, 0))";
+    let e = parse(text).unwrap();
+    let undeclared = simplify(&e, &Options::default()).unwrap();
+    assert!(undeclared.result.to_string().starts_with("sum("));
+    let d = declared(&["a", "b"], &[]);
+    let out = scoped(&d, || simplify(&e, &Options::default()).unwrap());
+    assert_eq!(out.result.to_string(), "1");
+}
