@@ -499,6 +499,25 @@ fn the_reported_defects_stay_fixed() {
             "",
             0,
         ),
+        // found by a long run (seed 11): 9j-zero on a 9j whose entries are
+        // forms that go negative; its right side's hats were undefined
+        // where the symbol they stand beside is 0
+        (
+            &[
+                "simplify",
+                "(-1)^(b-y') - (j2+1, j2, 2*k; 2*M, -m1, q-m1) {-j1, b-c, b; b, b-b, j1; a, d-j1, y'} (-1)^(2*j1) + (-1)^(J)",
+            ],
+            "",
+            0,
+        ),
+        (
+            &[
+                "simplify",
+                "hat(j2) - hat(x) {j2-y', 2, x+1/2; J-x, y', k-a} {j2-J, b-y', 0; y'+2, a+1/2, -J; -x, -k, -k}",
+            ],
+            "",
+            0,
+        ),
         (&["check", "{1, 1, 1; 3, 2, -1}", "0"], "", 2),
         (&["latex", "hat(1/3)"], "", 2),
         (&["graph", "(1, 1, 1; 1/3, 0, 0)"], "", 2),

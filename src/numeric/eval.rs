@@ -959,6 +959,11 @@ impl<F: Field> Evaluator<F> {
     /// The product at a full assignment (`None` for zero).
     fn product(&self, c: &CTerm, env: &[i64]) -> Result<Option<F::Prod>, EvalError> {
         let mut acc = F::prod_one();
+        // a power that is undefined here (a root of a negative number, a
+        // division by zero) is an error only if no other factor is zero: a
+        // symbol outside its selection rules makes the term 0, as a rule's
+        // right side assumes where it keeps a symbol for that purpose
+        let mut undefined: Option<EvalError> = None;
         for f in &c.factors {
             match f {
                 CFactor::Delta(a, b) => {
@@ -976,17 +981,19 @@ impl<F: Field> Evaluator<F> {
                     let b = base.value(env);
                     if b.is_zero() {
                         if e.is_negative() {
-                            return Err(EvalError::Arithmetic(format!(
+                            undefined.get_or_insert(EvalError::Arithmetic(format!(
                                 "division by zero: {text} is 0 here"
                             )));
+                            continue;
                         }
                         return Ok(None);
                     }
                     if b.is_negative() && !e.is_integer() {
-                        return Err(EvalError::Arithmetic(format!(
+                        undefined.get_or_insert(EvalError::Arithmetic(format!(
                             "square root of a negative number: {text} = {} here",
                             qstr(&b)
                         )));
+                        continue;
                     }
                     let key = (b, *e);
                     let cached = self.powers.borrow().get(&key).cloned();
@@ -1075,6 +1082,9 @@ impl<F: Field> Evaluator<F> {
                     }
                 }
             }
+        }
+        if let Some(e) = undefined {
+            return Err(e);
         }
         if let Some((ph, text)) = &c.phase {
             let n = ph.num(env);
