@@ -116,36 +116,7 @@ fn the_standard_projection_sums_reduce_in_any_disguise() {
     }
 }
 
-/// The cube and the twisted (Moebius) prism on 8 vertices: the two cubic
-/// graphs of the 12j symbols (common practice, no source).
-const CUBE: [(usize, usize); 12] = [
-    (0, 1),
-    (1, 2),
-    (2, 3),
-    (3, 0),
-    (4, 5),
-    (5, 6),
-    (6, 7),
-    (7, 4),
-    (0, 4),
-    (1, 5),
-    (2, 6),
-    (3, 7),
-];
-const TWISTED_PRISM: [(usize, usize); 12] = [
-    (0, 1),
-    (1, 2),
-    (2, 3),
-    (3, 4),
-    (4, 5),
-    (5, 6),
-    (6, 7),
-    (7, 0),
-    (0, 4),
-    (1, 5),
-    (2, 6),
-    (3, 7),
-];
+use recoup::graph::samples::{CUBE, K33, TWISTED_PRISM};
 
 fn graph_expr(n: usize, edges: &[(usize, usize)]) -> String {
     recoup::graph::samples::cubic_graph_sum(n, edges)
@@ -262,21 +233,7 @@ fn sums_match_the_fewest_over_every_reduction_order() {
     let named: [Named; 4] = [
         ("cube", 8, CUBE.to_vec()),
         ("twisted prism", 8, TWISTED_PRISM.to_vec()),
-        (
-            "K3,3",
-            6,
-            vec![
-                (0, 3),
-                (0, 4),
-                (0, 5),
-                (1, 3),
-                (1, 4),
-                (1, 5),
-                (2, 3),
-                (2, 4),
-                (2, 5),
-            ],
-        ),
+        ("K3,3", 6, K33.to_vec()),
         (
             "Petersen",
             10,

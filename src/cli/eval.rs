@@ -1,6 +1,8 @@
 //! `recoup eval`: one expression, or `--batch` lines from standard input.
 
-use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
+use super::input::{
+    decode, explain_phase, parse_expr, read_arg, summed_declaration_problem, validate_literals,
+};
 use super::{outln, Failure, Io};
 use crate::expr::{Name, Q};
 use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
@@ -202,13 +204,8 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                         .map_err(|c| (false, c.to_string()))?;
                     let line_notes = crate::syntax::literal_zero_notes(&e);
                     crate::algebra::declare::scoped(&declared, || {
-                        if let Some((name, parity, _)) =
-                            crate::algebra::declare::unimplied_summed(&e)
-                        {
-                            return Err((false, format!(
-                                "{name} is summed and declared {}, but its values are fixed by the names it couples to; declare those instead",
-                                parity.word()
-                            )));
+                        if let Some(problem) = summed_declaration_problem(&e) {
+                            return Err((false, problem));
                         }
                         match answer(&e, at, a.float) {
                             Ok(v) => Ok((line_notes, v)),

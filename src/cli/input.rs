@@ -76,14 +76,20 @@ pub fn parse_expr(text: &str) -> Result<Expr, Failure> {
     let (declared, e) = crate::syntax::parse_declared(text)
         .map_err(|e| Failure::input(format!("parse error at {e}")))?;
     declare::add_to_current(&declared).map_err(|c| Failure::input(c.to_string()))?;
-    if let Some((name, parity, term)) = declare::unimplied_summed(&e) {
-        return Err(Failure::input(format!(
-            "{name} is summed in {} and is declared {}, but its values there are fixed by the names it couples to, not by a declaration; declare those free names instead (a summed name's declaration must follow from them)",
-            crate::syntax::print_term(&term),
-            parity.word()
-        )));
+    if let Some(problem) = summed_declaration_problem(&e) {
+        return Err(Failure::input(problem));
     }
     Ok(e)
+}
+
+/// A summed name declared with a parity its term does not imply, in words.
+pub fn summed_declaration_problem(e: &Expr) -> Option<String> {
+    let (name, parity, term) = declare::unimplied_summed(e)?;
+    Some(format!(
+        "{name} is summed in {} and is declared {}, but its values there are fixed by the names it couples to, not by a declaration; declare those free names instead (a summed name's declaration must follow from them)",
+        crate::syntax::print_term(&term),
+        parity.word()
+    ))
 }
 
 /// Turns a phase with a non-integer exponent into a message about the

@@ -442,11 +442,11 @@ fn within(g: &Bare, k: usize, m: &Measure, s: &mut Search) -> Option<bool> {
 /// The first interchange of a reduction of `g` with the fewest sums, when
 /// the graph needs one and the search finishes within its budget.
 pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
-    let mut bare = Bare::of(g);
-    let spent = bare.reduce_free(m);
+    let bare = Bare::of(g);
     // only a graph the reduction would interchange on now: nothing free
     // may be left to do first
-    if spent > 0 || bare != Bare::of(g) || bare.lines().is_empty() {
+    let mut reduced = bare.clone();
+    if reduced.reduce_free(m) > 0 || reduced != bare || bare.lines().is_empty() {
         return None;
     }
     let options = bare.interchanges();
@@ -474,7 +474,7 @@ pub fn best_interchange(g: &Graph, m: &Measure) -> Option<Choice> {
                         }
                         p.insert(
                             (next.signature(), m.nine_j_is_a_sum),
-                            k - 1 - spent.min(k - 1),
+                            (k - 1).saturating_sub(spent),
                         );
                     });
                 }
@@ -497,23 +497,36 @@ thread_local! {
         std::cell::RefCell::new(std::collections::HashMap::new());
 }
 
-/// The fewest sums a reduction of `g` leaves under `m`, when the search
-/// finishes within its budget.
-pub fn fewest_sums(g: &Graph, m: &Measure) -> Option<usize> {
-    let bare = Bare::of(g);
-    let mut search = Search::default();
-    (0..=bare.adj.len()).find_map(|k| match within(&bare, k, m, &mut search) {
-        Some(true) => Some(Some(k)),
-        Some(false) => None,
-        None => Some(None),
-    })?
-}
-
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::graph::samples::cubic_graph_sum;
+    use crate::graph::samples::{cubic_graph_sum, CUBE, K33};
     use crate::syntax::parse;
+
+    /// The triangular prism: two triangles joined by three lines.
+    const PRISM: [(usize, usize); 9] = [
+        (0, 1),
+        (1, 2),
+        (2, 0),
+        (3, 4),
+        (4, 5),
+        (5, 3),
+        (0, 3),
+        (1, 4),
+        (2, 5),
+    ];
+
+    /// The fewest sums a reduction of `g` leaves under `m`, when the
+    /// search finishes within its budget.
+    fn fewest_sums(g: &Graph, m: &Measure) -> Option<usize> {
+        let bare = Bare::of(g);
+        let mut search = Search::default();
+        (0..=bare.adj.len()).find_map(|k| match within(&bare, k, m, &mut search) {
+            Some(true) => Some(Some(k)),
+            Some(false) => None,
+            None => Some(None),
+        })?
+    }
 
     fn fewest(n: usize, edges: &[(usize, usize)], nine_j_is_a_sum: bool) -> Option<usize> {
         let e = parse(&cubic_graph_sum(n, edges)).unwrap();
@@ -532,67 +545,17 @@ mod tests {
         // K4 is a 6j, the prism reduces by triangles, K3,3 is a 9j: one sum
         // of 6j when written with 6j only (common practice, no source)
         let k4 = [(0, 1), (0, 2), (0, 3), (1, 2), (1, 3), (2, 3)];
-        let prism = [
-            (0, 1),
-            (1, 2),
-            (2, 0),
-            (3, 4),
-            (4, 5),
-            (5, 3),
-            (0, 3),
-            (1, 4),
-            (2, 5),
-        ];
-        let k33 = [
-            (0, 3),
-            (0, 4),
-            (0, 5),
-            (1, 3),
-            (1, 4),
-            (1, 5),
-            (2, 3),
-            (2, 4),
-            (2, 5),
-        ];
         assert_eq!(fewest(4, &k4, true), Some(0));
-        assert_eq!(fewest(6, &prism, true), Some(0));
-        assert_eq!(fewest(6, &k33, false), Some(0));
-        assert_eq!(fewest(6, &k33, true), Some(1));
+        assert_eq!(fewest(6, &PRISM, true), Some(0));
+        assert_eq!(fewest(6, &K33, false), Some(0));
+        assert_eq!(fewest(6, &K33, true), Some(1));
         // the cube (a 12j graph) needs one interchange either way
-        let cube = [
-            (0, 1),
-            (1, 2),
-            (2, 3),
-            (3, 0),
-            (4, 5),
-            (5, 6),
-            (6, 7),
-            (7, 4),
-            (0, 4),
-            (1, 5),
-            (2, 6),
-            (3, 7),
-        ];
-        assert_eq!(fewest(8, &cube, true), Some(1));
+        assert_eq!(fewest(8, &CUBE, true), Some(1));
     }
 
     #[test]
     fn a_choice_is_offered_only_where_an_interchange_is_next() {
-        let e = parse(&cubic_graph_sum(
-            6,
-            &[
-                (0, 1),
-                (1, 2),
-                (2, 0),
-                (3, 4),
-                (4, 5),
-                (5, 3),
-                (0, 3),
-                (1, 4),
-                (2, 5),
-            ],
-        ))
-        .unwrap();
+        let e = parse(&cubic_graph_sum(6, &PRISM)).unwrap();
         let g = Graph::of_term(&e.terms[0]);
         let m = Measure {
             nine_j_is_a_sum: true,

@@ -6,6 +6,53 @@
 
 use crate::verify::rng::Rng;
 
+/// The cube on 8 vertices, one of the two cubic graphs of the 12j symbols
+/// (common practice, no source).
+pub const CUBE: [(usize, usize); 12] = [
+    (0, 1),
+    (1, 2),
+    (2, 3),
+    (3, 0),
+    (4, 5),
+    (5, 6),
+    (6, 7),
+    (7, 4),
+    (0, 4),
+    (1, 5),
+    (2, 6),
+    (3, 7),
+];
+
+/// The twisted (Moebius) prism on 8 vertices, the other 12j graph (common
+/// practice, no source).
+pub const TWISTED_PRISM: [(usize, usize); 12] = [
+    (0, 1),
+    (1, 2),
+    (2, 3),
+    (3, 4),
+    (4, 5),
+    (5, 6),
+    (6, 7),
+    (7, 0),
+    (0, 4),
+    (1, 5),
+    (2, 6),
+    (3, 7),
+];
+
+/// K3,3, the graph of the 9j symbol (common practice, no source).
+pub const K33: [(usize, usize); 9] = [
+    (0, 3),
+    (0, 4),
+    (0, 5),
+    (1, 3),
+    (1, 4),
+    (1, 5),
+    (2, 3),
+    (2, 4),
+    (2, 5),
+];
+
 /// The projection sum of a closed cubic graph on `n` vertices.
 pub fn cubic_graph_sum(n: usize, edges: &[(usize, usize)]) -> String {
     let mut slots: Vec<Vec<(String, String)>> = vec![Vec::new(); n];

@@ -418,35 +418,40 @@ pub enum Form {
 impl Recoupling {
     /// Number of sums over angular momenta left.
     pub fn sums(&self) -> usize {
-        self.outcome
-            .result
-            .terms
-            .iter()
-            .map(|t| t.bound.len())
-            .max()
-            .unwrap_or(0)
+        sums_of(&self.outcome.result)
     }
 
     /// Number of 6j and 9j symbols (in the term with the most).
     pub fn symbols(&self) -> (usize, usize) {
-        let mut best = (0, 0);
-        for t in &self.outcome.result.terms {
-            let six = t
-                .factors
-                .iter()
-                .filter(|f| matches!(f, Factor::SixJ(_)))
-                .count();
-            let nine = t
-                .factors
-                .iter()
-                .filter(|f| matches!(f, Factor::NineJ(_)))
-                .count();
-            if six + nine > best.0 + best.1 {
-                best = (six, nine);
-            }
-        }
-        best
+        symbols_of(&self.outcome.result)
     }
+}
+
+/// Number of sums over angular momenta (in the term with the most).
+fn sums_of(e: &Expr) -> usize {
+    e.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
+}
+
+/// Number of 6j and 9j symbols (in the term with the most).
+fn symbols_of(e: &Expr) -> (usize, usize) {
+    let mut best = (0, 0);
+    for t in &e.terms {
+        let count = |six: bool| {
+            t.factors
+                .iter()
+                .filter(|f| match f {
+                    Factor::SixJ(_) => six,
+                    Factor::NineJ(_) => !six,
+                    _ => false,
+                })
+                .count()
+        };
+        let (six, nine) = (count(true), count(false));
+        if six + nine > best.0 + best.1 {
+            best = (six, nine);
+        }
+    }
+    best
 }
 
 /// Numeric leaves as placeholder names (the k-th leaf of a value in one
@@ -558,19 +563,11 @@ pub fn recouple_as(
     kept.certified(opts)
 }
 
-/// Sums, then 9j symbols, then all symbols, of the most complex term.
+/// Sums, then 9j symbols, then 6j and 9j symbols together: what the
+/// kept reduction has fewest of.
 fn measure(e: &Expr) -> (usize, usize, usize) {
-    let mut worst = (0, 0, 0);
-    for t in &e.terms {
-        let nine = t
-            .factors
-            .iter()
-            .filter(|f| matches!(f, Factor::NineJ(_)))
-            .count();
-        let symbols = t.factors.iter().filter(|f| f.is_symbol()).count();
-        worst = worst.max((t.bound.len(), nine, symbols));
-    }
-    worst
+    let (six, nine) = symbols_of(e);
+    (sums_of(e), nine, six + nine)
 }
 
 /// A derivation of the recoupling coefficient before the gate.

@@ -405,7 +405,7 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
     // terms no identity fits (in any spelling) are remembered, with what
     // decides it: the options and the declarations
     let key = no_identity_key(opts);
-    let dead = |t: &Term| NO_IDENTITY.with(|d| d.borrow().contains(&(t.clone(), key)));
+    let dead = |t: &Term| NO_IDENTITY.with(|d| d.borrow().contains(&term_key(t, key)));
     let bury = |ts: &[Term]| {
         NO_IDENTITY.with(|d| {
             let mut d = d.borrow_mut();
@@ -413,7 +413,7 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
                 d.clear();
             }
             for t in ts.iter().filter(|t| !t.bound.is_empty()) {
-                d.insert((t.clone(), key));
+                d.insert(term_key(t, key));
             }
         })
     };
@@ -424,12 +424,7 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             }
             for p in usable() {
                 crate::limits::tick();
-                let found = if regge {
-                    p.apply_simplest(t, &Default::default(), true, 512)
-                } else {
-                    p.apply_first(t, &Default::default(), false)
-                };
-                let Some((m, replacement)) = found else {
+                let Some((m, replacement)) = sum_identity_match(p, t, regge) else {
                     continue;
                 };
                 let source = if regge {
@@ -456,28 +451,21 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
         let Some(first) = crate::graph::reduce::cg_in_sum_step(t) else {
             continue;
         };
+        let single =
+            |e: &Expr| -> Option<Term> { (e.terms.len() == 1).then(|| e.terms[0].clone()) };
         let mut written = first.replacement.clone();
-        while let Some(next) = written
-            .terms
-            .first()
-            .filter(|_| written.terms.len() == 1)
+        while let Some(next) = single(&written)
+            .as_ref()
             .and_then(crate::graph::reduce::cg_in_sum_step)
         {
             written = next.replacement;
         }
-        let Some(as_3j) = written.terms.first().filter(|_| written.terms.len() == 1) else {
+        let Some(as_3j) = single(&written) else {
             continue;
         };
-        let fits = [false, true].iter().any(|&regge| {
-            usable().any(|p| {
-                if regge {
-                    p.apply_simplest(as_3j, &Default::default(), true, 512)
-                        .is_some()
-                } else {
-                    p.apply_first(as_3j, &Default::default(), false).is_some()
-                }
-            })
-        });
+        let fits = [false, true]
+            .iter()
+            .any(|&regge| usable().any(|p| sum_identity_match(p, &as_3j, regge).is_some()));
         if fits {
             return Some(Proposal {
                 rule: first.rule,
@@ -490,10 +478,35 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
     None
 }
 
+/// A sum identity's first match in a term: through the classical
+/// symmetries, or through Regge's (then the simplest of the matches).
+fn sum_identity_match(
+    p: &crate::rules::matcher::Pattern,
+    t: &Term,
+    regge: bool,
+) -> Option<(crate::rules::matcher::Match, Expr)> {
+    if regge {
+        p.apply_simplest(t, &Default::default(), true, 512)
+    } else {
+        p.apply_first(t, &Default::default(), false)
+    }
+}
+
 thread_local! {
-    /// Terms (with the key of what decided it) that no sum identity fits.
-    static NO_IDENTITY: std::cell::RefCell<std::collections::HashSet<(Term, u64)>> =
+    /// Terms (hashed with the key of what decided it) that no sum identity
+    /// fits. A collision could only leave a sum unreduced, never make a
+    /// wrong rewrite.
+    static NO_IDENTITY: std::cell::RefCell<std::collections::HashSet<u64>> =
         std::cell::RefCell::new(std::collections::HashSet::new());
+}
+
+/// A term's hash with the key of what decides whether an identity fits.
+fn term_key(t: &Term, key: u64) -> u64 {
+    use std::hash::{Hash, Hasher};
+    let mut h = std::collections::hash_map::DefaultHasher::new();
+    t.hash(&mut h);
+    key.hash(&mut h);
+    h.finish()
 }
 
 /// What decides whether a sum identity fits a term besides the term: the
