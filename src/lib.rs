@@ -30,4 +30,5 @@ pub mod render;
 pub mod rules;
 pub mod simplify;
 pub mod syntax;
+pub mod tensor;
 pub mod verify;

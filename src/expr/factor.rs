@@ -3,6 +3,7 @@
 //! `hat(x)` is `(2x+1)^(1/2)`). Knows which slots hold angular momenta,
 //! which hold projections, and which triads each symbol implies.
 
+use super::element::MatrixElement;
 use super::lin::{Lin, Q};
 use super::name::Name;
 use std::collections::BTreeMap;
@@ -24,6 +25,9 @@ pub enum Factor {
     SixJ([Lin; 6]),
     /// `{a, b, c; d, e, f; g, h, i}` row by row
     NineJ([Lin; 9]),
+    /// a matrix element `<BRA | OP | KET>` or reduced matrix element
+    /// `<BRA || OP || KET>` of a tensor operator
+    Element(Box<MatrixElement>),
 }
 
 /// What a variable is, inferred from the slots it occupies.
@@ -46,6 +50,7 @@ impl Factor {
             Factor::Power(b, _) => vec![b],
             Factor::ThreeJ(a) | Factor::Cg(a) | Factor::SixJ(a) => a.iter().collect(),
             Factor::NineJ(a) => a.iter().collect(),
+            Factor::Element(e) => e.lins(),
         }
     }
 
@@ -65,6 +70,7 @@ impl Factor {
                 let v: Vec<Lin> = a.iter().map(&mut *f).collect();
                 Factor::NineJ(v.try_into().unwrap())
             }
+            Factor::Element(e) => Factor::Element(Box::new(e.map_lins(&mut *f))),
         }
     }
 
@@ -104,6 +110,7 @@ impl Factor {
             Factor::SixJ(a) => a.iter().collect(),
             Factor::NineJ(a) => a.iter().collect(),
             Factor::Tri(t) => t.iter().collect(),
+            Factor::Element(e) => e.j_slots(),
             // hat(j) = sqrt(2j+1) says j is an angular momentum; a root of
             // a form in several names (sqrt(2j-2m+1)) says nothing of them
             Factor::Power(b, e) if is_hat_base(b) && e.denom() == &2 && b.terms().count() == 1 => {
@@ -118,6 +125,7 @@ impl Factor {
         match self {
             Factor::ThreeJ(a) => vec![&a[3], &a[4], &a[5]],
             Factor::Cg(a) => vec![&a[1], &a[3], &a[5]],
+            Factor::Element(e) => e.m_slots(),
             _ => vec![],
         }
     }
@@ -127,6 +135,7 @@ impl Factor {
         match self {
             Factor::ThreeJ(a) => vec![(&a[0], &a[3]), (&a[1], &a[4]), (&a[2], &a[5])],
             Factor::Cg(a) => vec![(&a[0], &a[1]), (&a[2], &a[3]), (&a[4], &a[5])],
+            Factor::Element(e) => e.columns(),
             _ => vec![],
         }
     }
@@ -137,6 +146,7 @@ impl Factor {
         match self {
             Factor::ThreeJ(a) => Some(&(&a[3] + &a[4]) + &a[5]),
             Factor::Cg(a) => Some(&(&a[1] + &a[3]) - &a[5]),
+            Factor::Element(e) => e.conservation(),
             _ => None,
         }
     }
@@ -161,6 +171,7 @@ impl Factor {
                 [&a[1], &a[4], &a[7]],
                 [&a[2], &a[5], &a[8]],
             ],
+            Factor::Element(e) => e.triads(),
             _ => vec![],
         }
     }
@@ -183,6 +194,8 @@ impl Factor {
             Factor::Cg(_) => "Clebsch-Gordan coefficient",
             Factor::SixJ(_) => "6j symbol",
             Factor::NineJ(_) => "9j symbol",
+            Factor::Element(e) if e.is_reduced() => "reduced matrix element",
+            Factor::Element(_) => "matrix element",
         }
     }
 }

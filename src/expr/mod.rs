@@ -1,12 +1,14 @@
 //! The data model: linear forms, factors, terms and sums, and coupling
 //! trees. Everything after `syntax` works on these types.
 
+pub mod element;
 pub mod factor;
 pub mod lin;
 pub mod name;
 pub mod term;
 pub mod tree;
 
+pub use element::{MatrixElement, Operator, OperatorName, State};
 pub use factor::{Factor, Kind};
 pub use lin::{Lin, Q};
 pub use name::Name;

@@ -8,7 +8,7 @@ use std::fmt;
 pub type TreeLeaf = Lin;
 
 /// A binary coupling tree.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, PartialEq, Eq, Hash, PartialOrd, Ord)]
 pub enum CouplingTree {
     /// an angular momentum being coupled
     Leaf(TreeLeaf),

@@ -113,6 +113,9 @@ pub enum EvalError {
     /// A square root of a negative number or a division by zero.
     #[error("{0}")]
     Arithmetic(String),
+    /// A matrix element the direct evaluation cannot expand.
+    #[error("{0}")]
+    Element(String),
     /// A symbol too large to evaluate this way.
     #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
     SymbolTooLarge(String, i64),
@@ -491,6 +494,8 @@ enum CFactor {
     Tri([CLin; 3]),
     Power(CLin, Q, String),
     Symbol(SymbolKind, Vec<CLin>),
+    /// a matrix element: evaluated directly from its definition
+    Element(Box<crate::expr::MatrixElement>, Vec<CLin>),
 }
 
 /// One level of the nested summation: the variable, how it is found, and
@@ -552,6 +557,7 @@ impl CTerm {
                 Factor::Cg(_) => symbols.push(CFactor::Symbol(SymbolKind::Cg, args())),
                 Factor::SixJ(_) => symbols.push(CFactor::Symbol(SymbolKind::SixJ, args())),
                 Factor::NineJ(_) => symbols.push(CFactor::Symbol(SymbolKind::NineJ, args())),
+                Factor::Element(e) => symbols.push(CFactor::Element(e.clone(), args())),
             }
         }
         let mut factors = cheap;
@@ -1021,6 +1027,18 @@ impl<F: Field> Evaluator<F> {
                         }
                     };
                     F::prod_mul(&mut acc, &p);
+                }
+                CFactor::Element(e, args) => {
+                    let mut values = args.iter().map(|l| l.value(env));
+                    let numeric = e.map_lins(&mut |_| {
+                        Lin::constant(values.next().expect("one value per form"))
+                    });
+                    let v = crate::tensor::direct::value(&numeric)
+                        .map_err(|err| EvalError::Element(err.to_string()))?;
+                    if v.is_zero() {
+                        return Ok(None);
+                    }
+                    F::prod_mul(&mut acc, &F::prod_of(&F::from_surd(&v)));
                 }
                 CFactor::Symbol(kind, args) => {
                     let mut a = [0i64; 9];

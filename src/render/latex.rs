@@ -3,8 +3,11 @@
 //! `\sum_{m_1 m_2}` for sums, subscripts from trailing digits (`j12` →
 //! `j_{12}`), primes kept, Greek names as Greek letters.
 
+use crate::expr::element::subtree;
 use crate::expr::factor::is_hat_base;
-use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
+use crate::expr::{
+    CouplingTree, Expr, Factor, Lin, MatrixElement, Name, Operator, OperatorName, State, Term, Q,
+};
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, Zero};
@@ -166,7 +169,102 @@ pub fn factor(f: &Factor) -> String {
             row(&a[3..6]),
             row(&a[6..])
         ),
+        Factor::Element(e) => element(e),
     }
+}
+
+fn tree(t: &CouplingTree) -> String {
+    match t {
+        CouplingTree::Leaf(l) => lin(l),
+        CouplingTree::Node(a, b, l) => format!("({}, {})\\,{}", tree(a), tree(b), lin(l)),
+    }
+}
+
+fn state(s: &State) -> String {
+    match &s.projection {
+        Some(m) => format!("{}, {}", tree(&s.tree), lin(m)),
+        None => tree(&s.tree),
+    }
+}
+
+fn operator(op: &Operator, bra: &CouplingTree, nested: bool) -> String {
+    let superscript = |rank: &Lin, component: &Option<Lin>| match component {
+        Some(q) => format!("^{{({})}}_{{{}}}", lin(rank), lin(q)),
+        None => format!("^{{({})}}", lin(rank)),
+    };
+    match op {
+        Operator::Elementary {
+            name,
+            rank,
+            component,
+            node,
+        } => {
+            let symbol = match name {
+                OperatorName::AngularMomentum => "J".to_string(),
+                OperatorName::Spherical => "C".to_string(),
+                OperatorName::Unit => "u".to_string(),
+                OperatorName::Opaque(s) if s.len() == 1 => s.clone(),
+                OperatorName::Opaque(s) => format!("\\mathrm{{{s}}}"),
+            };
+            // the root needs no name: the operator acts on the whole state
+            let label = match subtree(bra, node) {
+                Some(t) if !node.is_empty() => format!("({})", lin(t.label())),
+                _ => String::new(),
+            };
+            format!("{symbol}{}{label}", superscript(rank, component))
+        }
+        Operator::Coupled {
+            left,
+            right,
+            rank,
+            component,
+        } => format!(
+            "\\left[{} \\times {}\\right]{}",
+            operator(left, bra, true),
+            operator(right, bra, true),
+            superscript(rank, component)
+        ),
+        Operator::Scalar(a, b) => format!(
+            "\\left({} \\cdot {}\\right)",
+            operator(a, bra, true),
+            operator(b, bra, true)
+        ),
+        Operator::Sum(terms) => {
+            let mut out = String::new();
+            for (i, (c, o)) in terms.iter().enumerate() {
+                let a = c.abs();
+                let coefficient = if a == Q::from_integer(1) {
+                    String::new()
+                } else if a.is_integer() {
+                    format!("{} ", a.numer())
+                } else {
+                    format!("\\tfrac{{{}}}{{{}}} ", a.numer(), a.denom())
+                };
+                let sign = match (i, *c < Q::from_integer(0)) {
+                    (0, true) => "-",
+                    (0, false) => "",
+                    (_, true) => " - ",
+                    (_, false) => " + ",
+                };
+                out.push_str(&format!("{sign}{coefficient}{}", operator(o, bra, true)));
+            }
+            if nested {
+                format!("\\left({out}\\right)")
+            } else {
+                out
+            }
+        }
+    }
+}
+
+fn element(e: &MatrixElement) -> String {
+    let bar = if e.is_reduced() { "\\|" } else { "|" };
+    format!(
+        "\\langle {} {bar} {} {bar} {} \\rangle",
+        state(&e.bra),
+        operator(&e.op, &e.bra.tree, false),
+        state(&e.ket)
+    )
 }
 
 fn product(

@@ -101,16 +101,16 @@ enum Value {
     Expr(Expr),
 }
 
-struct Ctx<'a> {
-    input: &'a str,
+pub(super) struct Ctx<'a> {
+    pub(super) input: &'a str,
     /// term products spent on expansions so far
-    work: std::cell::Cell<u64>,
+    pub(super) work: std::cell::Cell<u64>,
 }
 
-type R<T> = Result<T, ParseError>;
+pub(super) type R<T> = Result<T, ParseError>;
 
 impl Ctx<'_> {
-    fn err(&self, pos: usize, msg: impl Into<String>) -> ParseError {
+    pub(super) fn err(&self, pos: usize, msg: impl Into<String>) -> ParseError {
         ParseError::at(self.input, pos, msg)
     }
 
@@ -497,6 +497,10 @@ impl Ctx<'_> {
             }
             Rule::sum => self.sum(p),
             Rule::call => self.call(p),
+            Rule::matrix_element | Rule::reduced_element => {
+                let f = super::element::lower_element(self, p)?;
+                Ok(Value::Expr(Expr::from_term(Term::factor(f))))
+            }
             r => unreachable!("primary rule {r:?}"),
         }
     }
@@ -859,7 +863,7 @@ pub(super) fn lower_expr(input: &str, pair: Pair<Rule>) -> R<Expr> {
     ctx.to_expr(v, at)
 }
 
-fn parse_fraction(ctx: &Ctx, p: &Pair<Rule>) -> R<Lin> {
+pub(super) fn parse_fraction(ctx: &Ctx, p: &Pair<Rule>) -> R<Lin> {
     let s = p.as_str();
     let at = p.as_span().start();
     let (n, d) = match s.split_once('/') {
@@ -881,7 +885,7 @@ fn parse_fraction(ctx: &Ctx, p: &Pair<Rule>) -> R<Lin> {
     Ok(Lin::constant(Q::new(n, d)))
 }
 
-fn lower_leaf(ctx: &Ctx, p: Pair<Rule>) -> R<Lin> {
+pub(super) fn lower_leaf(ctx: &Ctx, p: Pair<Rule>) -> R<Lin> {
     let inner = p.into_inner().next().unwrap();
     match inner.as_rule() {
         Rule::ident => Ok(Lin::var(Name::new(inner.as_str()))),
@@ -903,7 +907,7 @@ pub(super) fn lower_tree(input: &str, pair: Pair<Rule>, _root: bool) -> R<Coupli
     tree_node(&ctx, pair)
 }
 
-fn tree_node(ctx: &Ctx, pair: Pair<Rule>) -> R<CouplingTree> {
+pub(super) fn tree_node(ctx: &Ctx, pair: Pair<Rule>) -> R<CouplingTree> {
     let at = pair.as_span().start();
     let mut children = Vec::new();
     let mut label = None;

@@ -3,6 +3,7 @@
 //! same `Expr`. Only this module sees pest pairs; users see friendly names
 //! for grammar rules, never rule identifiers.
 
+mod element;
 mod error;
 mod guard;
 mod lower;

@@ -2,8 +2,10 @@
 //! same `Expr` (a property test checks it); factors that do not involve a
 //! summed variable are printed outside the `sum(...)`.
 
+use crate::expr::element::subtree;
 use crate::expr::factor::is_hat_base;
-use crate::expr::{Expr, Factor, Lin, Term, Q};
+use crate::expr::lin::fmt_q;
+use crate::expr::{CouplingTree, Expr, Factor, Lin, MatrixElement, Operator, State, Term, Q};
 use crate::numeric::surd::fmt_rational;
 use num_bigint::BigInt;
 use num_rational::BigRational;
@@ -61,7 +63,92 @@ pub fn print_factor(f: &Factor) -> String {
         ),
         Factor::SixJ(a) => format!("{{{}; {}}}", row(&a[..3]), row(&a[3..])),
         Factor::NineJ(a) => format!("{{{}; {}; {}}}", row(&a[..3]), row(&a[3..6]), row(&a[6..])),
+        Factor::Element(e) => print_element(e),
     }
+}
+
+/// A state: its tree, then `, M` when it has a projection.
+fn print_state(s: &State) -> String {
+    match &s.projection {
+        Some(m) => format!("{}, {m}", s.tree),
+        None => s.tree.to_string(),
+    }
+}
+
+/// `rank` or `rank, component` inside the brackets of an operator.
+fn rank_text(rank: &Lin, component: &Option<Lin>) -> String {
+    match component {
+        Some(q) => format!("[{rank}, {q}]"),
+        None => format!("[{rank}]"),
+    }
+}
+
+/// An operator expression; `nested` puts a sum in parentheses.
+pub fn print_operator(op: &Operator, bra: &CouplingTree, nested: bool) -> String {
+    match op {
+        Operator::Elementary {
+            name,
+            rank,
+            component,
+            node,
+        } => {
+            let label = subtree(bra, node)
+                .map(|t| t.label().to_string())
+                .unwrap_or_else(|| "?".into());
+            format!("{}{} @ {label}", name.text(), rank_text(rank, component))
+        }
+        Operator::Coupled {
+            left,
+            right,
+            rank,
+            component,
+        } => format!(
+            "[{} x {}]{}",
+            print_operator(left, bra, true),
+            print_operator(right, bra, true),
+            rank_text(rank, component)
+        ),
+        Operator::Scalar(a, b) => format!(
+            "({} . {})",
+            print_operator(a, bra, true),
+            print_operator(b, bra, true)
+        ),
+        Operator::Sum(terms) => {
+            let mut out = String::new();
+            for (i, (c, o)) in terms.iter().enumerate() {
+                let body = print_operator(o, bra, true);
+                let a = c.abs();
+                let coefficient = if a.is_one() {
+                    String::new()
+                } else {
+                    format!("{} ", fmt_q(&a))
+                };
+                let sign = match (i, *c < Q::zero()) {
+                    (0, true) => "-",
+                    (0, false) => "",
+                    (_, true) => " - ",
+                    (_, false) => " + ",
+                };
+                out.push_str(&format!("{sign}{coefficient}{body}"));
+            }
+            if nested {
+                format!("({out})")
+            } else {
+                out
+            }
+        }
+    }
+}
+
+/// A matrix element `<BRA | OP | KET>` or reduced `<BRA || OP || KET>`.
+pub fn print_element(e: &MatrixElement) -> String {
+    let bar = if e.is_reduced() { "||" } else { "|" };
+    format!(
+        "<{} {bar} {} {bar} {}>",
+        print_state(&e.bra),
+        print_operator(&e.op, &e.bra.tree, false),
+        print_state(&e.ket)
+    )
 }
 
 fn print_phase(p: &Lin) -> String {
