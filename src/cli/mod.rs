@@ -83,7 +83,9 @@ impl From<crate::numeric::eval::EvalError> for Failure {
     fn from(e: crate::numeric::eval::EvalError) -> Self {
         use crate::numeric::eval::EvalError;
         match e {
-            EvalError::TooLarge | EvalError::SymbolTooLarge(..) => Failure::Limit(e.to_string()),
+            EvalError::TooLarge | EvalError::SymbolTooLarge(..) | EvalError::ElementTooLarge(_) => {
+                Failure::Limit(e.to_string())
+            }
             EvalError::TooSlow { ref what, .. } => Failure::Limit(format!(
                 "{e}; raise it with --time-limit SECONDS{}",
                 if what.contains("exact") {
@@ -103,6 +105,7 @@ impl From<crate::simplify::SimplifyError> for Failure {
         match e {
             SimplifyError::Eval(e) => e.into(),
             SimplifyError::Limit(m) => Failure::Limit(m),
+            SimplifyError::Unsupported(m) => Failure::Input(m),
             other @ (SimplifyError::Unverified(_) | SimplifyError::Internal(..)) => {
                 Failure::Internal(other.to_string())
             }

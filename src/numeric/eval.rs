@@ -113,9 +113,12 @@ pub enum EvalError {
     /// A square root of a negative number or a division by zero.
     #[error("{0}")]
     Arithmetic(String),
-    /// A matrix element the direct evaluation cannot expand.
+    /// A matrix element the direct evaluation does not cover.
     #[error("{0}")]
     Element(String),
+    /// A matrix element too large for the direct evaluation.
+    #[error("{0}")]
+    ElementTooLarge(String),
     /// A symbol too large to evaluate this way.
     #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
     SymbolTooLarge(String, i64),
@@ -1033,8 +1036,12 @@ impl<F: Field> Evaluator<F> {
                     let numeric = e.map_lins(&mut |_| {
                         Lin::constant(values.next().expect("one value per form"))
                     });
-                    let v = crate::tensor::direct::value(&numeric)
-                        .map_err(|err| EvalError::Element(err.to_string()))?;
+                    let v = crate::tensor::direct::value(&numeric).map_err(|err| match err {
+                        crate::tensor::direct::DirectError::TooLarge(_) => {
+                            EvalError::ElementTooLarge(err.to_string())
+                        }
+                        _ => EvalError::Element(err.to_string()),
+                    })?;
                     if v.is_zero() {
                         return Ok(None);
                     }

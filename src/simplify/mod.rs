@@ -142,6 +142,10 @@ pub enum SimplifyError {
     /// A limit was reached (size of the work, points).
     #[error("{0}")]
     Limit(String),
+    /// The input holds a form the engine cannot rewrite (a matrix element
+    /// of operators on nested subsystems, ...).
+    #[error("{0}")]
+    Unsupported(String),
     /// A defect: an invariant of the engine does not hold.
     #[error("internal error: {0}")]
     Internal(String),
@@ -704,6 +708,16 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
     let mut tried_graphical: std::collections::HashSet<Term> = std::collections::HashSet::new();
     while d.steps.len() < opts.max_steps {
         crate::limits::check_now();
+        if let Some(step) = crate::tensor::next_rewrite(&d.cur) {
+            let (rule, source, next) = step.map_err(|e| SimplifyError::Unsupported(e.0))?;
+            d.advance(Proposal {
+                rule,
+                source,
+                next,
+                local: None,
+            })?;
+            continue;
+        }
         if let Some(p) = next_proposal(&d.cur, opts, &prepared, &mut tried_graphical) {
             d.advance(p)?;
             continue;

@@ -4,5 +4,59 @@
 //! matrix elements (`builtin`) and the lowering of a matrix element to a
 //! projection sum the graph reduction knows (`expand`).
 
+pub mod builtin;
 pub mod direct;
+pub mod expand;
 pub mod opaque;
+
+use crate::expr::{Expr, Factor, Name};
+use crate::rules::source::Source;
+use std::collections::BTreeSet;
+
+/// The next rewrite of a matrix element in `e`, if any holds one that is
+/// not yet an opaque symbol: a sum of operators split, the Wigner–Eckart
+/// theorem, or a reduced matrix element expanded into a projection sum.
+/// Returns the rule's name, its source and the whole expression after.
+pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::ExpandError>> {
+    for (i, t) in e.terms.iter().enumerate() {
+        for (k, f) in t.factors.iter().enumerate() {
+            let Factor::Element(m) = f else { continue };
+            if m.is_irreducible() {
+                continue;
+            }
+            let (rule, source, replacement) = if !m.is_reduced() {
+                if let Some(x) = expand::split_sum(m) {
+                    ("operator-sum", expand::linearity_source(), x)
+                } else {
+                    match expand::wigner_eckart(m) {
+                        Some(x) => ("wigner-eckart", expand::wigner_eckart_source(), x),
+                        None => return Some(Err(expand::ExpandError(
+                            "the operator of this matrix element has no single rank and component"
+                                .into(),
+                        ))),
+                    }
+                }
+            } else {
+                let avoid: BTreeSet<Name> = e.terms.iter().flat_map(|t| t.all_vars()).collect();
+                match expand::expand_reduced(m, &avoid) {
+                    Ok(x) => ("reduced-matrix-element", expand::expansion_source(), x),
+                    Err(err) => return Some(Err(err)),
+                }
+            };
+            let mut rest = t.clone();
+            rest.factors.remove(k);
+            let mut next = Expr::zero();
+            for (j, u) in e.terms.iter().enumerate() {
+                if j == i {
+                    for r in &replacement.terms {
+                        next.push(rest.mul_inside(r));
+                    }
+                } else {
+                    next.push(u.clone());
+                }
+            }
+            return Some(Ok((rule.to_string(), source, next)));
+        }
+    }
+    None
+}
