@@ -161,8 +161,10 @@ fn lower_factor(ctx: &Ctx, p: Pair<Rule>, bra: &CouplingTree) -> R<Operator> {
             let index_pair = parts.next().unwrap();
             let index_at = index_pair.as_span().start();
             let (rank, component) = indices(ctx, index_pair)?;
-            let node_pair = parts.next().unwrap();
-            let node = resolve_node(ctx, node_pair, bra)?;
+            let node = match parts.next() {
+                Some(node_pair) => resolve_node(ctx, node_pair, bra)?,
+                None => NodePath::new(),
+            };
             if name == OperatorName::AngularMomentum && rank != Lin::int(1) {
                 return Err(ctx.err(
                     index_at,

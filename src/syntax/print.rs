@@ -92,10 +92,12 @@ pub fn print_operator(op: &Operator, bra: &CouplingTree, nested: bool) -> String
             component,
             node,
         } => {
-            let label = subtree(bra, node)
-                .map(|t| t.label().to_string())
-                .unwrap_or_else(|| "?".into());
-            format!("{}{} @ {label}", name.text(), rank_text(rank, component))
+            // an operator on the root acts on the whole state: no `@`
+            let at = match subtree(bra, node) {
+                Some(t) if !node.is_empty() => format!(" @ {}", t.label()),
+                _ => String::new(),
+            };
+            format!("{}{}{at}", name.text(), rank_text(rank, component))
         }
         Operator::Coupled {
             left,

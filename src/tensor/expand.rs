@@ -142,9 +142,12 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
                     "each factor of a coupled product needs one rank".into(),
                 ));
             };
+            // both components are summed names (the Clebsch-Gordan
+            // coefficient keeps q1 + q2 = q): a graph line each
             let q1 = fresh.name("q");
+            let q2 = fresh.name("q");
             let q1l = Lin::var(q1.clone());
-            let q2l = &q - &q1l;
+            let q2l = Lin::var(q2.clone());
             let ls = chains(left, Some(&q1l), fresh)?;
             let rs = chains(right, Some(&q2l), fresh)?;
             let mut coupling = Build::one();
@@ -157,6 +160,7 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
                 q.clone(),
             ]));
             coupling.bound.push(q1);
+            coupling.bound.push(q2);
             Ok(product(&coupling, &ls, &rs))
         }
         Operator::Scalar(a, b) => {
