@@ -76,6 +76,18 @@ pub fn parse_expr(text: &str) -> Result<Expr, Failure> {
     let (declared, e) = crate::syntax::parse_declared(text)
         .map_err(|e| Failure::input(format!("parse error at {e}")))?;
     declare::add_to_current(&declared).map_err(|c| Failure::input(c.to_string()))?;
+    // the ranks of a scalar product's factors are integers
+    let mut implied = declare::Declarations::new();
+    for name in crate::tensor::implied_integers(&e) {
+        implied
+            .declare(name, declare::Parity::Integer)
+            .map_err(|c| Failure::input(c.to_string()))?;
+    }
+    declare::add_to_current(&implied).map_err(|c| {
+        Failure::input(format!(
+            "{c}: the rank of a factor of a scalar product (A . B) is an integer"
+        ))
+    })?;
     if let Some(problem) = summed_declaration_problem(&e) {
         return Err(Failure::input(problem));
     }

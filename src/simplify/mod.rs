@@ -17,6 +17,8 @@ use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
 use crate::rules::apply::Prepared;
 use crate::rules::{catalog, Rule, RuleKind, Source};
+mod vacuous;
+
 use crate::verify::gate::{certify, Certificate, GateError};
 use crate::verify::sample::Point;
 use crate::verify::spot::{compare, SpotSettings};
@@ -723,6 +725,23 @@ pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> 
             continue;
         }
         break;
+    }
+    // triangle factors that change no value go, so like terms merge
+    for _ in 0..16 {
+        let Some((next, text)) = vacuous::drop_one(&d.cur) else {
+            break;
+        };
+        if d.tidy(&next) == d.cur {
+            break;
+        }
+        d.advance(Proposal {
+            rule: "vacuous-triangle".into(),
+            source: Source::default().noted(&format!(
+                "{text} fails only where the terms that carry it sum to zero (checked at each such value; common practice, no source)"
+            )),
+            next,
+            local: None,
+        })?;
     }
     // where the user wrote Clebsch-Gordan coefficients and no 3j, the 3j
     // left with free projections read better as CGs again

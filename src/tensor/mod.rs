@@ -60,3 +60,41 @@ pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::E
     }
     None
 }
+
+/// Names that a matrix element implies are integers: the rank of each
+/// factor of a scalar product (`sum(q: (-1)^q A[k, q] B[k, -q])` needs an
+/// integer `q`). Only names free in the expression.
+pub fn implied_integers(e: &Expr) -> Vec<Name> {
+    fn walk(op: &crate::expr::Operator, out: &mut Vec<Name>) {
+        use crate::expr::Operator;
+        match op {
+            Operator::Elementary { .. } => {}
+            Operator::Coupled { left, right, .. } => {
+                walk(left, out);
+                walk(right, out);
+            }
+            Operator::Scalar(a, b) => {
+                for side in [a, b] {
+                    if let Some(k) = side.rank() {
+                        out.extend(k.vars().cloned());
+                    }
+                    walk(side, out);
+                }
+            }
+            Operator::Sum(terms) => terms.iter().for_each(|(_, o)| walk(o, out)),
+        }
+    }
+    let free = e.free_vars();
+    let mut out = Vec::new();
+    for t in &e.terms {
+        for f in &t.factors {
+            if let Factor::Element(m) = f {
+                walk(&m.op, &mut out);
+            }
+        }
+    }
+    out.retain(|n| free.contains(n));
+    out.sort();
+    out.dedup();
+    out
+}

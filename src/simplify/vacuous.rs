@@ -1,0 +1,95 @@
+//! Triangle factors that say nothing: `tri(c, x, x)` with a constant
+//! integer `c` fails only at the finitely many values `x < c/2`. Where
+//! the terms that carry it sum to zero at each of those values (the
+//! other variables free), the factor changes no value and is dropped, so
+//! that terms differing only by it merge (`(l . s)` in `|(l, s) j, m>`
+//! becomes the textbook `(j(j+1) - l(l+1) - s(s+1))/2`). The zero at each
+//! failing value is established by the normal form or, failing that, by
+//! exhaustive exact evaluation over the other variables up to a bound;
+//! the step itself is then verified like every other.
+
+use crate::algebra::normal::canonical_expr;
+use crate::expr::{Expr, Factor, Lin, Name, Q};
+use crate::verify::spot::{compare, SpotSettings};
+
+/// A factor `tri(c, x, x)` (in any order) with its variable and `c`.
+fn single_variable_triangle(f: &Factor) -> Option<(Name, i64)> {
+    let Factor::Tri(t) = f else { return None };
+    for i in 0..3 {
+        let (c, a, b) = (&t[i], &t[(i + 1) % 3], &t[(i + 2) % 3]);
+        if c.is_constant() && a == b {
+            let x = a.as_var()?;
+            let cq = c.constant_part();
+            if cq.is_integer() && cq.to_integer() > 0 {
+                return Some((x.clone(), cq.to_integer()));
+            }
+        }
+    }
+    None
+}
+
+/// The expression without one vacuous triangle factor, with the factor's
+/// text, or `None` when no triangle factor is vacuous.
+pub fn drop_one(e: &Expr) -> Option<(Expr, String)> {
+    let mut candidates: Vec<&Factor> = Vec::new();
+    for t in &e.terms {
+        if !t.bound.is_empty() {
+            continue;
+        }
+        for f in &t.factors {
+            if single_variable_triangle(f).is_some() && !candidates.contains(&f) {
+                candidates.push(f);
+            }
+        }
+    }
+    for f in candidates {
+        let (x, c) = single_variable_triangle(f)?;
+        let carrying: Vec<usize> = (0..e.terms.len())
+            .filter(|&i| e.terms[i].bound.is_empty() && e.terms[i].factors.contains(f))
+            .collect();
+        let mut without = e.clone();
+        for &i in &carrying {
+            let t = &mut without.terms[i];
+            let k = t.factors.iter().position(|g| g == f).expect("carried");
+            t.factors.remove(k);
+        }
+        let mut rest = Expr::zero();
+        for &i in &carrying {
+            rest.push(without.terms[i].clone());
+        }
+        let vanishes = (0..c).all(|twice| {
+            let at = Lin::constant(Q::new(twice, 2));
+            vanishes_everywhere(&rest.substitute(&x, &at))
+        });
+        if vanishes {
+            let mut next = Expr::zero();
+            for t in without.terms {
+                next.push(t.normalized());
+            }
+            return Some((next, crate::syntax::print_factor(f)));
+        }
+    }
+    None
+}
+
+/// True when the expression is 0 in normal form, or at every point of
+/// its free variables up to 3 (exact evaluation; an undefined value is
+/// not zero).
+fn vanishes_everywhere(e: &Expr) -> bool {
+    let nf = canonical_expr(e, false);
+    if nf.is_zero() {
+        return true;
+    }
+    let s = SpotSettings {
+        max_j: Q::from_integer(3),
+        samples: 0,
+        exhaustive: true,
+        seed: 1,
+        triangles_hold: false,
+        max_points: 20_000,
+        lhs_is_domain: false,
+    };
+    // equal to zero at every point, none undefined (`agrees` would also
+    // ask for a nonzero value)
+    matches!(compare(&nf, &Expr::zero(), &s), Ok(r) if r.mismatch_count == 0 && r.undefined == 0 && r.checked > 0)
+}
