@@ -682,6 +682,10 @@ fn graphical_route(
 /// Simplifies an expression with the catalog's rules, verifying each step,
 /// and passes the result through the verification gate against the input.
 pub fn simplify(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
+    crate::tensor::with_implied_integers(&[input], || simplify_declared(input, opts))
+}
+
+fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyError> {
     check_size(input)?;
     // free projections are admissible: j - m is an integer for the input's
     // free columns, even after the symbols that showed it are gone

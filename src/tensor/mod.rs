@@ -98,3 +98,22 @@ pub fn implied_integers(e: &Expr) -> Vec<Name> {
     out.dedup();
     out
 }
+
+/// Runs `f` with the integers the expressions imply (`implied_integers`)
+/// added to the declarations in force; a name already declared otherwise
+/// keeps its declaration (the evaluation then reports the conflict).
+pub fn with_implied_integers<R>(exprs: &[&Expr], f: impl FnOnce() -> R) -> R {
+    use crate::algebra::declare::{current, scoped, Parity};
+    let names: Vec<Name> = exprs.iter().flat_map(|e| implied_integers(e)).collect();
+    if names.is_empty() {
+        return f();
+    }
+    let mut d = current();
+    for n in names {
+        let mut trial = d.clone();
+        if trial.declare(n, Parity::Integer).is_ok() {
+            d = trial;
+        }
+    }
+    scoped(&d, f)
+}

@@ -94,6 +94,10 @@ pub fn exhaustive_domain(lhs: &Expr, rhs: &Expr, s: &SpotSettings) -> Result<u64
 
 /// Checks `lhs = rhs`.
 pub fn check(lhs: &Expr, rhs: &Expr, s: &SpotSettings) -> Result<CheckResult, CheckError> {
+    crate::tensor::with_implied_integers(&[lhs, rhs], || check_declared(lhs, rhs, s))
+}
+
+fn check_declared(lhs: &Expr, rhs: &Expr, s: &SpotSettings) -> Result<CheckResult, CheckError> {
     let domain = if s.exhaustive {
         Some(exhaustive_domain(lhs, rhs, s)?)
     } else {
