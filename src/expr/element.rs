@@ -375,6 +375,16 @@ impl MatrixElement {
         out
     }
 
+    /// Every coupling of the bra's and the ket's trees as a triad (owned).
+    pub fn triads_of_trees(&self) -> Vec<[Lin; 3]> {
+        let mut out = Vec::new();
+        tree_triads(&self.bra.tree, &mut out);
+        tree_triads(&self.ket.tree, &mut out);
+        out.into_iter()
+            .map(|[a, b, c]| [a.clone(), b.clone(), c.clone()])
+            .collect()
+    }
+
     /// The rank of the operator as a form stored inside (so it can be
     /// borrowed), when there is one.
     fn uniform_rank(&self) -> Option<&Lin> {

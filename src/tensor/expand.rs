@@ -521,6 +521,12 @@ pub fn expand_reduced(e: &MatrixElement, avoid: &BTreeSet<Name>) -> Result<Expr,
         lmk.clone(),
     ]));
     outer.bound.extend([big_m, big_mk, q]);
+    // a coupled state exists only where every coupling satisfies the
+    // triangle rule; inside a subsystem left unexpanded no Clebsch-Gordan
+    // coefficient says so (the normal form drops the implied ones)
+    for t in e.triads_of_trees() {
+        outer.factors.push(Factor::Tri(t));
+    }
     let mut out = Expr::zero();
     let all_avoid = fresh.used.clone();
     for chain in chains(&e.op, Some(&lq), &mut fresh)? {
