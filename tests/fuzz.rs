@@ -75,9 +75,12 @@ fn m(rng: &mut Rng) -> String {
 /// A random factor of the language.
 fn factor(rng: &mut Rng, depth: u32) -> String {
     let choice = if depth == 0 {
-        rng.below(9)
+        match rng.below(10) {
+            9 => 13,
+            c => c,
+        }
     } else {
-        rng.below(13)
+        rng.below(14)
     };
     match choice {
         0 => format!(
@@ -133,7 +136,75 @@ fn factor(rng: &mut Rng, depth: u32) -> String {
             expr(rng, depth - 1),
             pick(rng, &["2", "-1", "3", "64"])
         ),
+        13 => element(rng),
         _ => format!("({})", expr(rng, depth - 1)),
+    }
+}
+
+/// A random operator on the nodes `nodes` (ranks and components from the
+/// generator's names and numbers).
+fn operator(rng: &mut Rng, nodes: &[String], component: bool, depth: u32) -> String {
+    let name = pick(rng, &["T", "U", "J", "C", "u", "V"]);
+    let rank = if name == "J" {
+        "1".to_string()
+    } else {
+        pick(rng, &["k", "1", "2", "1/2", "k1", "0"]).to_string()
+    };
+    let q = if component {
+        format!(", {}", pick(rng, &["q", "0", "1", "-1", "q1", "1/2"]))
+    } else {
+        String::new()
+    };
+    let node = &nodes[rng.below(nodes.len() as u64) as usize];
+    match (rng.below(5), depth) {
+        (0, d) if d > 0 => format!(
+            "[{} x {}][{}{q}]",
+            operator(rng, nodes, false, d - 1),
+            operator(rng, nodes, false, d - 1),
+            pick(rng, &["k", "1", "2", "0"])
+        ),
+        (1, d) if d > 0 && !component => format!(
+            "({} . {})",
+            operator(rng, nodes, false, d - 1),
+            operator(rng, nodes, false, d - 1)
+        ),
+        (2, d) if d > 0 => format!(
+            "{} + {} {}",
+            operator(rng, nodes, component, d - 1),
+            pick(rng, &["2", "1/2", "3"]),
+            operator(rng, nodes, component, d - 1)
+        ),
+        _ => format!("{name}[{rank}{q}] @ {node}"),
+    }
+}
+
+/// A random matrix element or reduced matrix element between states of
+/// one to three angular momenta.
+fn element(rng: &mut Rng) -> String {
+    let n = 1 + rng.below(3) as usize;
+    let leaves: Vec<String> = ["a", "b", "c"][..n].iter().map(|s| s.to_string()).collect();
+    let bra = if n == 1 {
+        "a".to_string()
+    } else {
+        tree(rng, &leaves)
+    };
+    let ket = if rng.below(2) == 0 {
+        bra.clone()
+    } else {
+        bra.replace('a', "a'")
+    };
+    let mut nodes: Vec<String> = leaves.clone();
+    if n > 1 {
+        nodes.push(bra.rsplit(' ').next().unwrap_or("J").to_string());
+    }
+    if rng.below(2) == 0 {
+        format!("<{bra} || {} || {ket}>", operator(rng, &nodes, false, 2))
+    } else {
+        format!(
+            "<{bra}, M | {} | {ket}, {}>",
+            operator(rng, &nodes, true, 2),
+            pick(rng, &["M", "M'", "M - q"])
+        )
     }
 }
 

@@ -65,3 +65,30 @@ fn the_other_samples() {
         "{out}"
     );
 }
+
+#[test]
+fn the_matrix_element_sample_reduces_and_evaluates() {
+    let text = include_str!("../samples/toy-quadrupolaron.txt");
+    let (code, out) = run(&["simplify", &line(text, 3)], None);
+    assert_eq!(code, 0);
+    let result = out.lines().last().unwrap().to_string();
+    // two 6j (one per coupling the operator crosses) and no matrix element
+    // of a composite operator left
+    assert_eq!(result.matches('{').count(), 2, "{result}");
+    assert!(result.contains("(la, la', 2; 0, 0, 0)"), "{result}");
+    // the reduced formula and the matrix element agree at the sample's point
+    let at = line(text, 5);
+    let (c1, v1) = run(&["eval", &line(text, 3), "--at", &at], None);
+    let (c2, v2) = run(&["eval", &result, "--at", &at], None);
+    assert_eq!((c1, c2), (0, 0));
+    assert_eq!(v1, v2);
+    assert!(!v1.starts_with('0'), "{v1}");
+    // the hyperfine scalar product is the polynomial
+    let (code, out) = run(&["simplify", &line(text, 4)], None);
+    assert_eq!(code, 0);
+    let result = out.lines().last().unwrap();
+    assert!(
+        result.contains("F (F+1) / 2") && !result.contains('{'),
+        "{result}"
+    );
+}

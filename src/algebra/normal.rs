@@ -400,11 +400,15 @@ pub fn canonical_expr(e: &Expr, regge: bool) -> Expr {
 }
 
 /// Forms known to be integers from the free projections of an expression:
-/// `j - m` for every column `(j, ±m)` with `m` a free variable, since free
-/// projections are assumed admissible.
+/// `j - m` for every column `(j, ±m)` with `m` a free variable that every
+/// term shows (a term is 0 where its own free projection is not admissible,
+/// so only a fact of every term holds wherever the expression is nonzero).
 pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
-    let mut out: Vec<Lin> = Vec::new();
+    // a fact shown by one term says nothing where another term is nonzero:
+    // only the facts every term shows hold wherever the input is nonzero
+    let mut common: Option<Vec<Lin>> = None;
     for t in &e.terms {
+        let mut out: Vec<Lin> = Vec::new();
         for f in &t.factors {
             for (j, m) in f.columns() {
                 let Some((v, _)) = m.as_signed_var() else {
@@ -419,8 +423,12 @@ pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
                 }
             }
         }
+        common = Some(match common {
+            None => out,
+            Some(c) => c.into_iter().filter(|l| out.contains(l)).collect(),
+        });
     }
-    out
+    common.unwrap_or_default()
 }
 
 /// The canonical form, with extra forms known to be integers (the

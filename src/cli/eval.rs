@@ -95,6 +95,27 @@ fn answer(
     at: &Assignment,
     float_only: bool,
 ) -> Result<(Option<Surd>, f64), EvalError> {
+    // a value for the name of an opaque operator (that is not also a
+    // variable) is the value of all its reduced matrix elements
+    let operators = crate::tensor::opaque_names(e);
+    let variables = e.free_vars();
+    let mut given = std::collections::BTreeMap::new();
+    let mut rest = Assignment::new();
+    for (k, v) in at {
+        if operators.contains(k.as_str()) && !variables.contains(k) {
+            given.insert(k.as_str().to_string(), *v);
+        } else {
+            rest.insert(k.clone(), *v);
+        }
+    }
+    crate::tensor::opaque::with_given(&given, || values(e, &rest, float_only))
+}
+
+fn values(
+    e: &crate::expr::Expr,
+    at: &Assignment,
+    float_only: bool,
+) -> Result<(Option<Surd>, f64), EvalError> {
     check_assignment(e, at)?;
     if float_only {
         let v = Evaluator::<f64>::new().eval(e, at)?;

@@ -85,7 +85,7 @@ pub fn parse_expr(text: &str) -> Result<Expr, Failure> {
     }
     declare::add_to_current(&implied).map_err(|c| {
         Failure::input(format!(
-            "{c}: the rank of a factor of a scalar product (A . B) is an integer"
+            "{c}: the rank of a factor of a scalar product (A . B), and the rank and orbital angular momentum of C[k], are integers"
         ))
     })?;
     if let Some(problem) = summed_declaration_problem(&e) {

@@ -63,25 +63,41 @@ pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::E
 
 /// Names that a matrix element implies are integers: the rank of each
 /// factor of a scalar product (`sum(q: (-1)^q A[k, q] B[k, -q])` needs an
-/// integer `q`). Only names free in the expression.
+/// integer `q`), and the rank and the orbital angular momenta on both
+/// sides of `C[k]` (a spherical harmonic acts on an orbital node). Only
+/// names free in the expression.
 pub fn implied_integers(e: &Expr) -> Vec<Name> {
-    fn walk(op: &crate::expr::Operator, out: &mut Vec<Name>) {
-        use crate::expr::Operator;
+    fn walk(op: &crate::expr::Operator, m: &crate::expr::MatrixElement, out: &mut Vec<Name>) {
+        use crate::expr::element::subtree;
+        use crate::expr::{Operator, OperatorName};
         match op {
+            Operator::Elementary {
+                name: OperatorName::Spherical,
+                rank,
+                node,
+                ..
+            } => {
+                out.extend(rank.vars().cloned());
+                for tree in [&m.bra.tree, &m.ket.tree] {
+                    if let Some(t) = subtree(tree, node) {
+                        out.extend(t.label().vars().cloned());
+                    }
+                }
+            }
             Operator::Elementary { .. } => {}
             Operator::Coupled { left, right, .. } => {
-                walk(left, out);
-                walk(right, out);
+                walk(left, m, out);
+                walk(right, m, out);
             }
             Operator::Scalar(a, b) => {
                 for side in [a, b] {
                     if let Some(k) = side.rank() {
                         out.extend(k.vars().cloned());
                     }
-                    walk(side, out);
+                    walk(side, m, out);
                 }
             }
-            Operator::Sum(terms) => terms.iter().for_each(|(_, o)| walk(o, out)),
+            Operator::Sum(terms) => terms.iter().for_each(|(_, o)| walk(o, m, out)),
         }
     }
     let free = e.free_vars();
@@ -89,7 +105,7 @@ pub fn implied_integers(e: &Expr) -> Vec<Name> {
     for t in &e.terms {
         for f in &t.factors {
             if let Factor::Element(m) = f {
-                walk(&m.op, &mut out);
+                walk(&m.op, m, &mut out);
             }
         }
     }
@@ -116,4 +132,25 @@ pub fn with_implied_integers<R>(exprs: &[&Expr], f: impl FnOnce() -> R) -> R {
         }
     }
     scoped(&d, f)
+}
+
+/// The names of the opaque operators in an expression.
+pub fn opaque_names(e: &Expr) -> BTreeSet<String> {
+    let mut out = BTreeSet::new();
+    for t in &e.terms {
+        for f in &t.factors {
+            if let Factor::Element(m) = f {
+                for el in m.op.elementaries() {
+                    if let crate::expr::Operator::Elementary {
+                        name: crate::expr::OperatorName::Opaque(n),
+                        ..
+                    } = el
+                    {
+                        out.insert(n.clone());
+                    }
+                }
+            }
+        }
+    }
+    out
 }
