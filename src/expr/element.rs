@@ -341,14 +341,18 @@ impl MatrixElement {
         self.columns().into_iter().map(|(_, m)| m).collect()
     }
 
-    /// The `(j, m)` pairs: total angular momenta with their projections,
-    /// ranks with their components.
+    /// The `(j, m)` pairs whose inadmissibility makes the element 0: total
+    /// angular momenta with their projections, and the rank with its
+    /// component when the operator is one term (in a sum, a term with an
+    /// inadmissible component vanishes alone).
     pub fn columns(&self) -> Vec<(&Lin, &Lin)> {
         let mut out = Vec::new();
         if let Some(m) = &self.bra.projection {
             out.push((self.bra.tree.label(), m));
         }
-        self.op.columns_into(&mut out);
+        if !matches!(self.op, Operator::Sum(_)) {
+            self.op.columns_into(&mut out);
+        }
         if let Some(m) = &self.ket.projection {
             out.push((self.ket.tree.label(), m));
         }

@@ -715,7 +715,13 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
     while d.steps.len() < opts.max_steps {
         crate::limits::check_now();
         if let Some(step) = crate::tensor::next_rewrite(&d.cur) {
-            let (rule, source, next) = step.map_err(|e| SimplifyError::Unsupported(e.0))?;
+            let (rule, source, next) = step.map_err(|e| {
+                if e.0.contains("beyond") {
+                    SimplifyError::Limit(e.0)
+                } else {
+                    SimplifyError::Unsupported(e.0)
+                }
+            })?;
             d.advance(Proposal {
                 rule,
                 source,
@@ -732,7 +738,7 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
     }
     // triangle factors that change no value go, so like terms merge
     for _ in 0..16 {
-        let Some((next, text)) = vacuous::drop_one(&d.cur) else {
+        let Some((next, text)) = vacuous::drop_one(&d.cur, input) else {
             break;
         };
         if d.tidy(&next) == d.cur {

@@ -5,12 +5,13 @@
 //! that terms differing only by it merge (`(l . s)` in `|(l, s) j, m>`
 //! becomes the textbook `(j(j+1) - l(l+1) - s(s+1))/2`). The zero at each
 //! failing value is established by the normal form or, failing that, by
-//! exhaustive exact evaluation over the other variables up to a bound;
-//! the step itself is then verified like every other.
+//! exact evaluation at stratified points of the other variables (within
+//! the input's domain); the step itself is then verified like every
+//! other.
 
 use crate::algebra::normal::canonical_expr;
 use crate::expr::{Expr, Factor, Lin, Name, Q};
-use crate::verify::spot::{compare, SpotSettings};
+use crate::verify::spot::{compare_at, points, SpotSettings};
 
 /// A factor `tri(c, x, x)` (in any order) with its variable and `c`.
 fn single_variable_triangle(f: &Factor) -> Option<(Name, i64)> {
@@ -29,8 +30,10 @@ fn single_variable_triangle(f: &Factor) -> Option<(Name, i64)> {
 }
 
 /// The expression without one vacuous triangle factor, with the factor's
-/// text, or `None` when no triangle factor is vacuous.
-pub fn drop_one(e: &Expr) -> Option<(Expr, String)> {
+/// text, or `None` when no triangle factor is vacuous. `domain` (the
+/// derivation's input) says which points count: its free projections are
+/// admissible.
+pub fn drop_one(e: &Expr, domain: &Expr) -> Option<(Expr, String)> {
     let mut candidates: Vec<&Factor> = Vec::new();
     for t in &e.terms {
         if !t.bound.is_empty() {
@@ -57,9 +60,25 @@ pub fn drop_one(e: &Expr) -> Option<(Expr, String)> {
         for &i in &carrying {
             rest.push(without.terms[i].clone());
         }
+        // a denominator that may vanish at a failing value keeps the factor:
+        // it guards the division, which no other zero should hide
+        let guards_division = carrying.iter().any(|&i| {
+            e.terms[i].factors.iter().any(|g| match g {
+                Factor::Power(b, p) if *p < Q::from_integer(0) && b.has(&x) => {
+                    (0..c).any(|twice| {
+                        let at = b.substitute(&x, &Lin::constant(Q::new(twice, 2)));
+                        !at.is_constant() || at.is_zero()
+                    })
+                }
+                _ => false,
+            })
+        });
+        if guards_division {
+            continue;
+        }
         let vanishes = (0..c).all(|twice| {
             let at = Lin::constant(Q::new(twice, 2));
-            vanishes_everywhere(&rest.substitute(&x, &at))
+            vanishes_everywhere(&rest.substitute(&x, &at), &domain.substitute(&x, &at))
         });
         if vanishes {
             let mut next = Expr::zero();
@@ -72,24 +91,30 @@ pub fn drop_one(e: &Expr) -> Option<(Expr, String)> {
     None
 }
 
-/// True when the expression is 0 in normal form, or at every point of
-/// its free variables up to 3 (exact evaluation; an undefined value is
-/// not zero).
-fn vanishes_everywhere(e: &Expr) -> bool {
+/// True when the expression is 0 in normal form, or at 60 stratified
+/// points of its free variables up to 3 within the domain of `domain`
+/// (exact evaluation; an undefined value is not zero).
+fn vanishes_everywhere(e: &Expr, domain: &Expr) -> bool {
     let nf = canonical_expr(e, false);
     if nf.is_zero() {
         return true;
     }
     let s = SpotSettings {
         max_j: Q::from_integer(3),
-        samples: 0,
-        exhaustive: true,
+        samples: 60,
+        exhaustive: false,
         seed: 1,
         triangles_hold: false,
         max_points: 20_000,
         lhs_is_domain: false,
     };
+    let pts = points(&[domain, &nf], &s);
+    if pts.is_empty() {
+        // no admissible point has this value (the input's projections
+        // rule it out): the factor changes nothing there
+        return true;
+    }
     // equal to zero at every point, none undefined (`agrees` would also
     // ask for a nonzero value)
-    matches!(compare(&nf, &Expr::zero(), &s), Ok(r) if r.mismatch_count == 0 && r.undefined == 0 && r.checked > 0)
+    matches!(compare_at(&nf, &Expr::zero(), &pts), Ok(r) if r.mismatch_count == 0 && r.undefined == 0 && r.checked > 0)
 }

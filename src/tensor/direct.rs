@@ -227,7 +227,9 @@ struct Frame<'a> {
 impl Frame<'_> {
     /// Applies an operator (component `q2` when the caller selects one).
     fn apply(&self, op: &Operator, q2: Option<i64>, v: &Vector) -> Result<Vector, DirectError> {
-        crate::limits::tick();
+        // exact arithmetic on long vectors makes single calls slow: look at
+        // the clock every time
+        crate::limits::check_now();
         match op {
             Operator::Elementary {
                 name,
@@ -400,6 +402,7 @@ impl Frame<'_> {
         let bra_labels = labels2(bra_unit)?;
         let mut out = Vector::new();
         for (key, c) in v {
+            crate::limits::tick();
             let ket_labels = &key[off..off + len - 1];
             // the first label in pre-order is the unit's own j
             let (j2, m2) = (ket_labels[0], key[off + len - 1]);
@@ -529,6 +532,9 @@ pub fn value(e: &MatrixElement) -> Result<Surd, DirectError> {
             &labels2(&e.bra.tree)?,
             &labels2(&e.ket.tree)?,
         );
+    }
+    if let Some(problem) = super::expand::size_problem(e) {
+        return Err(DirectError::TooLarge(problem));
     }
     let all = e.lins();
     for l in &all {

@@ -28,6 +28,23 @@ use std::collections::BTreeSet;
 #[error("{0}")]
 pub struct ExpandError(pub String);
 
+/// Most elementary operators one matrix element may hold (each adds a
+/// 3j, a summed component and possibly an intermediate state).
+pub const MAX_OPERATORS: usize = 16;
+
+/// Most products of elementary operators the expansion writes out.
+pub const MAX_CHAINS: usize = 256;
+
+/// The message of the size limits (the caller reports it as a limit).
+pub fn size_problem(e: &MatrixElement) -> Option<String> {
+    let n = e.op.elementaries().len();
+    (n > MAX_OPERATORS).then(|| {
+        format!(
+            "a matrix element with {n} elementary operators is beyond what recoup expands ({MAX_OPERATORS})"
+        )
+    })
+}
+
 /// Names not yet in use.
 struct Fresh {
     used: BTreeSet<Name>,
@@ -529,7 +546,14 @@ pub fn expand_reduced(e: &MatrixElement, avoid: &BTreeSet<Name>) -> Result<Expr,
     }
     let mut out = Expr::zero();
     let all_avoid = fresh.used.clone();
-    for chain in chains(&e.op, Some(&lq), &mut fresh)? {
+    let all = chains(&e.op, Some(&lq), &mut fresh)?;
+    if all.len() > MAX_CHAINS {
+        return Err(ExpandError(format!(
+            "the operator multiplies out to {} products of elementary operators, beyond the {MAX_CHAINS} recoup expands",
+            all.len()
+        )));
+    }
+    for chain in all {
         for chain in unnest(chain, &e.bra.tree)? {
             let t = chain_term(
                 &chain,

@@ -24,6 +24,9 @@ pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::E
             if m.is_irreducible() {
                 continue;
             }
+            if let Some(problem) = expand::size_problem(m) {
+                return Some(Err(expand::ExpandError(problem)));
+            }
             let (rule, source, replacement) = if !m.is_reduced() {
                 if let Some(x) = expand::split_sum(m) {
                     ("operator-sum", expand::linearity_source(), x)
