@@ -419,3 +419,42 @@ fn declarations_on_the_command_line_and_in_the_text() {
     );
     assert!(err.contains("line 2: k = 1 is not half-odd"), "{err}");
 }
+
+#[test]
+fn matrix_elements_on_the_command_line() {
+    // Edmonds 1957, eq. 7.1.7 (from memory): the steps, as text and LaTeX
+    let input = "<(j1, j2) J || T[k] @ j1 || (j1', j2') J'>";
+    let (code, out, _) = run(&["simplify", input, "--steps"], None);
+    assert_eq!(code, 0, "{out}");
+    insta::assert_snapshot!("matrix_element_steps", out);
+    let (code, out, _) = run(&["latex", input], None);
+    assert_eq!(code, 0);
+    insta::assert_snapshot!("matrix_element_latex", out);
+    // check with a matrix element on the left (the published formula, with
+    // its delta)
+    let (code, out, _) = run(
+        &[
+            "check",
+            input,
+            "(-1)^(j1+j2+J'+k) hat(J) hat(J') {j1, J, j2; J', j1', k} delta(j2, j2') <j1 || T[k] || j1'>",
+        ],
+        None,
+    );
+    assert_eq!(code, 0, "{out}");
+    // eval with a value for the opaque operator
+    let (code, out, _) = run(
+        &["eval", "<j || T[k] || j'>", "--at", "j=1,k=1,j'=2,T=3/2"],
+        None,
+    );
+    assert_eq!((code, out.trim()), (0, "3/2\t1.5"));
+    // a half-odd orbital angular momentum under C[k] is bad input
+    let (code, _, err) = run(&["eval", "<l || C[1] || l'>", "--at", "l=1/2,l'=1/2"], None);
+    assert_eq!(code, 2, "{err}");
+    // too many operators is a limit
+    let mut op = "T[1] @ a".to_string();
+    for _ in 0..20 {
+        op = format!("[{op} x U[1] @ a][1]");
+    }
+    let (code, _, err) = run(&["simplify", &format!("<a || {op} || a>")], None);
+    assert_eq!(code, 3, "{err}");
+}
