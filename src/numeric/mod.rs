@@ -4,6 +4,7 @@
 
 pub mod exact;
 pub mod factored;
+pub mod family;
 pub mod primes;
 pub mod racah;
 pub mod surd;

@@ -1,14 +1,14 @@
 //! LaTeX for expressions (amsmath): `pmatrix` for 3j symbols, `Bmatrix`
 //! for 6j and 9j, `\langle … | … \rangle` for Clebsch–Gordan coefficients,
-//! `\sum_{m_1 m_2}` for sums, subscripts from trailing digits (`j12` →
-//! `j_{12}`), primes kept, Greek names as Greek letters.
+//! `\sum_{m_1 m_2}` for sums; names by `name` (subscripts from trailing
+//! digits and from `_`, Greek names and `ell` as letters, other words of
+//! several letters whole).
 
 use crate::expr::element::subtree;
 use crate::expr::factor::is_hat_base;
 use crate::expr::{
     CouplingTree, Expr, Factor, Lin, MatrixElement, Name, Operator, OperatorName, State, Term, Q,
 };
-use num_bigint::BigInt;
 use num_rational::BigRational;
 use num_traits::{One, Signed, Zero};
 
@@ -18,36 +18,24 @@ const GREEK: &[&str] = &[
     "omega", "Gamma", "Delta", "Theta", "Lambda", "Xi", "Pi", "Sigma", "Phi", "Psi", "Omega",
 ];
 
-/// A variable name in LaTeX.
+/// A variable name in LaTeX: trailing digits are a subscript (`j12` →
+/// `j_{12}`), `_` starts a subscript whose parts are names themselves
+/// (`j_alpha` → `j_{\alpha}`, `m_j1` → `m_{j_1}`, `J_tot` →
+/// `J_{\mathrm{tot}}`), Greek names and `ell` are their letters, any other
+/// name of several letters stays one italic word (`ab` → `\mathit{ab}`,
+/// never `a_b`); primes are kept.
 pub fn name(n: &Name) -> String {
     let s = n.as_str();
     let base_end = s.find('\'').unwrap_or(s.len());
     let (body, primes) = s.split_at(base_end);
-    let (head, sub) = if let Some((h, t)) = body.split_once('_') {
-        (h.to_string(), t.replace('_', ","))
-    } else {
-        let alpha_end = body
-            .find(|c: char| c.is_ascii_digit())
-            .unwrap_or(body.len());
-        let alpha = &body[..alpha_end];
-        let digits = &body[alpha_end..];
-        if GREEK.contains(&alpha) || alpha.len() == 1 {
-            (alpha.to_string(), digits.to_string())
-        } else {
-            // m_a style: first letter, the rest as a subscript
-            (alpha[..1].to_string(), body[1..].to_string())
-        }
-    };
-    let head = if GREEK.contains(&head.as_str()) {
-        format!("\\{head}")
-    } else if head.len() > 1 {
-        format!("\\mathit{{{head}}}")
-    } else {
-        head
-    };
-    let mut out = head;
-    if !sub.is_empty() {
-        if sub.len() == 1 {
+    let mut parts = body.split('_').filter(|p| !p.is_empty());
+    let head = parts.next().unwrap_or("");
+    let rest: Vec<&str> = parts.collect();
+    let mut out = word(head, false);
+    if !rest.is_empty() {
+        let sub: Vec<String> = rest.iter().map(|p| word(p, true)).collect();
+        let sub = sub.join(",");
+        if sub.chars().count() == 1 {
             out.push('_');
             out.push_str(&sub);
         } else {
@@ -56,6 +44,31 @@ pub fn name(n: &Name) -> String {
     }
     out.push_str(primes);
     out
+}
+
+/// One part of a name: letters then digits (the digits a subscript).
+/// Inside a subscript, a word of several letters that is not a letter's
+/// name is upright (`tot` → `\mathrm{tot}`).
+fn word(part: &str, in_subscript: bool) -> String {
+    let alpha_end = part
+        .find(|c: char| c.is_ascii_digit())
+        .unwrap_or(part.len());
+    let (alpha, digits) = part.split_at(alpha_end);
+    let letters = if GREEK.contains(&alpha) || alpha == "ell" {
+        format!("\\{alpha}")
+    } else if alpha.chars().count() <= 1 {
+        alpha.to_string()
+    } else if in_subscript {
+        format!("\\mathrm{{{alpha}}}")
+    } else {
+        format!("\\mathit{{{alpha}}}")
+    };
+    match digits.len() {
+        _ if letters.is_empty() => digits.to_string(),
+        0 => letters,
+        1 => format!("{letters}_{digits}"),
+        _ => format!("{letters}_{{{digits}}}"),
+    }
 }
 
 fn frac(q: &Q) -> String {
@@ -142,7 +155,10 @@ fn power(base: &Lin, e: Q) -> String {
 pub fn factor(f: &Factor) -> String {
     match f {
         Factor::Delta(a, b) => format!("\\delta_{{{},{}}}", lin(a), lin(b)),
-        Factor::Tri([a, b, c]) => format!("\\{{{}\\,{}\\,{}\\}}", lin(a), lin(b), lin(c)),
+        // written out, so it is never read as a 6j-like brace
+        Factor::Tri([a, b, c]) => {
+            format!("\\operatorname{{tri}}({}, {}, {})", lin(a), lin(b), lin(c))
+        }
         Factor::Power(b, e) => power(b, e.abs()),
         Factor::ThreeJ(a) => format!(
             "\\begin{{pmatrix}} {} \\\\ {} \\end{{pmatrix}}",
@@ -278,15 +294,13 @@ fn product(
     let mut num: Vec<String> = Vec::new();
     let mut den: Vec<String> = Vec::new();
     if !root.is_one() {
-        let sq = &a * &a * BigRational::from_integer(BigInt::from(root.clone()));
-        if sq.is_integer() {
-            num.push(format!("\\sqrt{{{}}}", sq.numer()));
-        } else {
-            num.push(format!(
-                "\\sqrt{{\\frac{{{}}}{{{}}}}}",
-                sq.numer(),
-                sq.denom()
-            ));
+        // n sqrt(r) / d with r square-free, as a journal prints it
+        if !a.numer().is_one() {
+            num.push(a.numer().to_string());
+        }
+        num.push(format!("\\sqrt{{{root}}}"));
+        if !a.denom().is_one() {
+            den.push(a.denom().to_string());
         }
     } else {
         if !a.numer().is_one() {

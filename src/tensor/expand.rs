@@ -262,10 +262,11 @@ fn leaf_paths(t: &CouplingTree, at: &NodePath) -> Vec<NodePath> {
     }
 }
 
-/// The projection name of a node: `m` followed by its label's name.
+/// The projection name of a node: `m_` and its label's name (`m_l`,
+/// `m_j1`; LaTeX `m_{l}`, `m_{j_1}`).
 fn projection_base(label: &Lin, ket: bool) -> String {
     let base = match label.as_var() {
-        Some(n) => format!("m{}", n.as_str().trim_end_matches('\'')),
+        Some(n) => format!("m_{}", n.as_str().trim_end_matches('\'')),
         None => "m".to_string(),
     };
     if ket {
