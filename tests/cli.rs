@@ -458,3 +458,52 @@ fn matrix_elements_on_the_command_line() {
     let (code, _, err) = run(&["simplify", &format!("<a || {op} || a>")], None);
     assert_eq!(code, 3, "{err}");
 }
+
+#[test]
+fn family_lists_every_member() {
+    // the family's exact column comes from the single-value formula, its
+    // float from the recursion: they agree member by member
+    let (code, out, _) = run(
+        &["family", "(x, 1, 2; 0, 1, -1)", "--over", "x", "--exact"],
+        None,
+    );
+    assert_eq!(code, 0);
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(lines.len(), 3, "{out}");
+    assert!(lines[0].starts_with("1\t-sqrt(1/10)\t"), "{out}");
+    for l in &lines {
+        let parts: Vec<&str> = l.split('\t').collect();
+        let (_, code2, _) = run(&["eval", parts[1]], None);
+        let exact: f64 = code2.split('\t').nth(1).unwrap().trim().parse().unwrap();
+        let float: f64 = parts[2].parse().unwrap();
+        assert!((exact - float).abs() < 1e-14, "{l}");
+    }
+    // a 6j over a lower argument, and a 3j over a projection (each member
+    // on its own)
+    let (code, out, _) = run(&["family", "{2, 2, 1; a, 3/2, 3/2}", "--over", "a"], None);
+    assert_eq!(code, 0);
+    assert_eq!(out.lines().count(), 3, "{out}");
+    let (_, single, _) = run(&["eval", "{2, 2, 1; 3/2, 3/2, 3/2}"], None);
+    let want: f64 = single.split('\t').nth(1).unwrap().trim().parse().unwrap();
+    let got: f64 = out
+        .lines()
+        .nth(1)
+        .unwrap()
+        .split('\t')
+        .nth(1)
+        .unwrap()
+        .parse()
+        .unwrap();
+    assert!((want - got).abs() < 1e-14, "{out}");
+    // a family with no admissible member prints nothing
+    let (code, out, _) = run(&["family", "{2, 2, 3/2; a, 3/2, 2}", "--over", "a"], None);
+    assert_eq!((code, out.as_str()), (0, ""));
+    let (code, out, _) = run(&["family", "(2, 1, 2; 1, m, -1-m)", "--over", "m"], None);
+    assert_eq!(code, 0);
+    assert_eq!(out.lines().next().unwrap().split('\t').next(), Some("-1"));
+    // two free names, or a sum: bad input
+    let (code, _, _) = run(&["family", "(x, y, 2; 0, 0, 0)", "--over", "x"], None);
+    assert_eq!(code, 2);
+    let (code, _, _) = run(&["family", "(x, 1, 1; 0, 0, 0) + 1", "--over", "x"], None);
+    assert_eq!(code, 2);
+}

@@ -11,6 +11,7 @@
 
 mod check;
 mod eval;
+mod family;
 mod graph;
 mod input;
 mod recouple;
@@ -205,6 +206,17 @@ enum Command {
     /// Prints each coupled state |J M> as its expansion in the product
     /// basis |m1 m2>, grouped by M; --json and --csv give the entries.
     Table(table::TableArgs),
+    /// Every admissible value of one name of a symbol, with the symbol's
+    /// value.
+    ///
+    /// EXPR is one 3j, Clebsch-Gordan coefficient or 6j with numbers in
+    /// every slot but the name given with --over. Where the name is one
+    /// angular momentum of the symbol, the whole family comes from one
+    /// three-term recursion (Schulten and Gordon 1975), O(1) per member;
+    /// elsewhere each member is evaluated on its own. Prints
+    /// `value<TAB>float` per member (`value<TAB>exact<TAB>float` with
+    /// --exact).
+    Family(family::FamilyArgs),
     /// Simplify an expression; every step is verified by exact
     /// spot-evaluation.
     ///
@@ -299,6 +311,7 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
     match command {
         Command::Eval(a) => eval::run(a, io, seconds).map(|_| EXIT_OK),
         Command::Table(a) => table::run(a, io).map(|_| EXIT_OK),
+        Command::Family(a) => family::run(a, io).map(|_| EXIT_OK),
         Command::Simplify(a) => simplify::run(a, io).map(|_| EXIT_OK),
         Command::Check(a) => check::run(a, io),
         Command::Graph(a) => graph::run(a, io).map(|_| EXIT_OK),

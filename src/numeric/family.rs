@@ -46,8 +46,8 @@ const HUGE: f64 = 1e150;
 /// that; the two are matched by least squares on their overlap.
 fn solve(
     n: usize,
-    abc: &dyn Fn(usize) -> (f64, f64, f64),
-    weight: &dyn Fn(usize) -> f64,
+    abc: impl Fn(usize) -> (f64, f64, f64),
+    weight: impl Fn(usize) -> f64,
     last_sign: f64,
 ) -> Vec<f64> {
     if n == 0 {
@@ -102,7 +102,9 @@ fn solve(
         i -= 1;
     }
     let mut values = g;
-    if !fw.is_empty() {
+    if !fw.is_empty() && fw.len() >= n {
+        values.copy_from_slice(&fw[..n]);
+    } else if !fw.is_empty() {
         let top = fw.len().min(n);
         let (mut num, mut den) = (0.0, 0.0);
         for k in low..top {
@@ -125,7 +127,8 @@ fn solve(
     if values[n - 1] * scale * last_sign < 0.0 {
         scale = -scale;
     }
-    values.iter().map(|v| v * scale).collect()
+    values.iter_mut().for_each(|v| *v *= scale);
+    values
 }
 
 fn half(x: i64) -> f64 {
@@ -156,11 +159,12 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
     let big_b = |j: f64| {
         -(2.0 * j + 1.0) * (j2 * (j2 + 1.0) * m1 - j3 * (j3 + 1.0) * m1 - j * (j + 1.0) * (m3 - m2))
     };
-    // j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0
+    // j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0, each A once
+    let a_of: Vec<f64> = (0..=n).map(|i| big_a(j_of(i))).collect();
     let abc = |i: usize| {
         let j = j_of(i);
-        let a = if i + 1 < n { j * big_a(j + 1.0) } else { 0.0 };
-        let c = if i > 0 { (j + 1.0) * big_a(j) } else { 0.0 };
+        let a = if i + 1 < n { j * a_of[i + 1] } else { 0.0 };
+        let c = if i > 0 { (j + 1.0) * a_of[i] } else { 0.0 };
         (a, big_b(j), c)
     };
     let weight = |i: usize| 2.0 * j_of(i) + 1.0;
@@ -169,7 +173,7 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
     let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
     Family {
         first: lo,
-        values: solve(n, &abc, &weight, last_sign),
+        values: solve(n, abc, weight, last_sign),
     }
 }
 
@@ -204,11 +208,12 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
         (2.0 * j + 1.0)
             * (jj * (-jj + a2 + a3 - 2.0 * b1) + b2 * (jj + a2 - a3) + b3 * (jj - a2 + a3))
     };
-    // j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0
+    // j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0, each E once
+    let e_of: Vec<f64> = (0..=n).map(|i| big_e(j_of(i))).collect();
     let abc = |i: usize| {
         let j = j_of(i);
-        let a = if i + 1 < n { j * big_e(j + 1.0) } else { 0.0 };
-        let c = if i > 0 { (j + 1.0) * big_e(j) } else { 0.0 };
+        let a = if i + 1 < n { j * e_of[i + 1] } else { 0.0 };
+        let c = if i > 0 { (j + 1.0) * e_of[i] } else { 0.0 };
         (a, big_f(j), c)
     };
     let weight = |i: usize| (2.0 * j_of(i) + 1.0) * (2.0 * l1 + 1.0);
@@ -217,7 +222,7 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
     let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
     Family {
         first: lo,
-        values: solve(n, &abc, &weight, last_sign),
+        values: solve(n, abc, weight, last_sign),
     }
 }
 

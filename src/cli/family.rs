@@ -1,0 +1,252 @@
+//! `recoup family EXPR --over VAR`: every admissible value of VAR with the
+//! value of EXPR, one 3j, Clebsch–Gordan coefficient or 6j symbol whose
+//! only free name is VAR. Where VAR is one angular momentum of the symbol
+//! the whole family comes from one three-term recursion
+//! (`numeric::family`, O(1) per member); elsewhere (VAR in projections)
+//! each member is evaluated on its own. `--exact` adds exact values, each
+//! by the exact single-value formula.
+
+use super::input::{parse_expr, read_arg};
+use super::{outln, Failure, Io};
+use crate::expr::{Factor, Lin, Name, Q};
+use crate::numeric::eval::{check_assignment, Assignment, Evaluator};
+use crate::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
+use crate::numeric::Surd;
+use clap::Args;
+use num_traits::Signed;
+
+/// Most members a family may have.
+const MAX_MEMBERS: i64 = 1_000_000;
+
+#[derive(Args, Debug)]
+pub struct FamilyArgs {
+    /// one 3j, Clebsch-Gordan coefficient or 6j symbol with numbers in
+    /// every slot but one name (`-` reads standard input)
+    #[arg(allow_hyphen_values = true)]
+    expr: String,
+    /// the name that runs over the family
+    #[arg(long)]
+    over: String,
+    /// also the exact value of every member (slow at large j)
+    #[arg(long)]
+    exact: bool,
+    /// print JSON {"over": ..., "members": [{"value", "float", "exact"}]}
+    #[arg(long)]
+    json: bool,
+}
+
+/// A factor each member is multiplied by (the CG's phase and hat), by the
+/// member's doubled argument.
+type MemberFactor = Box<dyn Fn(i64) -> f64>;
+
+/// Where the running name sits and the family that recursion gives.
+fn by_recursion(f: &Factor, v: &Name) -> Option<(Family, MemberFactor)> {
+    let slot = |l: &Lin| l.as_var() == Some(v);
+    let num = |l: &Lin| -> Option<i64> {
+        if l.is_constant() {
+            crate::expr::term::doubled(l.constant_part())
+        } else {
+            None
+        }
+    };
+    match f {
+        Factor::ThreeJ(a) => {
+            let k = (0..3).find(|&i| slot(&a[i]))?;
+            // every other slot a number
+            (0..6)
+                .filter(|&i| i != k)
+                .map(|i| num(&a[i]))
+                .collect::<Option<Vec<_>>>()?;
+            // bring the column to the front by an even (cyclic) permutation
+            let (b, c) = ((k + 1) % 3, (k + 2) % 3);
+            let (tb, tc, mb, mc) = (num(&a[b])?, num(&a[c])?, num(&a[3 + b])?, num(&a[3 + c])?);
+            let ma = num(&a[3 + k])?;
+            let fam = if ma + mb + mc == 0 {
+                three_j_over_j1(tb, tc, mb, mc)
+            } else {
+                Family {
+                    first: 0,
+                    values: Vec::new(),
+                }
+            };
+            Some((fam, Box::new(|_| 1.0)))
+        }
+        Factor::Cg(a) => {
+            // <j1 m1; j2 m2 | J M> = (-1)^(j1-j2+M) hat(J) (J, j1, j2; -M, m1, m2)
+            if !slot(&a[4]) {
+                return None;
+            }
+            let (t1, m1, t2, m2, mm) = (
+                num(&a[0])?,
+                num(&a[1])?,
+                num(&a[2])?,
+                num(&a[3])?,
+                num(&a[5])?,
+            );
+            let fam = if m1 + m2 == mm {
+                three_j_over_j1(t1, t2, m1, m2)
+            } else {
+                Family {
+                    first: 0,
+                    values: Vec::new(),
+                }
+            };
+            let e = (t1 - t2 + mm) / 2;
+            let sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
+            Some((fam, Box::new(move |tj| sign * ((tj + 1) as f64).sqrt())))
+        }
+        Factor::SixJ(a) => {
+            let k = (0..6).find(|&i| slot(&a[i]))?;
+            let mut t = [0i64; 6];
+            for i in 0..6 {
+                if i != k {
+                    t[i] = num(&a[i])?;
+                }
+            }
+            // columns permuted freely; upper and lower rows swapped in
+            // two columns: move the running argument to the top left
+            let col = k % 3;
+            let order = [col, (col + 1) % 3, (col + 2) % 3];
+            let mut u = [0i64; 6];
+            for (n, &c) in order.iter().enumerate() {
+                u[n] = t[c];
+                u[3 + n] = t[3 + c];
+            }
+            if k >= 3 {
+                u.swap(0, 3);
+                u.swap(1, 4);
+            }
+            Some((
+                six_j_over_j1(u[1], u[2], u[3], u[4], u[5]),
+                Box::new(|_| 1.0),
+            ))
+        }
+        _ => None,
+    }
+}
+
+fn q_text(doubled: i64) -> String {
+    crate::expr::lin::fmt_q(&Q::new(doubled, 2))
+}
+
+pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
+    let text = read_arg(&a.expr, io)?;
+    let e = parse_expr(&text)?;
+    let v = Name::new(a.over.trim());
+    let free = e.free_vars();
+    if free.len() != 1 || !free.contains(&v) {
+        return Err(Failure::input(format!(
+            "family needs an expression whose only free name is {v}; it has {}",
+            if free.is_empty() {
+                "none".to_string()
+            } else {
+                free.iter()
+                    .map(|n| n.to_string())
+                    .collect::<Vec<_>>()
+                    .join(", ")
+            }
+        )));
+    }
+    let [t] = e.terms.as_slice() else {
+        return Err(Failure::input(
+            "family takes one symbol (a 3j, a Clebsch-Gordan coefficient or a 6j), not a sum",
+        ));
+    };
+    let symbols: Vec<&Factor> = t.factors.iter().filter(|f| f.is_symbol()).collect();
+    let one_symbol = symbols.len() == 1
+        && t.factors.len() == 1
+        && t.bound.is_empty()
+        && t.phase.is_zero()
+        && t.scalar() == Surd::one()
+        && !matches!(symbols[0], Factor::NineJ(_));
+    if !one_symbol {
+        return Err(Failure::input(
+            "family takes one symbol (a 3j, a Clebsch-Gordan coefficient or a 6j) with no other factor",
+        ));
+    }
+    let f = symbols[0];
+    let mut members: Vec<(i64, f64)> = Vec::new();
+    if let Some((fam, factor)) = by_recursion(f, &v) {
+        for (i, x) in fam.values.iter().enumerate() {
+            let tj = fam.argument(i);
+            members.push((tj, x * factor(tj)));
+        }
+    } else {
+        // each member on its own: every multiple of 1/2 the symbol's
+        // numbers allow
+        let bound: i64 = f
+            .lins()
+            .iter()
+            .map(|l| l.constant_part().abs() * Q::from_integer(2))
+            .map(|q| q.to_integer() + 1)
+            .sum();
+        if bound > MAX_MEMBERS {
+            return Err(Failure::limit(format!(
+                "a family over more than {MAX_MEMBERS} values is beyond what family lists"
+            )));
+        }
+        let ev = Evaluator::<f64>::new();
+        for tx in -bound..=bound {
+            let mut at = Assignment::new();
+            at.insert(v.clone(), Q::new(tx, 2));
+            if check_assignment(&e, &at).is_err() {
+                continue;
+            }
+            let admissible = f.triads().iter().all(|[x, y, z]| {
+                let val = |l: &Lin| {
+                    l.eval(&|n: &Name| at.get(n).copied())
+                        .and_then(crate::expr::term::doubled)
+                };
+                match (val(x), val(y), val(z)) {
+                    (Some(p), Some(q), Some(r)) => crate::numeric::exact::triangle2(p, q, r),
+                    _ => false,
+                }
+            }) && f.columns().iter().all(|(j, m)| {
+                let val = |l: &Lin| {
+                    l.eval(&|n: &Name| at.get(n).copied())
+                        .and_then(crate::expr::term::doubled)
+                };
+                matches!((val(j), val(m)), (Some(p), Some(q)) if crate::numeric::exact::projection_ok2(p, q))
+            });
+            if !admissible {
+                continue;
+            }
+            let x = ev.eval(&e, &at)?;
+            members.push((tx, x));
+        }
+    }
+    let exact: Vec<Option<String>> = if a.exact {
+        let ev = Evaluator::<Surd>::new();
+        members
+            .iter()
+            .map(|(tx, _)| {
+                let mut at = Assignment::new();
+                at.insert(v.clone(), Q::new(*tx, 2));
+                ev.eval(&e, &at).map(|s| Some(s.to_string()))
+            })
+            .collect::<Result<_, _>>()?
+    } else {
+        vec![None; members.len()]
+    };
+    if a.json {
+        let list: Vec<serde_json::Value> = members
+            .iter()
+            .zip(&exact)
+            .map(|((tx, x), ex)| serde_json::json!({"value": q_text(*tx), "float": x, "exact": ex}))
+            .collect();
+        outln!(
+            io,
+            "{}",
+            serde_json::json!({"over": v.to_string(), "members": list})
+        )?;
+    } else {
+        for ((tx, x), ex) in members.iter().zip(&exact) {
+            let f = crate::render::fmt_float(*x);
+            match ex {
+                Some(s) => outln!(io, "{}\t{s}\t{f}", q_text(*tx))?,
+                None => outln!(io, "{}\t{f}", q_text(*tx))?,
+            }
+        }
+    }
+    Ok(())
+}
