@@ -62,6 +62,16 @@ pub const BIBLIOGRAPHY: &[Work] = &[
         full: "D. A. Varshalovich, A. N. Moskalev and V. K. Khersonskii, Quantum Theory of Angular Momentum (World Scientific, Singapore, 1988)",
     },
     Work {
+        key: "schulten1975",
+        short: "Schulten and Gordon 1975",
+        full: "K. Schulten and R. G. Gordon, Exact recursive evaluation of 3j- and 6j-coefficients for quantum-mechanical coupling of angular momenta, J. Math. Phys. 16, 1961 (1975)",
+    },
+    Work {
+        key: "luscombe1998",
+        short: "Luscombe and Luban 1998",
+        full: "J. H. Luscombe and M. Luban, Simplified recursive algorithm for Wigner 3j and 6j symbols, Phys. Rev. E 57, 7274 (1998)",
+    },
+    Work {
         key: "condon1935",
         short: "Condon and Shortley 1935",
         full: "E. U. Condon and G. H. Shortley, The Theory of Atomic Spectra (Cambridge University Press, Cambridge, 1935)",
