@@ -5,7 +5,9 @@
 //! nothing about time.
 
 use recoup::numeric::family::{six_j_over_j1, three_j_over_j1};
-use recoup::numeric::float::{six_j_f64, three_j_f64};
+use recoup::numeric::float::{
+    six_j_single_sum_f64 as six_j_f64, three_j_single_sum_f64 as three_j_f64,
+};
 use std::time::Instant;
 
 fn median(mut v: Vec<f64>) -> f64 {

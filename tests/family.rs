@@ -11,7 +11,7 @@
 
 use recoup::numeric::exact::{six_j, three_j};
 use recoup::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
-use recoup::numeric::float::{six_j_f64, three_j_f64};
+use recoup::numeric::float::{six_j_single_sum_f64, three_j_single_sum_f64};
 use recoup::verify::rng::Rng;
 
 /// The worst relative error among members at least 1e-2 of the largest,
@@ -80,13 +80,14 @@ fn six_j_families_equal_the_exact_values() {
 
 #[test]
 fn large_families_agree_with_single_values() {
-    // every 500th member against the single-value float routine (accurate
-    // to 1e-15 at these j; BENCHMARKS.md)
+    // every 500th member against the single-sum float routine (accurate
+    // to 1e-15 at these j; BENCHMARKS.md), which shares nothing with the
+    // recursion
     for (tj2, tj3, tm2, tm3) in [(20000, 20000, 200, -200), (15001, 9001, -51, 3001)] {
         let f = three_j_over_j1(tj2, tj3, tm2, tm3);
         let biggest = f.values.iter().fold(0.0f64, |a, v| a.max(v.abs()));
         for i in (0..f.values.len()).step_by(500) {
-            let w = three_j_f64([f.argument(i), tj2, tj3], [-tm2 - tm3, tm2, tm3]);
+            let w = three_j_single_sum_f64([f.argument(i), tj2, tj3], [-tm2 - tm3, tm2, tm3]);
             let err = (f.values[i] - w).abs() / w.abs().max(biggest * 1e-8);
             assert!(err <= 1e-12, "member {i}: {} vs {w}", f.values[i]);
         }
@@ -94,7 +95,7 @@ fn large_families_agree_with_single_values() {
     let f = six_j_over_j1(4000, 4002, 3000, 3998, 4004);
     let biggest = f.values.iter().fold(0.0f64, |a, v| a.max(v.abs()));
     for i in (0..f.values.len()).step_by(400) {
-        let w = six_j_f64([f.argument(i), 4000, 4002, 3000, 3998, 4004]);
+        let w = six_j_single_sum_f64([f.argument(i), 4000, 4002, 3000, 3998, 4004]);
         let err = (f.values[i] - w).abs() / w.abs().max(biggest * 1e-8);
         assert!(err <= 1e-12, "6j member {i}: {} vs {w}", f.values[i]);
     }
@@ -111,4 +112,47 @@ fn empty_and_single_member_families() {
     let f = three_j_over_j1(0, 2, 0, 2);
     assert_eq!(f.values.len(), 1);
     assert!((f.values[0] - 1.0 / 3f64.sqrt()).abs() < 1e-15);
+}
+
+#[test]
+fn single_values_at_large_j_keep_their_sign_when_the_family_tails_underflow() {
+    // a 6j at j ~ 10^4 whose families end in members below 1e-308: the
+    // single float value (from its shortest family) against the single
+    // sum, and every family through it against the same value (a sign
+    // taken from an underflowed end member once flipped some of these)
+    use recoup::numeric::family::six_j_with_first;
+    use recoup::numeric::float::{six_j_f64, three_j_f64};
+    let t = [16008i64, 19726, 19070, 18840, 19392, 17202];
+    let want = six_j_single_sum_f64(t);
+    assert!((six_j_f64(t) - want).abs() <= 1e-13 * want.abs());
+    for p in 0..6 {
+        let u = six_j_with_first(t, p);
+        let f = six_j_over_j1(u[1], u[2], u[3], u[4], u[5]);
+        let i = ((u[0] - f.first) / 2) as usize;
+        assert!(
+            (f.values[i] - want).abs() <= 1e-13 * want.abs(),
+            "position {p}"
+        );
+    }
+    // random large symbols: the family path against the single sum
+    let mut rng = Rng::new(7);
+    for _ in 0..12 {
+        let j = 500 + rng.below(4000) as i64;
+        let a = 2 * j;
+        let b = 2 * j - 2 * rng.below(200) as i64;
+        let c = (a - b).abs() + 2 * rng.below(((a + b - (a - b).abs()) / 2 + 1) as u64) as i64;
+        let ma = -a + 2 * rng.below(a as u64 + 1) as i64;
+        let mb = -b + 2 * rng.below(b as u64 + 1) as i64;
+        let mc = -ma - mb;
+        if mc.abs() > c {
+            continue;
+        }
+        let (tj, tm) = ([a, b, c], [ma, mb, mc]);
+        let want = three_j_single_sum_f64(tj, tm);
+        let got = three_j_f64(tj, tm);
+        assert!(
+            (got - want).abs() <= 1e-13 * want.abs().max(1e-300),
+            "{tj:?} {tm:?}: {got} vs {want}"
+        );
+    }
 }

@@ -103,19 +103,7 @@ fn by_recursion(f: &Factor, v: &Name) -> Option<(Family, MemberFactor)> {
                     t[i] = num(&a[i])?;
                 }
             }
-            // columns permuted freely; upper and lower rows swapped in
-            // two columns: move the running argument to the top left
-            let col = k % 3;
-            let order = [col, (col + 1) % 3, (col + 2) % 3];
-            let mut u = [0i64; 6];
-            for (n, &c) in order.iter().enumerate() {
-                u[n] = t[c];
-                u[3 + n] = t[3 + c];
-            }
-            if k >= 3 {
-                u.swap(0, 3);
-                u.swap(1, 4);
-            }
+            let u = crate::numeric::family::six_j_with_first(t, k);
             Some((
                 six_j_over_j1(u[1], u[2], u[3], u[4], u[5]),
                 Box::new(|_| 1.0),

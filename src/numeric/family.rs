@@ -101,11 +101,15 @@ fn solve(
         }
         i -= 1;
     }
+    // the sign of the unnormalised last member, kept apart: the member
+    // itself may underflow to 0 in the rescaled runs
+    let mut top_sign = 1.0;
     let mut values = g;
     if !fw.is_empty() && fw.len() >= n {
         values.copy_from_slice(&fw[..n]);
+        top_sign = if fw[n - 1] < 0.0 { -1.0 } else { 1.0 };
     } else if !fw.is_empty() {
-        let top = fw.len().min(n);
+        let top = fw.len();
         let (mut num, mut den) = (0.0, 0.0);
         for k in low..top {
             num += fw[k] * values[k];
@@ -114,17 +118,16 @@ fn solve(
         if den > 0.0 && num != 0.0 {
             // express the backward run in the forward run's scale
             let scale = num / den;
+            top_sign = scale.signum();
             for v in values.iter_mut() {
                 *v *= scale;
             }
             values[..top].copy_from_slice(&fw[..top]);
-        } else if top == n {
-            values.copy_from_slice(&fw[..n]);
         }
     }
     let norm: f64 = (0..n).map(|i| weight(i) * values[i] * values[i]).sum();
     let mut scale = 1.0 / norm.sqrt();
-    if values[n - 1] * scale * last_sign < 0.0 {
+    if top_sign * last_sign < 0.0 {
         scale = -scale;
     }
     values.iter_mut().for_each(|v| *v *= scale);
@@ -148,24 +151,37 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
         return Family::empty();
     }
     let n = ((hi - lo) / 2 + 1) as usize;
-    let (j2, j3, m1, m2, m3) = (half(tj2), half(tj3), half(tm1), half(tm2), half(tm3));
     let j_of = |i: usize| half(lo) + i as f64;
-    // A(j) = sqrt((j^2 - (j2-j3)^2)((j2+j3+1)^2 - j^2)(j^2 - m1^2))
-    let big_a = |j: f64| {
-        let v =
-            (j * j - (j2 - j3) * (j2 - j3)) * ((j2 + j3 + 1.0).powi(2) - j * j) * (j * j - m1 * m1);
-        v.max(0.0).sqrt()
+    // the coefficients in exact integer arithmetic on doubled values (one
+    // rounding each: their terms cancel heavily at large j)
+    let t_of = |i: usize| (lo + 2 * i as i64) as i128;
+    let (t2, t3, u1, u2, u3) = (
+        tj2 as i128,
+        tj3 as i128,
+        tm1 as i128,
+        tm2 as i128,
+        tm3 as i128,
+    );
+    // 64 A(j)^2 = (t^2 - (t2-t3)^2)((t2+t3+2)^2 - t^2)(t^2 - u1^2)
+    let big_a = |t: i128| {
+        let v = (t * t - (t2 - t3) * (t2 - t3))
+            * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t)
+            * (t * t - u1 * u1);
+        (v.max(0) as f64).sqrt() / 8.0
     };
-    let big_b = |j: f64| {
-        -(2.0 * j + 1.0) * (j2 * (j2 + 1.0) * m1 - j3 * (j3 + 1.0) * m1 - j * (j + 1.0) * (m3 - m2))
+    // 8 B(j) / (2j+1) = -(T2 u1 - T3 u1 - T (u3 - u2)) with T = t(t+2)
+    let big_b = |t: i128| {
+        let tt = t * (t + 2);
+        let inner = t2 * (t2 + 2) * u1 - t3 * (t3 + 2) * u1 - tt * (u3 - u2);
+        -((t + 1) * inner) as f64 / 8.0
     };
     // j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0, each A once
-    let a_of: Vec<f64> = (0..=n).map(|i| big_a(j_of(i))).collect();
+    let a_of: Vec<f64> = (0..=n).map(|i| big_a(t_of(i))).collect();
     let abc = |i: usize| {
         let j = j_of(i);
         let a = if i + 1 < n { j * a_of[i + 1] } else { 0.0 };
         let c = if i > 0 { (j + 1.0) * a_of[i] } else { 0.0 };
-        (a, big_b(j), c)
+        (a, big_b(t_of(i)), c)
     };
     let weight = |i: usize| 2.0 * j_of(i) + 1.0;
     // the stretched member j1 = j2 + j3 has the sign (-1)^(j2-j3-m1)
@@ -175,6 +191,24 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
         first: lo,
         values: solve(n, abc, weight, last_sign),
     }
+}
+
+/// The 6j `{t0, t1, t2; t3, t4, t5}` rewritten by its symmetries
+/// (columns permuted, upper and lower rows swapped in two columns) so that
+/// the argument at position `p` stands at the top left.
+pub fn six_j_with_first(t: [i64; 6], p: usize) -> [i64; 6] {
+    let col = p % 3;
+    let order = [col, (col + 1) % 3, (col + 2) % 3];
+    let mut u = [0i64; 6];
+    for (n, &c) in order.iter().enumerate() {
+        u[n] = t[c];
+        u[3 + n] = t[3 + c];
+    }
+    if p >= 3 {
+        u.swap(0, 3);
+        u.swap(1, 4);
+    }
+    u
 }
 
 /// `{j1, j2, j3; l1, l2, l3}` for every allowed j1 (doubled arguments).
@@ -192,29 +226,40 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
         return Family::empty();
     }
     let n = ((hi - lo) / 2 + 1) as usize;
-    let (j2, j3, l1, l2, l3) = (half(tj2), half(tj3), half(tl1), half(tl2), half(tl3));
+    let l1 = half(tl1);
     let j_of = |i: usize| half(lo) + i as f64;
-    let big_e = |j: f64| {
-        let v = (j * j - (j2 - j3).powi(2))
-            * ((j2 + j3 + 1.0).powi(2) - j * j)
-            * (j * j - (l2 - l3).powi(2))
-            * ((l2 + l3 + 1.0).powi(2) - j * j);
-        v.max(0.0).sqrt()
+    // exact integer coefficients on doubled values, one rounding each
+    let t_of = |i: usize| (lo + 2 * i as i64) as i128;
+    let (t2, t3, s1, s2, s3) = (
+        tj2 as i128,
+        tj3 as i128,
+        tl1 as i128,
+        tl2 as i128,
+        tl3 as i128,
+    );
+    // 256 E(j)^2 = (t^2-(t2-t3)^2)((t2+t3+2)^2-t^2)(t^2-(s2-s3)^2)((s2+s3+2)^2-t^2),
+    // taken as two square roots so the product stays within i128
+    let big_e = |t: i128| {
+        let p = (t * t - (t2 - t3) * (t2 - t3)) * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
+        let q = (t * t - (s2 - s3) * (s2 - s3)) * ((s2 + s3 + 2) * (s2 + s3 + 2) - t * t);
+        ((p.max(0) as f64).sqrt() * (q.max(0) as f64).sqrt()) / 16.0
     };
-    let big_f = |j: f64| {
-        let jj = j * (j + 1.0);
-        let (a2, a3) = (j2 * (j2 + 1.0), j3 * (j3 + 1.0));
-        let (b1, b2, b3) = (l1 * (l1 + 1.0), l2 * (l2 + 1.0), l3 * (l3 + 1.0));
-        (2.0 * j + 1.0)
-            * (jj * (-jj + a2 + a3 - 2.0 * b1) + b2 * (jj + a2 - a3) + b3 * (jj - a2 + a3))
+    // F(j) = (2j+1) [JJ(-JJ + A2 + A3 - 2 B1) + B2(JJ + A2 - A3) + B3(JJ - A2 + A3)] / 16
+    // with JJ = t(t+2) = 4 j(j+1) and likewise for the others
+    let big_f = |t: i128| {
+        let tt = t * (t + 2);
+        let (a2, a3) = (t2 * (t2 + 2), t3 * (t3 + 2));
+        let (b1, b2, b3) = (s1 * (s1 + 2), s2 * (s2 + 2), s3 * (s3 + 2));
+        let inner = tt * (-tt + a2 + a3 - 2 * b1) + b2 * (tt + a2 - a3) + b3 * (tt - a2 + a3);
+        ((t + 1) * inner) as f64 / 16.0
     };
     // j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0, each E once
-    let e_of: Vec<f64> = (0..=n).map(|i| big_e(j_of(i))).collect();
+    let e_of: Vec<f64> = (0..=n).map(|i| big_e(t_of(i))).collect();
     let abc = |i: usize| {
         let j = j_of(i);
         let a = if i + 1 < n { j * e_of[i + 1] } else { 0.0 };
         let c = if i > 0 { (j + 1.0) * e_of[i] } else { 0.0 };
-        (a, big_f(j), c)
+        (a, big_f(t_of(i)), c)
     };
     let weight = |i: usize| (2.0 * j_of(i) + 1.0) * (2.0 * l1 + 1.0);
     // the last member has the sign (-1)^(j2+j3+l2+l3)
@@ -229,7 +274,9 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::numeric::float::{six_j_f64, three_j_f64};
+    use crate::numeric::float::{
+        six_j_single_sum_f64 as six_j_f64, three_j_single_sum_f64 as three_j_f64,
+    };
 
     fn worst_3j(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> f64 {
         let f = three_j_over_j1(tj2, tj3, tm2, tm3);

@@ -10,7 +10,7 @@
 //! Values below the f64 range underflow to 0 or a subnormal.
 
 use super::dd::{Dd, Xf};
-use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range};
+use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range, projection_ok2, triangle2};
 use super::racah::{six_j_formula, three_j_formula, RacahFormula, RacahSum};
 use super::{exact, Surd};
 use num_traits::Signed;
@@ -374,8 +374,86 @@ fn three_j_xf(tj: [i64; 3], tm: [i64; 3]) -> Xf {
     }
 }
 
+/// From this doubled angular momentum on, a single float 3j or 6j comes
+/// from the shortest family that holds it (O(j), about 20-35 ns per
+/// member) when it is not small in that family; the single-sum path costs
+/// O(j) big-number work per value there.
+pub const FAMILY_FROM_DOUBLED_J: i64 = 400;
+
+/// A member of its family is trusted when at least this fraction of the
+/// largest magnitude among its neighbours (members near a zero of the
+/// family lose relative accuracy in the recursion, in proportion to the
+/// local amplitude over their own size, and take the single-sum path).
+const FAMILY_TRUST: f64 = 1e-1;
+
+/// Members on each side that set the local amplitude.
+const FAMILY_WINDOW: usize = 8;
+
+/// The 3j from its shortest family over one column (cyclic permutations
+/// are even), or `None` when the member is small in its family or the
+/// symbol is zero by its selection rules.
+fn three_j_by_family(tj: [i64; 3], tm: [i64; 3]) -> Option<f64> {
+    if tm.iter().sum::<i64>() != 0
+        || !triangle2(tj[0], tj[1], tj[2])
+        || (0..3).any(|k| !projection_ok2(tj[k], tm[k]))
+    {
+        return None;
+    }
+    let k = (0..3).min_by_key(|&k| {
+        let (b, c) = ((k + 1) % 3, (k + 2) % 3);
+        tj[b] + tj[c] - (tj[b] - tj[c]).abs().max(tm[k].abs())
+    })?;
+    let (b, c) = ((k + 1) % 3, (k + 2) % 3);
+    let fam = super::family::three_j_over_j1(tj[b], tj[c], tm[b], tm[c]);
+    member(&fam, tj[k])
+}
+
+/// The member at doubled argument `t` when it is not small in its family.
+fn member(fam: &super::family::Family, t: i64) -> Option<f64> {
+    let i = usize::try_from((t - fam.first) / 2).ok()?;
+    let v = *fam.values.get(i)?;
+    let window =
+        &fam.values[i.saturating_sub(FAMILY_WINDOW)..(i + FAMILY_WINDOW + 1).min(fam.values.len())];
+    let local = window.iter().fold(0.0f64, |a, x| a.max(x.abs()));
+    (v.abs() >= FAMILY_TRUST * local && v != 0.0).then_some(v)
+}
+
+/// The 6j from its shortest family over one argument (the argument moved
+/// to the top left by the symbol's symmetries), like `three_j_by_family`.
+fn six_j_by_family(t: [i64; 6]) -> Option<f64> {
+    let triads = [
+        (t[0], t[1], t[2]),
+        (t[0], t[4], t[5]),
+        (t[3], t[1], t[5]),
+        (t[3], t[4], t[2]),
+    ];
+    if triads.iter().any(|&(a, b, c)| !triangle2(a, b, c)) {
+        return None;
+    }
+    let moved = |p: usize| super::family::six_j_with_first(t, p);
+    let length = |u: &[i64; 6]| {
+        (u[1] + u[2]).min(u[4] + u[5]) - (u[1] - u[2]).abs().max((u[4] - u[5]).abs())
+    };
+    let p = (0..6).min_by_key(|&p| length(&moved(p)))?;
+    let u = moved(p);
+    let fam = super::family::six_j_over_j1(u[1], u[2], u[3], u[4], u[5]);
+    member(&fam, u[0])
+}
+
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)` in f64; doubled arguments.
 pub fn three_j_f64(tj: [i64; 3], tm: [i64; 3]) -> f64 {
+    if tj.iter().any(|&x| x >= FAMILY_FROM_DOUBLED_J) {
+        if let Some(v) = three_j_by_family(tj, tm) {
+            return v;
+        }
+    }
+    three_j_single_sum_f64(tj, tm)
+}
+
+/// The 3j symbol in f64 by the single-sum formula alone (double-double
+/// with a cancellation guard, big-number fixed point where it must);
+/// doubled arguments.
+pub fn three_j_single_sum_f64(tj: [i64; 3], tm: [i64; 3]) -> f64 {
     match three_j_formula(tj, tm) {
         None => 0.0,
         Some(f) => evaluate_fast(&f).unwrap_or_else(|| {
@@ -411,6 +489,17 @@ fn six_j_xf(t: [i64; 6]) -> Xf {
 
 /// The 6j symbol `{j1 j2 j3; j4 j5 j6}` in f64; doubled arguments.
 pub fn six_j_f64(t: [i64; 6]) -> f64 {
+    if t.iter().any(|&x| x >= FAMILY_FROM_DOUBLED_J) {
+        if let Some(v) = six_j_by_family(t) {
+            return v;
+        }
+    }
+    six_j_single_sum_f64(t)
+}
+
+/// The 6j symbol in f64 by the single-sum formula alone; doubled
+/// arguments.
+pub fn six_j_single_sum_f64(t: [i64; 6]) -> f64 {
     match six_j_formula(t) {
         None => 0.0,
         Some(f) => evaluate_fast(&f).unwrap_or_else(|| {
