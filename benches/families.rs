@@ -1,13 +1,17 @@
 //! Cost per value of whole families by recursion (`numeric::family`)
 //! against a loop of single float values over the same members (recoup's
-//! own single-value routine; GSL is not linked here), at j ~ 100, 1000
-//! and 10^4. Run: `cargo bench --bench families`. A benchmark: it asserts
-//! nothing about time.
+//! single-sum routine; GSL is not linked here), at j ~ 100, 1000 and
+//! 10^4; then single float values (`three_j_f64`, `six_j_f64`, which take
+//! a member of the shortest family at j >= 200 when it is not small there)
+//! against the single sum on the same random arguments. Run:
+//! `cargo bench --bench families`. A benchmark: it asserts nothing about
+//! time.
 
 use recoup::numeric::family::{six_j_over_j1, three_j_over_j1};
 use recoup::numeric::float::{
     six_j_single_sum_f64 as six_j_f64, three_j_single_sum_f64 as three_j_f64,
 };
+use recoup::verify::rng::Rng;
 use std::time::Instant;
 
 fn median(mut v: Vec<f64>) -> f64 {
@@ -71,6 +75,81 @@ fn main() {
         println!(
             "| 6j over j1, others ~ {j} | {n} | {per_rec:.1} | {per_single:.0} | {:.0}x |",
             per_single / per_rec
+        );
+    }
+    single_values();
+}
+
+/// Random admissible 3j and 6j with every j near `j` (doubled).
+fn random_symbols(rng: &mut Rng, j: i64, n: usize) -> (Vec<([i64; 3], [i64; 3])>, Vec<[i64; 6]>) {
+    let mut threes = Vec::new();
+    while threes.len() < n {
+        let spread = (j / 5).max(1) as u64;
+        let a = 2 * j - 2 * rng.below(spread) as i64;
+        let b = 2 * j - 2 * rng.below(spread) as i64;
+        let lo = (a - b).abs();
+        let c = lo + 2 * rng.below(((a + b - lo) / 2 + 1) as u64) as i64;
+        let ma = -a + 2 * rng.below(a as u64 + 1) as i64;
+        let mb = -b + 2 * rng.below(b as u64 + 1) as i64;
+        if (ma + mb).abs() <= c {
+            threes.push(([a, b, c], [ma, mb, -ma - mb]));
+        }
+    }
+    let mut sixes = Vec::new();
+    let tri = |a: i64, b: i64, c: i64| (a + b + c) % 2 == 0 && c >= (a - b).abs() && c <= a + b;
+    while sixes.len() < n {
+        let mut t = [0i64; 6];
+        for x in t.iter_mut() {
+            *x = 2 * j - 2 * rng.below((j / 5).max(1) as u64) as i64;
+        }
+        if tri(t[0], t[1], t[2])
+            && tri(t[0], t[4], t[5])
+            && tri(t[3], t[1], t[5])
+            && tri(t[3], t[4], t[2])
+        {
+            sixes.push(t);
+        }
+    }
+    (threes, sixes)
+}
+
+fn timed(f: impl Fn() -> f64) -> f64 {
+    let t = Instant::now();
+    std::hint::black_box(f());
+    t.elapsed().as_secs_f64()
+}
+
+fn single_values() {
+    use recoup::numeric::float::{six_j_f64 as six_fast, three_j_f64 as three_fast};
+    println!();
+    println!("| single values | n | median now | median single sum | ratio |");
+    println!("|---|---|---|---|---|");
+    let mut rng = Rng::new(2027);
+    for (j, n) in [(1000i64, 30usize), (10000, 8)] {
+        let (threes, sixes) = random_symbols(&mut rng, j, n);
+        let now: Vec<f64> = threes
+            .iter()
+            .map(|&(a, m)| timed(|| three_fast(a, m)))
+            .collect();
+        let old: Vec<f64> = threes
+            .iter()
+            .map(|&(a, m)| timed(|| three_j_f64(a, m)))
+            .collect();
+        let (a, b) = (median(now), median(old));
+        println!(
+            "| 3j, j ~ {j} | {n} | {:.1} us | {:.1} us | {:.0}x |",
+            a * 1e6,
+            b * 1e6,
+            b / a
+        );
+        let now: Vec<f64> = sixes.iter().map(|&t| timed(|| six_fast(t))).collect();
+        let old: Vec<f64> = sixes.iter().map(|&t| timed(|| six_j_f64(t))).collect();
+        let (a, b) = (median(now), median(old));
+        println!(
+            "| 6j, j ~ {j} | {n} | {:.1} us | {:.1} us | {:.0}x |",
+            a * 1e6,
+            b * 1e6,
+            b / a
         );
     }
 }
