@@ -417,7 +417,7 @@ fn case(rng: &mut Rng, corpus: &[String]) -> (Vec<String>, Vec<u8>) {
             }
             (a, Vec::new())
         }
-        _ => (
+        18 => (
             vec![
                 s("table"),
                 pick(rng, NUMBERS).to_string(),
@@ -425,6 +425,55 @@ fn case(rng: &mut Rng, corpus: &[String]) -> (Vec<String>, Vec<u8>) {
             ],
             Vec::new(),
         ),
+        _ => {
+            // a symbol with one running name in a random slot, numbers
+            // elsewhere (sometimes large or hostile), or any text
+            let mut slots: Vec<String> = (0..6)
+                .map(|_| {
+                    if rng.below(6) == 0 {
+                        pick(rng, NUMBERS).to_string()
+                    } else {
+                        pick(
+                            rng,
+                            &[
+                                "0", "1/2", "1", "3/2", "2", "5/2", "500", "2001/2", "-1", "4000",
+                            ],
+                        )
+                        .to_string()
+                    }
+                })
+                .collect();
+            let k = rng.below(6) as usize;
+            slots[k] = s("x");
+            let body = match rng.below(4) {
+                0 => format!(
+                    "({}, {}, {}; {}, {}, {})",
+                    slots[0], slots[1], slots[2], slots[3], slots[4], slots[5]
+                ),
+                1 => format!(
+                    "<{}, {}; {}, {} | {}, {}>",
+                    slots[0], slots[1], slots[2], slots[3], slots[4], slots[5]
+                ),
+                2 => format!(
+                    "{{{}, {}, {}; {}, {}, {}}}",
+                    slots[0], slots[1], slots[2], slots[3], slots[4], slots[5]
+                ),
+                _ => text(rng),
+            };
+            let mut a = vec![
+                s("family"),
+                body,
+                s("--over"),
+                pick(rng, &["x", "x", "y", ""]).to_string(),
+            ];
+            if rng.below(4) == 0 {
+                a.push(s("--exact"));
+            }
+            if rng.below(4) == 0 {
+                a.push(s("--json"));
+            }
+            (a, Vec::new())
+        }
     }
 }
 

@@ -15,7 +15,8 @@
 
 /**
  * A negative angular momentum, or an argument beyond what is evaluated
- * (float: j up to 50000; exact: j up to 20000).
+ * (float: j up to 50000, 9j up to 5000; exact: j up to 20000, 9j up to
+ * 200).
  */
 #define RECOUP_ERR_ARGUMENT 1
 
@@ -77,6 +78,26 @@ int recoup_6j_exact(int tj1,
                     char *buf,
                     uintptr_t len,
                     uintptr_t *needed);
+
+/**
+ * The exact Clebsch–Gordan coefficient `<j1 m1; j2 m2 | J M>` as text,
+ * like `recoup_3j_exact`.
+ */
+int recoup_cg_exact(int tj1,
+                    int tm1,
+                    int tj2,
+                    int tm2,
+                    int tjj,
+                    int tmm,
+                    char *buf,
+                    uintptr_t len,
+                    uintptr_t *needed);
+
+/**
+ * The exact 9j symbol (nine doubled arguments, row by row) as text, like
+ * `recoup_3j_exact`.
+ */
+int recoup_9j_exact(const int *t, char *buf, uintptr_t len, uintptr_t *needed);
 
 /**
  * Every 3j `(j1 j2 j3; -m2-m3 m2 m3)` over j1, by recursion: `*first`

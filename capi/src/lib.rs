@@ -16,7 +16,8 @@ use std::panic::{catch_unwind, AssertUnwindSafe};
 /// Success.
 pub const RECOUP_OK: c_int = 0;
 /// A negative angular momentum, or an argument beyond what is evaluated
-/// (float: j up to 50000; exact: j up to 20000).
+/// (float: j up to 50000, 9j up to 5000; exact: j up to 20000, 9j up to
+/// 200).
 pub const RECOUP_ERR_ARGUMENT: c_int = 1;
 /// A null pointer, or a buffer too short (the needed size is reported).
 pub const RECOUP_ERR_BUFFER: c_int = 2;
@@ -195,6 +196,63 @@ pub extern "C" fn recoup_6j_exact(
         }
         write_text(
             &exact::six_j(t.map(i64::from)).to_string(),
+            buf,
+            len,
+            needed,
+        )
+    })
+}
+
+/// The exact Clebsch–Gordan coefficient `<j1 m1; j2 m2 | J M>` as text,
+/// like `recoup_3j_exact`.
+#[no_mangle]
+pub extern "C" fn recoup_cg_exact(
+    tj1: c_int,
+    tm1: c_int,
+    tj2: c_int,
+    tm2: c_int,
+    tjj: c_int,
+    tmm: c_int,
+    buf: *mut c_char,
+    len: usize,
+    needed: *mut usize,
+) -> c_int {
+    guarded(|| {
+        if !arguments_ok(&[tj1, tj2, tjj], &[tm1, tm2, tmm], MAX_EXACT_J) {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        let v = exact::clebsch_gordan(
+            tj1.into(),
+            tm1.into(),
+            tj2.into(),
+            tm2.into(),
+            tjj.into(),
+            tmm.into(),
+        );
+        write_text(&v.to_string(), buf, len, needed)
+    })
+}
+
+/// The exact 9j symbol (nine doubled arguments, row by row) as text, like
+/// `recoup_3j_exact`.
+#[no_mangle]
+pub extern "C" fn recoup_9j_exact(
+    t: *const c_int,
+    buf: *mut c_char,
+    len: usize,
+    needed: *mut usize,
+) -> c_int {
+    guarded(|| {
+        if t.is_null() {
+            return RECOUP_ERR_BUFFER;
+        }
+        // SAFETY: the caller passes nine ints
+        let t: [c_int; 9] = unsafe { std::ptr::read(t as *const [c_int; 9]) };
+        if !arguments_ok(&t, &[], MAX_EXACT_J / 100) {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        write_text(
+            &exact::nine_j(t.map(i64::from)).to_string(),
             buf,
             len,
             needed,

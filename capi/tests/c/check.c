@@ -54,6 +54,12 @@ int main(void) {
            "recoup_6j_exact");
     printf("exact\t{1, 1, 1; 1, 1, 1}\t%s\n", text);
 
+    expect(recoup_cg_exact(2, 2, 1, -1, 1, 1, text, sizeof text, &needed), RECOUP_OK,
+           "recoup_cg_exact");
+    printf("exact\t<1, 1; 1/2, -1/2 | 1/2, 1/2>\t%s\n", text);
+    expect(recoup_9j_exact(nine2, text, sizeof text, &needed), RECOUP_OK, "recoup_9j_exact");
+    printf("exact\t{1/2, 1/2, 1; 1, 3/2, 1/2; 3/2, 2, 1/2}\t%s\n", text);
+
     /* a family: ask for its size, then fill */
     int first = 0;
     size_t count = 0;
