@@ -80,8 +80,11 @@ fn main() {
     single_values();
 }
 
+/// A 3j's doubled angular momenta and projections.
+type ThreeJArgs = ([i64; 3], [i64; 3]);
+
 /// Random admissible 3j and 6j with every j near `j` (doubled).
-fn random_symbols(rng: &mut Rng, j: i64, n: usize) -> (Vec<([i64; 3], [i64; 3])>, Vec<[i64; 6]>) {
+fn random_symbols(rng: &mut Rng, j: i64, n: usize) -> (Vec<ThreeJArgs>, Vec<[i64; 6]>) {
     let mut threes = Vec::new();
     while threes.len() < n {
         let spread = (j / 5).max(1) as u64;

@@ -501,6 +501,24 @@ fn family_lists_every_member() {
     let (code, out, _) = run(&["family", "(2, 1, 2; 1, m, -1-m)", "--over", "m"], None);
     assert_eq!(code, 0);
     assert_eq!(out.lines().next().unwrap().split('\t').next(), Some("-1"));
+    // a CG over a projection pair: <1, m; 1/2, 1/2-m | 3/2, 1/2> for
+    // m = 0, 1 is sqrt(2/3), sqrt(1/3) (Condon and Shortley 1935, the
+    // j2 = 1/2 table; from memory)
+    let (code, out, _) = run(
+        &[
+            "family",
+            "<1, m; 1/2, 1/2 - m | 3/2, 1/2>",
+            "--over",
+            "m",
+            "--exact",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    let rows: Vec<Vec<&str>> = out.lines().map(|l| l.split('\t').collect()).collect();
+    assert_eq!(rows.len(), 2, "{out}");
+    assert_eq!((rows[0][0], rows[0][1]), ("0", "sqrt(2/3)"));
+    assert_eq!((rows[1][0], rows[1][1]), ("1", "sqrt(1/3)"));
     // two free names, or a sum: bad input
     let (code, _, _) = run(&["family", "(x, y, 2; 0, 0, 0)", "--over", "x"], None);
     assert_eq!(code, 2);

@@ -10,7 +10,7 @@
 //! printed with --nocapture.
 
 use recoup::numeric::exact::{six_j, three_j};
-use recoup::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
+use recoup::numeric::family::{six_j_over_j1, three_j_over_j1, three_j_over_m2, Family};
 use recoup::numeric::float::{six_j_single_sum_f64, three_j_single_sum_f64};
 use recoup::verify::rng::Rng;
 
@@ -154,5 +154,44 @@ fn single_values_at_large_j_keep_their_sign_when_the_family_tails_underflow() {
             (got - want).abs() <= 1e-13 * want.abs().max(1e-300),
             "{tj:?} {tm:?}: {got} vs {want}"
         );
+    }
+}
+
+#[test]
+fn three_j_families_over_a_projection_equal_the_exact_values() {
+    let mut rng = Rng::new(47);
+    let mut worst_seen = (0.0f64, 0.0f64);
+    let mut tried = 0;
+    while tried < 40 {
+        let t1 = rng.below(41) as i64;
+        let t2 = rng.below(41) as i64;
+        let lo = (t1 - t2).abs();
+        let t3 = lo + 2 * rng.below(((t1 + t2 - lo) / 2 + 1) as u64) as i64;
+        let m1 = t1 - 2 * rng.below(t1 as u64 + 1) as i64;
+        let f = three_j_over_m2(t1, t2, t3, m1);
+        if f.values.is_empty() {
+            continue;
+        }
+        tried += 1;
+        let w = worst(&f, &|m2| three_j([t1, t2, t3], [m1, m2, -m1 - m2]).to_f64());
+        worst_seen = (worst_seen.0.max(w.0), worst_seen.1.max(w.1));
+        assert!(
+            w.0 <= 1e-13 && w.1 <= 1e-13, // m recursion: absolute error up to 1.3e-14 of the largest
+            "({t1}, {t2}, {t3}; {m1})/2: {w:?}"
+        );
+    }
+    println!(
+        "3j families over m2, j <= 20: worst relative error {:.2e}, worst absolute/largest {:.2e}",
+        worst_seen.0, worst_seen.1
+    );
+    // at j ~ 10^4 against the single sum, every 400th member
+    let (t1, t2, t3, m1) = (20000, 19000, 18000, 300);
+    let f = three_j_over_m2(t1, t2, t3, m1);
+    let biggest = f.values.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+    for i in (0..f.values.len()).step_by(400) {
+        let m2 = f.argument(i);
+        let w = three_j_single_sum_f64([t1, t2, t3], [m1, m2, -m1 - m2]);
+        let err = (f.values[i] - w).abs() / w.abs().max(biggest * 1e-8);
+        assert!(err <= 1e-12, "member {i}: {} vs {w}", f.values[i]);
     }
 }

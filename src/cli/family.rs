@@ -113,6 +113,74 @@ fn by_recursion(f: &Factor, v: &Name) -> Option<(Family, MemberFactor)> {
     }
 }
 
+/// A 3j or CG whose running name is a projection `x` with the other
+/// projection of its pair `c - x` (the third fixed): the family over that
+/// projection by the recursion in m (`three_j_over_m2`), as (2x, value)
+/// in increasing x.
+fn by_projection_recursion(f: &Factor, v: &Name) -> Option<Vec<(i64, f64)>> {
+    let num = |l: &Lin| -> Option<i64> {
+        if l.is_constant() {
+            crate::expr::term::doubled(l.constant_part())
+        } else {
+            None
+        }
+    };
+    let x = Lin::var(v.clone());
+    // as a 3j (j, m columns) with a constant factor
+    let (cols, factor): ([(Lin, Lin); 3], f64) = match f {
+        Factor::ThreeJ(a) => (
+            [
+                (a[0].clone(), a[3].clone()),
+                (a[1].clone(), a[4].clone()),
+                (a[2].clone(), a[5].clone()),
+            ],
+            1.0,
+        ),
+        Factor::Cg(a) => {
+            // <j1 m1; j2 m2 | J M> = (-1)^(j1-j2+M) hat(J) (j1, j2, J; m1, m2, -M)
+            let (t1, t2, tjj, tmm) = (num(&a[0])?, num(&a[2])?, num(&a[4])?, num(&a[5])?);
+            let e = (t1 - t2 + tmm) / 2;
+            let sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
+            (
+                [
+                    (a[0].clone(), a[1].clone()),
+                    (a[2].clone(), a[3].clone()),
+                    (a[4].clone(), -&a[5]),
+                ],
+                sign * ((tjj + 1) as f64).sqrt(),
+            )
+        }
+        _ => return None,
+    };
+    let tj: Vec<i64> = cols.iter().map(|(j, _)| num(j)).collect::<Option<_>>()?;
+    // the fixed column, and the pair (x, c - x)
+    let fixed = (0..3).find(|&k| num(&cols[k].1).is_some())?;
+    let (p, q) = ((fixed + 1) % 3, (fixed + 2) % 3);
+    let tm_fixed = num(&cols[fixed].1)?;
+    let minus_fixed = Lin::constant(Q::new(-tm_fixed, 2));
+    let conserved = |a: &Lin, b: &Lin| &(a + b) - &minus_fixed == Lin::zero();
+    if !conserved(&cols[p].1, &cols[q].1) {
+        return None;
+    }
+    // cyclic order (fixed, p, q): the family runs over m_p
+    let fam = crate::numeric::family::three_j_over_m2(tj[fixed], tj[p], tj[q], tm_fixed);
+    let to_x: Box<dyn Fn(i64) -> i64> = if cols[p].1 == x {
+        Box::new(|m| m)
+    } else if cols[q].1 == x {
+        Box::new(move |m| -tm_fixed - m)
+    } else {
+        return None;
+    };
+    let mut out: Vec<(i64, f64)> = fam
+        .values
+        .iter()
+        .enumerate()
+        .map(|(i, val)| (to_x(fam.argument(i)), val * factor))
+        .collect();
+    out.sort_by_key(|(t, _)| *t);
+    Some(out)
+}
+
 fn q_text(doubled: i64) -> String {
     crate::expr::lin::fmt_q(&Q::new(doubled, 2))
 }
@@ -159,6 +227,8 @@ pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
             let tj = fam.argument(i);
             members.push((tj, x * factor(tj)));
         }
+    } else if let Some(found) = by_projection_recursion(f, &v) {
+        members = found;
     } else {
         // each member on its own: every multiple of 1/2 the symbol's
         // numbers allow

@@ -193,6 +193,59 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
     }
 }
 
+/// `(j1, j2, j3; m1, m2, -m1-m2)` for every allowed m2 with the rest
+/// fixed (doubled arguments; `first` is the first 2 m2), by the
+/// recursion in m2 of Schulten and Gordon 1975:
+/// `C(m2+1) f(m2+1) + D(m2) f(m2) + C(m2) f(m2-1) = 0` with
+/// `C(m2)^2 = (j2-m2+1)(j2+m2)(j3+m3+1)(j3-m3)` (m3 = -m1-m2) and
+/// `D(m2) = j2(j2+1) + j3(j3+1) - j1(j1+1) + 2 m2 m3`; normalised by
+/// `Σ (2j1+1) f^2 = 1`.
+pub fn three_j_over_m2(tj1: i64, tj2: i64, tj3: i64, tm1: i64) -> Family {
+    let triad_ok = (tj1 + tj2 + tj3) % 2 == 0 && tj3 >= (tj1 - tj2).abs() && tj3 <= tj1 + tj2;
+    if !triad_ok || tm1.abs() > tj1 || (tj1 - tm1) % 2 != 0 {
+        return Family::empty();
+    }
+    let lo = (-tj2).max(-tj3 - tm1);
+    let hi = tj2.min(tj3 - tm1);
+    if lo > hi {
+        return Family::empty();
+    }
+    let n = ((hi - lo) / 2 + 1) as usize;
+    let (t1, t2, t3, u1) = (tj1 as i128, tj2 as i128, tj3 as i128, tm1 as i128);
+    let u_of = |i: usize| (lo + 2 * i as i64) as i128;
+    // 16 C(m2)^2 = (t2-u2+2)(t2+u2)(t3+u3+2)(t3-u3), u3 = -u1-u2
+    let big_c = |u2: i128| {
+        let u3 = -u1 - u2;
+        let v = (t2 - u2 + 2) * (t2 + u2) * (t3 + u3 + 2) * (t3 - u3);
+        (v.max(0) as f64).sqrt() / 4.0
+    };
+    // 4 D(m2) = T2 + T3 - T1 + 2 u2 u3 with T = t(t+2)
+    let big_d = |u2: i128| {
+        let u3 = -u1 - u2;
+        (t2 * (t2 + 2) + t3 * (t3 + 2) - t1 * (t1 + 2) + 2 * u2 * u3) as f64 / 4.0
+    };
+    let c_of: Vec<f64> = (0..=n).map(|i| big_c(u_of(i))).collect();
+    let abc = |i: usize| {
+        let a = if i + 1 < n { c_of[i + 1] } else { 0.0 };
+        let c = if i > 0 { c_of[i] } else { 0.0 };
+        (a, big_d(u_of(i)), c)
+    };
+    let weight = |_: usize| (tj1 + 1) as f64;
+    // the last member: m2 = j2 (a single Racah term, sign
+    // (-1)^(2j1 - j3 - m3)) or else m3 = -j3 (sign (-1)^(2j1 - j2 - m1 + j3))
+    let e = if hi == tj2 {
+        let tm3 = -tm1 - hi;
+        (2 * tj1 - tj3 - tm3) / 2
+    } else {
+        (2 * tj1 - tj2 - tm1 + tj3) / 2
+    };
+    let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
+    Family {
+        first: lo,
+        values: solve(n, abc, weight, last_sign),
+    }
+}
+
 /// The 6j `{t0, t1, t2; t3, t4, t5}` rewritten by its symmetries
 /// (columns permuted, upper and lower rows swapped in two columns) so that
 /// the argument at position `p` stands at the top left.
@@ -304,6 +357,30 @@ mod tests {
         ] {
             let w = worst_3j(j2, j3, m2, m3);
             assert!(w < 1e-12, "({j2}, {j3}, {m2}, {m3}): {w}");
+        }
+    }
+
+    #[test]
+    fn three_j_m_families_match_single_values() {
+        for (j1, j2, j3, m1) in [
+            (2, 2, 2, 0),
+            (2, 2, 0, 2),
+            (4, 6, 4, 2),
+            (21, 17, 10, -3),
+            (40, 40, 40, 0),
+            (100, 60, 80, 20),
+            (201, 199, 100, -51),
+            (0, 4, 4, 0),
+        ] {
+            let f = three_j_over_m2(j1, j2, j3, m1);
+            assert!(!f.values.is_empty(), "{:?}", (j1, j2, j3, m1));
+            let biggest = f.values.iter().fold(0.0f64, |a, v| a.max(v.abs()));
+            for (i, v) in f.values.iter().enumerate() {
+                let m2 = f.argument(i);
+                let want = three_j_f64([j1, j2, j3], [m1, m2, -m1 - m2]);
+                let err = (v - want).abs() / want.abs().max(biggest * 1e-6);
+                assert!(err < 1e-12, "{:?} m2 {m2}: {v} vs {want}", (j1, j2, j3, m1));
+            }
         }
     }
 
