@@ -600,6 +600,17 @@ fn the_reported_defects_stay_fixed() {
         (&["eval", "{1, 1, 1; 3, 2, -1}"], "", 2),
         (&["eval", "{1, 1, 1; 3, 2, 1/3}"], "", 2),
         (&["eval", "<1/2, 1/3; 1/2, 0 | 1, 1>"], "", 2),
+        // a free projection whose j is summed: 3j orthogonality would drop
+        // the column that zeroed the values of i it does not fit (seed 13
+        // of a long run; the gate caught it as exit 4)
+        (
+            &[
+                "simplify",
+                "sum(mg, mh, i: (2*i+1) (g, h, i; mg, mh, mi) (g, h, i; mg, mh, mi))",
+            ],
+            "",
+            0,
+        ),
         (&["eval", "hat(1/3)"], "", 2),
         (&["eval", "{1, 1, 1; 1, 1, 1; 1, 1, -1}"], "", 2),
         (&["eval", "sum(x: {x, 1, 1; 1, 1, -1})"], "", 2),

@@ -254,7 +254,11 @@ impl Pattern {
             let l = apply(&Lin::var(p.clone()), &m.subst);
             let jv = apply(j, &m.subst);
             if let Some((v, _)) = l.as_signed_var() {
-                if !t.bound.contains(v) {
+                // a free projection is admissible for its free j (the
+                // input's facts); with a summed j the sum runs over values
+                // of j that the projection does not fit, which the dropped
+                // column was zeroing: another column must still say so
+                if !t.bound.contains(v) && !jv.vars().any(|x| t.bound.contains(x)) {
                     return true;
                 }
                 return t.factors.iter().enumerate().any(|(i, f)| {
