@@ -1,10 +1,10 @@
 //! `recoup family EXPR --over VAR`: every admissible value of VAR with the
 //! value of EXPR, one 3j, Clebsch–Gordan coefficient or 6j symbol whose
-//! only free name is VAR. Where VAR is one angular momentum of the symbol
-//! the whole family comes from one three-term recursion
-//! (`numeric::family`, O(1) per member); elsewhere (VAR in projections)
-//! each member is evaluated on its own. `--exact` adds exact values, each
-//! by the exact single-value formula.
+//! only free name is VAR. Where VAR is one angular momentum of the symbol,
+//! or a projection paired with `c - VAR` in another column, the whole
+//! family comes from one three-term recursion (`numeric::family`, O(1)
+//! per member); elsewhere each member is evaluated on its own. `--exact`
+//! adds exact values, each by the exact single-value formula.
 
 use super::input::{parse_expr, read_arg};
 use super::{outln, Failure, Io};

@@ -211,7 +211,8 @@ enum Command {
     ///
     /// EXPR is one 3j, Clebsch-Gordan coefficient or 6j with numbers in
     /// every slot but the name given with --over. Where the name is one
-    /// angular momentum of the symbol, the whole family comes from one
+    /// angular momentum of the symbol, or a projection paired with
+    /// `c - name` in another column, the whole family comes from one
     /// three-term recursion (Schulten and Gordon 1975), O(1) per member;
     /// elsewhere each member is evaluated on its own. Prints
     /// `value<TAB>float` per member (`value<TAB>exact<TAB>float` with
