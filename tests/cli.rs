@@ -525,3 +525,17 @@ fn family_lists_every_member() {
     let (code, _, _) = run(&["family", "(x, 1, 1; 0, 0, 0) + 1", "--over", "x"], None);
     assert_eq!(code, 2);
 }
+
+#[test]
+fn half_integer_exponents() {
+    // x^(p/2) = sqrt(x)^p: (2j+1)^(-1/2) (j+1)^(3/2) at j = 1 is
+    // 3^(-1/2) 2^(3/2) = sqrt(8/3) (arithmetic, no source needed)
+    let (code, out, _) = run(&["eval", "(2*j+1)^(-1/2) (j+1)^(3/2)", "--at", "j=1"], None);
+    assert_eq!((code, out.split('\t').next()), (0, Some("sqrt(8/3)")));
+    let (code, out, _) = run(&["latex", "(2*j+1)^(-1/2)"], None);
+    assert_eq!((code, out.trim()), (0, "\\frac{1}{\\hat{j}}"));
+    // other fractions are refused at the exponent
+    let (code, _, err) = run(&["eval", "x^(1/3)", "--at", "x=1"], None);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("half an integer"), "{err}");
+}

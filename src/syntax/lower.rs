@@ -168,13 +168,24 @@ impl Ctx<'_> {
                 let txt: String = ex
                     .as_str()
                     .chars()
-                    .filter(|c| *c != '(' && *c != ')')
+                    .filter(|c| *c != '(' && *c != ')' && !c.is_whitespace())
                     .collect();
-                let n: i64 = txt
-                    .trim()
+                let (num, den) = txt.split_once('/').unwrap_or((&txt, "1"));
+                let n: i64 = num
                     .parse()
                     .map_err(|_| self.err(at, "this exponent is too large"))?;
-                self.power(lhs, n, at)
+                match den {
+                    "1" => self.power(lhs, n, at),
+                    // x^(p/2) = sqrt(x)^p
+                    "2" => {
+                        let root = self.sqrt(lhs, at)?;
+                        self.power(root, n, at)
+                    }
+                    _ => Err(self.err(
+                        at,
+                        "an exponent is an integer or half an integer, such as (-1/2) or (3/2)",
+                    )),
+                }
             })
             .map_infix(|lhs, op, rhs| {
                 let lhs = lhs?;
