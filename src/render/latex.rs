@@ -1,6 +1,6 @@
 //! LaTeX for expressions (amsmath): `pmatrix` for 3j symbols, `Bmatrix`
 //! for 6j and 9j, `\langle … | … \rangle` for Clebsch–Gordan coefficients,
-//! `\sum_{m_1 m_2}` for sums; names by `name` (subscripts from trailing
+//! `\sum_{m_1, m_2}` for sums; names by `name` (subscripts from trailing
 //! digits and from `_`, Greek names and `ell` as letters, other words of
 //! several letters whole).
 
@@ -349,7 +349,7 @@ fn product(
 pub fn term(t: &Term) -> String {
     t.write_with(product, |names, inside| {
         let names: Vec<String> = names.iter().map(name).collect();
-        format!("\\sum_{{{}}} {}", names.join(" "), inside)
+        format!("\\sum_{{{}}} {}", names.join(", "), inside)
     })
 }
 
