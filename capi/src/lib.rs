@@ -34,6 +34,16 @@ fn arguments_ok(js: &[c_int], ms: &[c_int], limit: i64) -> bool {
         && ms.iter().all(|&m| i64::from(m).abs() <= 2 * limit)
 }
 
+/// The nine doubled arguments of a 9j from the caller's array (`None`
+/// for a null pointer).
+fn nine_arguments(t: *const c_int) -> Option<[c_int; 9]> {
+    if t.is_null() {
+        return None;
+    }
+    // SAFETY: the caller passes nine ints (checked non-null)
+    Some(unsafe { std::ptr::read(t as *const [c_int; 9]) })
+}
+
 fn write_f64(out: *mut c_double, v: f64) -> c_int {
     if out.is_null() {
         return RECOUP_ERR_BUFFER;
@@ -138,11 +148,9 @@ pub extern "C" fn recoup_6j(
 #[no_mangle]
 pub extern "C" fn recoup_9j(t: *const c_int, out: *mut c_double) -> c_int {
     guarded(|| {
-        if t.is_null() {
+        let Some(t) = nine_arguments(t) else {
             return RECOUP_ERR_BUFFER;
-        }
-        // SAFETY: the caller passes nine ints
-        let t: [c_int; 9] = unsafe { std::ptr::read(t as *const [c_int; 9]) };
+        };
         if !arguments_ok(&t, &[], MAX_FLOAT_J / 10) {
             return RECOUP_ERR_ARGUMENT;
         }
@@ -243,11 +251,9 @@ pub extern "C" fn recoup_9j_exact(
     needed: *mut usize,
 ) -> c_int {
     guarded(|| {
-        if t.is_null() {
+        let Some(t) = nine_arguments(t) else {
             return RECOUP_ERR_BUFFER;
-        }
-        // SAFETY: the caller passes nine ints
-        let t: [c_int; 9] = unsafe { std::ptr::read(t as *const [c_int; 9]) };
+        };
         if !arguments_ok(&t, &[], MAX_EXACT_J / 100) {
             return RECOUP_ERR_ARGUMENT;
         }

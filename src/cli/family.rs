@@ -35,6 +35,15 @@ pub struct FamilyArgs {
     json: bool,
 }
 
+/// A numeric argument, doubled (`None` for a name or a non-half-integer).
+fn doubled_number(l: &Lin) -> Option<i64> {
+    if l.is_constant() {
+        crate::expr::term::doubled(l.constant_part())
+    } else {
+        None
+    }
+}
+
 /// A factor each member is multiplied by (the CG's phase and hat), by the
 /// member's doubled argument.
 type MemberFactor = Box<dyn Fn(i64) -> f64>;
@@ -42,13 +51,7 @@ type MemberFactor = Box<dyn Fn(i64) -> f64>;
 /// Where the running name sits and the family that recursion gives.
 fn by_recursion(f: &Factor, v: &Name) -> Option<(Family, MemberFactor)> {
     let slot = |l: &Lin| l.as_var() == Some(v);
-    let num = |l: &Lin| -> Option<i64> {
-        if l.is_constant() {
-            crate::expr::term::doubled(l.constant_part())
-        } else {
-            None
-        }
-    };
+    let num = doubled_number;
     match f {
         Factor::ThreeJ(a) => {
             let k = (0..3).find(|&i| slot(&a[i]))?;
@@ -118,13 +121,7 @@ fn by_recursion(f: &Factor, v: &Name) -> Option<(Family, MemberFactor)> {
 /// projection by the recursion in m (`three_j_over_m2`), as (2x, value)
 /// in increasing x.
 fn by_projection_recursion(f: &Factor, v: &Name) -> Option<Vec<(i64, f64)>> {
-    let num = |l: &Lin| -> Option<i64> {
-        if l.is_constant() {
-            crate::expr::term::doubled(l.constant_part())
-        } else {
-            None
-        }
-    };
+    let num = doubled_number;
     let x = Lin::var(v.clone());
     // as a 3j (j, m columns) with a constant factor
     let (cols, factor): ([(Lin, Lin); 3], f64) = match f {

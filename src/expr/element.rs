@@ -98,13 +98,7 @@ impl Operator {
                 Some(rank.clone())
             }
             Operator::Scalar(..) => Some(Lin::zero()),
-            Operator::Sum(terms) => {
-                let first = terms.first()?.1.rank()?;
-                terms
-                    .iter()
-                    .all(|(_, o)| o.rank().as_ref() == Some(&first))
-                    .then_some(first)
-            }
+            Operator::Sum(terms) => shared(terms, Operator::rank),
         }
     }
 
@@ -116,13 +110,7 @@ impl Operator {
                 component.clone()
             }
             Operator::Scalar(..) => Some(Lin::zero()),
-            Operator::Sum(terms) => {
-                let first = terms.first()?.1.component()?;
-                terms
-                    .iter()
-                    .all(|(_, o)| o.component().as_ref() == Some(&first))
-                    .then_some(first)
-            }
+            Operator::Sum(terms) => shared(terms, Operator::component),
         }
     }
 
@@ -401,6 +389,15 @@ impl MatrixElement {
         }
         cols.into_iter().find(|l| **l == k)
     }
+}
+
+/// The value every term of a sum agrees on, if they agree.
+fn shared(terms: &[(Q, Operator)], of: impl Fn(&Operator) -> Option<Lin>) -> Option<Lin> {
+    let first = of(&terms.first()?.1)?;
+    terms
+        .iter()
+        .all(|(_, o)| of(o).as_ref() == Some(&first))
+        .then_some(first)
 }
 
 fn collect_ranks<'a>(op: &'a Operator, out: &mut Vec<&'a Lin>) {

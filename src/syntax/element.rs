@@ -268,27 +268,37 @@ fn resolve_node(ctx: &Ctx, p: Pair<Rule>, bra: &CouplingTree) -> R<NodePath> {
 /// (a scalar product has component 0); a reduced one selects none; the
 /// factors of a product never do (their components are summed).
 fn check_components(ctx: &Ctx, op: &Operator, at: usize, full: bool) -> R<()> {
+    components_at(ctx, op, at, Some(full))
+}
+
+/// One walk for both places: `top` is `Some(full)` for the operator's
+/// own terms, `None` inside a product (whose components are summed).
+fn components_at(ctx: &Ctx, op: &Operator, at: usize, top: Option<bool>) -> R<()> {
+    let own = |component: &Option<Lin>| match top {
+        Some(full) => top_component(ctx, component, at, full),
+        None => inner_component(ctx, component, at),
+    };
     match op {
         Operator::Sum(terms) => {
             for (_, o) in terms {
-                check_components(ctx, o, at, full)?;
+                components_at(ctx, o, at, top)?;
             }
             Ok(())
         }
         Operator::Scalar(a, b) => {
-            check_inner(ctx, a, at)?;
-            check_inner(ctx, b, at)
+            components_at(ctx, a, at, None)?;
+            components_at(ctx, b, at, None)
         }
-        Operator::Elementary { component, .. } => top_component(ctx, component, at, full),
+        Operator::Elementary { component, .. } => own(component),
         Operator::Coupled {
             left,
             right,
             component,
             ..
         } => {
-            check_inner(ctx, left, at)?;
-            check_inner(ctx, right, at)?;
-            top_component(ctx, component, at, full)
+            components_at(ctx, left, at, None)?;
+            components_at(ctx, right, at, None)?;
+            own(component)
         }
     }
 }
@@ -304,32 +314,6 @@ fn top_component(ctx: &Ctx, component: &Option<Lin>, at: usize, full: bool) -> R
             "a reduced matrix element takes the operator without a component: write T[k]",
         )),
         _ => Ok(()),
-    }
-}
-
-fn check_inner(ctx: &Ctx, op: &Operator, at: usize) -> R<()> {
-    match op {
-        Operator::Sum(terms) => {
-            for (_, o) in terms {
-                check_inner(ctx, o, at)?;
-            }
-            Ok(())
-        }
-        Operator::Scalar(a, b) => {
-            check_inner(ctx, a, at)?;
-            check_inner(ctx, b, at)
-        }
-        Operator::Elementary { component, .. } => inner_component(ctx, component, at),
-        Operator::Coupled {
-            left,
-            right,
-            component,
-            ..
-        } => {
-            check_inner(ctx, left, at)?;
-            check_inner(ctx, right, at)?;
-            inner_component(ctx, component, at)
-        }
     }
 }
 

@@ -237,15 +237,7 @@ impl Frame<'_> {
                 component,
                 node,
             } => {
-                let q2 = match (q2, component) {
-                    (Some(q), _) => q,
-                    (None, Some(c)) => value2(c)?,
-                    (None, None) => {
-                        return Err(DirectError::Unsupported(
-                            "an operator without a component in a full matrix element".into(),
-                        ))
-                    }
-                };
+                let q2 = selected_component(q2, component)?;
                 let k2 = value2(rank)?;
                 if q2.abs() > k2 || (k2 - q2) % 2 != 0 {
                     return Ok(Vector::new());
@@ -272,15 +264,7 @@ impl Frame<'_> {
                 rank,
                 component,
             } => {
-                let q2 = match (q2, component) {
-                    (Some(q), _) => q,
-                    (None, Some(c)) => value2(c)?,
-                    (None, None) => {
-                        return Err(DirectError::Unsupported(
-                            "a coupled product without a component in a full matrix element".into(),
-                        ))
-                    }
-                };
+                let q2 = selected_component(q2, component)?;
                 let k2 = value2(rank)?;
                 let (k1, kk2) = (rank_of(left)?, rank_of(right)?);
                 let mut out = Vector::new();
@@ -323,10 +307,7 @@ impl Frame<'_> {
             Operator::Sum(terms) => {
                 let mut out = Vector::new();
                 for (c, o) in terms {
-                    let w = Surd::from_rational(BigRational::new(
-                        BigInt::from(*c.numer()),
-                        BigInt::from(*c.denom()),
-                    ));
+                    let w = Surd::from_rational(crate::expr::term::big_q(*c));
                     add_scaled(&mut out, &self.apply(o, q2, v)?, &w);
                 }
                 Ok(out)
@@ -493,6 +474,18 @@ pub fn reduced_value(
         }
         OperatorName::Opaque(n) => opaque::value(n, k2, bra, ket),
     })
+}
+
+/// The component an operator is applied with: the one its product
+/// selects, else the one written on it (doubled).
+fn selected_component(q2: Option<i64>, written: &Option<Lin>) -> Result<i64, DirectError> {
+    match (q2, written) {
+        (Some(q), _) => Ok(q),
+        (None, Some(c)) => value2(c),
+        (None, None) => Err(DirectError::Unsupported(
+            "an operator without a component in a full matrix element".into(),
+        )),
+    }
 }
 
 fn rank_of(op: &Operator) -> Result<i64, DirectError> {

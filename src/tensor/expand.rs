@@ -14,11 +14,12 @@
 
 use super::builtin::builtin;
 use crate::expr::element::{subtree, NodePath};
+use crate::expr::term::big_q;
 use crate::expr::{
-    CouplingTree, Expr, Factor, Lin, MatrixElement, Name, Operator, OperatorName, State, Term, Q,
+    CouplingTree, Expr, Factor, Lin, MatrixElement, Name, Operator, OperatorName, State, Term,
 };
 use crate::rules::source::Source;
-use num_bigint::{BigInt, BigUint};
+use num_bigint::BigUint;
 use num_rational::BigRational;
 use num_traits::One;
 use std::collections::BTreeSet;
@@ -99,10 +100,6 @@ impl Build {
         }
         .normalized()
     }
-}
-
-fn q_big(q: Q) -> BigRational {
-    BigRational::new(BigInt::from(*q.numer()), BigInt::from(*q.denom()))
 }
 
 /// One elementary operator's component inside a product.
@@ -194,7 +191,7 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
             let mut out = Vec::new();
             for (c, o) in terms {
                 for mut ch in chains(o, q, fresh)? {
-                    ch.weight.coef = &ch.weight.coef * &q_big(*c);
+                    ch.weight.coef = &ch.weight.coef * &big_q(*c);
                     out.push(ch);
                 }
             }
@@ -615,7 +612,7 @@ pub fn split_sum(e: &MatrixElement) -> Option<Expr> {
     let mut out = Expr::zero();
     for (c, o) in terms {
         let mut b = Build::one();
-        b.coef = q_big(*c);
+        b.coef = big_q(*c);
         b.factors.push(Factor::Element(Box::new(MatrixElement {
             bra: e.bra.clone(),
             op: o.clone(),

@@ -4,6 +4,7 @@
 //! evaluation and a reduced formula see the same value), zero off the
 //! triangle rule; or the value the user gives for that operator's name.
 
+use crate::expr::term::big_q;
 use crate::expr::Q;
 use crate::numeric::Surd;
 use num_bigint::BigInt;
@@ -49,10 +50,7 @@ fn hash(parts: &[&[u8]]) -> u64 {
 /// caller has checked the triangle rule of the first labels with `k`).
 pub fn value(name: &str, k2: i64, bra: &[i64], ket: &[i64]) -> Surd {
     if let Some(q) = GIVEN.with(|g| g.borrow().get(name).copied()) {
-        return Surd::from_rational(BigRational::new(
-            BigInt::from(*q.numer()),
-            BigInt::from(*q.denom()),
-        ));
+        return Surd::from_rational(big_q(q));
     }
     let bytes = |v: &[i64]| v.iter().flat_map(|x| x.to_le_bytes()).collect::<Vec<u8>>();
     let h = hash(&[name.as_bytes(), &k2.to_le_bytes(), &bytes(bra), &bytes(ket)]);
