@@ -30,5 +30,6 @@ pub mod render;
 pub mod rules;
 pub mod simplify;
 pub mod syntax;
+pub mod table;
 pub mod tensor;
 pub mod verify;

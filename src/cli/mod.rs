@@ -17,6 +17,7 @@ mod input;
 mod recouple;
 mod simplify;
 mod table;
+mod tabulate;
 
 use crate::algebra::declare::{self, Declarations, Parity};
 use crate::expr::Name;
@@ -150,9 +151,10 @@ pub struct Io<'a> {
 pub struct Cli {
     #[command(subcommand)]
     command: Command,
-    /// stop with exit code 3 after this many seconds of work
-    #[arg(long, global = true, value_name = "SECONDS", default_value_t = DEFAULT_TIME_LIMIT)]
-    time_limit: f64,
+    /// stop with exit code 3 after this many seconds of work (default 60;
+    /// tabulate has no limit unless this is given)
+    #[arg(long, global = true, value_name = "SECONDS")]
+    time_limit: Option<f64>,
     /// names that only take integer values (0, 1, 2, ...), comma separated
     #[arg(long, global = true, value_name = "NAMES", value_delimiter = ',')]
     integer: Vec<String>,
@@ -218,6 +220,15 @@ enum Command {
     /// `value<TAB>float` per member (`value<TAB>exact<TAB>float` with
     /// --exact).
     Family(family::FamilyArgs),
+    /// Write every symmetry-unique 3j symbol up to a largest j to a file.
+    ///
+    /// Symbols are unique under all 72 symmetries of the 3j symbol
+    /// (column permutations, projections reversed, Regge's). The indexed
+    /// layout (default) holds a header, a bitmap index and the values, for
+    /// lookup of any 3j or Clebsch-Gordan coefficient by the library and
+    /// the C interface; .npy and .csv files list one representative symbol
+    /// per entry (doubled j and m in .npy). Runs on every core.
+    Tabulate(tabulate::TabulateArgs),
     /// Simplify an expression; every step is verified by exact
     /// spot-evaluation.
     ///
@@ -313,6 +324,7 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
         Command::Eval(a) => eval::run(a, io, seconds).map(|_| EXIT_OK),
         Command::Table(a) => table::run(a, io).map(|_| EXIT_OK),
         Command::Family(a) => family::run(a, io).map(|_| EXIT_OK),
+        Command::Tabulate(a) => tabulate::run(a, io).map(|_| EXIT_OK),
         Command::Simplify(a) => simplify::run(a, io).map(|_| EXIT_OK),
         Command::Check(a) => check::run(a, io),
         Command::Graph(a) => graph::run(a, io).map(|_| EXIT_OK),
@@ -369,7 +381,7 @@ where
             };
         }
     };
-    let seconds = match time_limit_seconds(cli.time_limit) {
+    let seconds = match time_limit_seconds(cli.time_limit.unwrap_or(DEFAULT_TIME_LIMIT)) {
         Ok(s) => s,
         Err(f) => return report(f, io),
     };
@@ -382,6 +394,7 @@ where
         // for the whole command
         let whole = match &cli.command {
             Command::Eval(a) if a.is_batch() => None,
+            Command::Tabulate(_) if cli.time_limit.is_none() => None,
             _ => Some(seconds),
         };
         declare::scoped(&declared, || {

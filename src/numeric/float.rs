@@ -405,11 +405,12 @@ fn three_j_by_family(tj: [i64; 3], tm: [i64; 3]) -> Option<f64> {
     })?;
     let (b, c) = ((k + 1) % 3, (k + 2) % 3);
     let fam = super::family::three_j_over_j1(tj[b], tj[c], tm[b], tm[c]);
-    member(&fam, tj[k])
+    trusted_member(&fam, tj[k])
 }
 
-/// The member at doubled argument `t` when it is not small in its family.
-fn member(fam: &super::family::Family, t: i64) -> Option<f64> {
+/// The member at doubled argument `t` when it is not small in its family
+/// (below a tenth of the largest of its neighbours it is not trusted).
+pub fn trusted_member(fam: &super::family::Family, t: i64) -> Option<f64> {
     let i = usize::try_from((t - fam.first) / 2).ok()?;
     let v = *fam.values.get(i)?;
     let window =
@@ -437,7 +438,7 @@ fn six_j_by_family(t: [i64; 6]) -> Option<f64> {
     let p = (0..6).min_by_key(|&p| length(&moved(p)))?;
     let u = moved(p);
     let fam = super::family::six_j_over_j1(u[1], u[2], u[3], u[4], u[5]);
-    member(&fam, u[0])
+    trusted_member(&fam, u[0])
 }
 
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)` in f64; doubled arguments.

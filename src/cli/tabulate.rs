@@ -1,0 +1,215 @@
+//! `recoup tabulate 3j --max-j J --output FILE`: every 3j symbol unique
+//! under its 72 symmetries up to a largest j, written as an indexed table
+//! (`table::file`, read back by `table::ThreeJTable` and the C interface)
+//! or as records (`.npy`, CSV). Work runs on every core; a progress bar
+//! appears on standard error when it is a terminal and the job runs past
+//! a second. The time limit applies only when --time-limit is given.
+
+use super::eval::parse_q;
+use super::{outln, Failure, Io};
+use crate::table::build::{self, Domain, Entry};
+use crate::table::file;
+use crate::table::regge::Numbering;
+use crate::table::MAX_DOUBLED_J;
+use clap::{Args, ValueEnum};
+use std::io::{BufWriter, IsTerminal, Write};
+use std::time::Instant;
+
+/// Most positions (bits of the index) a table may have: 2 GiB of bitmap.
+const MAX_POSITIONS: u64 = 16_000_000_000;
+/// Most entries of an indexed or .npy table (20 GB of values).
+const MAX_ENTRIES: u64 = 2_500_000_000;
+/// Most entries of a CSV table.
+const MAX_CSV_ENTRIES: u64 = 1_000_000;
+
+/// The symbols a table can hold.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum Symbol {
+    /// 3j symbols (Clebsch-Gordan coefficients are looked up through them)
+    #[value(name = "3j")]
+    ThreeJ,
+}
+
+/// The file layouts.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum Layout {
+    /// header, bitmap index and values, for lookup by any argument list
+    Indexed,
+    /// NumPy .npy records (doubled j and m, value)
+    Npy,
+    /// CSV records (j and m as decimals, value); small tables only
+    Csv,
+}
+
+#[derive(Args, Debug)]
+pub struct TabulateArgs {
+    /// the symbol to tabulate
+    symbol: Symbol,
+    /// the largest j (an integer or half-integer, e.g. 100 or 199/2)
+    #[arg(long, value_name = "J")]
+    max_j: String,
+    /// only symbols whose three j are integers
+    #[arg(long)]
+    integer_j: bool,
+    /// the file to write
+    #[arg(long, short = 'o', value_name = "FILE")]
+    output: std::path::PathBuf,
+    /// the layout (default: from the file's extension, .npy, .csv, else indexed)
+    #[arg(long, value_enum)]
+    layout: Option<Layout>,
+}
+
+fn layout_of(a: &TabulateArgs) -> Layout {
+    a.layout
+        .unwrap_or_else(|| match a.output.extension().and_then(|e| e.to_str()) {
+            Some("npy") => Layout::Npy,
+            Some("csv") => Layout::Csv,
+            _ => Layout::Indexed,
+        })
+}
+
+fn max_doubled_j(text: &str) -> Result<i64, Failure> {
+    let q = parse_q(text.trim())
+        .filter(|q| *q.denom() <= 2 && *q.numer() >= 0)
+        .ok_or_else(|| {
+            Failure::input(format!(
+                "--max-j takes a nonnegative integer or half-integer such as 100 or 199/2; got {text:?}"
+            ))
+        })?;
+    let t = if *q.denom() == 2 {
+        *q.numer()
+    } else {
+        2 * *q.numer()
+    };
+    if t > MAX_DOUBLED_J {
+        return Err(Failure::limit(format!(
+            "--max-j {text} is beyond the largest table j ({})",
+            MAX_DOUBLED_J / 2
+        )));
+    }
+    Ok(t)
+}
+
+/// A progress bar that shows itself once the job has run a second, on a
+/// terminal only.
+struct Progress {
+    started: Instant,
+    bar: Option<indicatif::ProgressBar>,
+    terminal: bool,
+}
+
+impl Progress {
+    fn new() -> Progress {
+        Progress {
+            started: Instant::now(),
+            bar: None,
+            terminal: std::io::stderr().is_terminal(),
+        }
+    }
+
+    fn update(&mut self, done: u64, total: u64) {
+        if !self.terminal || self.started.elapsed().as_secs_f64() < 1.0 {
+            return;
+        }
+        let bar = self.bar.get_or_insert_with(|| {
+            let b = indicatif::ProgressBar::new(total);
+            if let Ok(style) = indicatif::ProgressStyle::with_template(
+                "{bar:40} {pos}/{len} entries, {elapsed} elapsed, about {eta} left",
+            ) {
+                b.set_style(style);
+            }
+            b
+        });
+        bar.set_position(done);
+    }
+
+    fn finish(&mut self) {
+        if let Some(b) = self.bar.take() {
+            b.finish_and_clear();
+        }
+    }
+}
+
+/// True once the time limit (if one is in force) has passed.
+fn past_deadline() -> bool {
+    crate::limits::seconds_left().is_some_and(|s| s <= 0.0)
+}
+
+pub fn run(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
+    let Symbol::ThreeJ = a.symbol;
+    let domain = Domain {
+        max_tj: max_doubled_j(&a.max_j)?,
+        integer_only: a.integer_j,
+    };
+    let layout = layout_of(&a);
+    let started = Instant::now();
+    let numbering = Numbering::new(domain.max_sum());
+    if numbering.len() > MAX_POSITIONS {
+        return Err(Failure::limit(format!(
+            "a 3j table up to j = {} numbers {} positions, beyond the limit of {MAX_POSITIONS}; ask for a smaller --max-j",
+            a.max_j, numbering.len()
+        )));
+    }
+    let bits = build::positions(&domain, &numbering, &past_deadline).ok_or_else(time_up)?;
+    let entries = bits.ones();
+    let limit = if layout == Layout::Csv {
+        MAX_CSV_ENTRIES
+    } else {
+        MAX_ENTRIES
+    };
+    if entries > limit {
+        let hint = if layout == Layout::Csv {
+            "; write .npy or the indexed layout instead"
+        } else {
+            ""
+        };
+        return Err(Failure::limit(format!(
+            "the table would hold {entries} entries, beyond the limit of {limit} for this layout{hint}"
+        )));
+    }
+    let created = std::fs::File::create(&a.output)
+        .map_err(|e| Failure::input(format!("cannot write {}: {e}", a.output.display())))?;
+    let mut w = BufWriter::with_capacity(1 << 20, created);
+    match layout {
+        Layout::Indexed => file::write_index(&mut w, &domain, &numbering, &bits)?,
+        Layout::Npy => w.write_all(&file::npy_header(entries))?,
+        Layout::Csv => w.write_all(file::CSV_HEADER.as_bytes())?,
+    }
+    let mut sink = |part: &[Entry]| match layout {
+        Layout::Indexed => file::write_values(&mut w, part),
+        Layout::Npy => file::write_npy_rows(&mut w, &domain, part),
+        Layout::Csv => file::write_csv_rows(&mut w, &domain, part),
+    };
+    let mut progress = Progress::new();
+    let finished = build::values(
+        &numbering,
+        &bits,
+        &mut sink,
+        &mut |done, total| progress.update(done, total),
+        &past_deadline,
+    )?;
+    progress.finish();
+    w.flush()?;
+    if !finished {
+        drop(w);
+        let _ = std::fs::remove_file(&a.output);
+        return Err(time_up());
+    }
+    outln!(
+        io,
+        "{entries} symmetry-unique 3j symbols{} with j <= {} written to {} ({:?} layout, {} positions) in {:.1} s",
+        if domain.integer_only { " of integer j" } else { "" },
+        a.max_j.trim(),
+        a.output.display(),
+        layout,
+        numbering.len(),
+        started.elapsed().as_secs_f64()
+    )?;
+    Ok(())
+}
+
+fn time_up() -> Failure {
+    Failure::limit(
+        "the table was not finished within the time limit; raise --time-limit SECONDS or leave it out (tabulate has no limit by default)",
+    )
+}

@@ -1,0 +1,231 @@
+//! The files a 3j table is written to and read from.
+//!
+//! Indexed binary layout (little-endian throughout; our own):
+//!
+//! | offset | size | content |
+//! |---|---|---|
+//! | 0  | 8 | magic `RECOUP3J` |
+//! | 8  | 4 | u32 layout version, 1 |
+//! | 12 | 4 | u32 flags: bit 0 set when only integer j are covered |
+//! | 16 | 8 | i64 largest doubled j of the domain |
+//! | 24 | 8 | i64 largest line sum `J = j1+j2+j3` numbered |
+//! | 32 | 8 | u64 positions `P` of the numbering |
+//! | 40 | 8 | u64 entries `N` |
+//! | 48 | 16 | zero |
+//! | 64 | 8·⌈P/64⌉ | bitmap words, bit `p % 64` of word `p / 64` set when position `p` holds an entry |
+//! | … | 8·N | f64 values in position order |
+//!
+//! Positions are those of `regge::Numbering`; the value at a set position
+//! is the 3j of its key's square read with row 0 as the triangle row, and
+//! entry `k` is the `k`-th set position.
+//!
+//! Record files list one symbol per entry, a representative within the
+//! domain with its own value: NumPy `.npy` (format 1.0, a structured array
+//! of `two_j1, two_j2, two_j3, two_m1, two_m2, two_m3` as `<i4` and
+//! `value` as `<f8`) and CSV (`j1,j2,j3,m1,m2,m3,value`, j and m as
+//! decimals).
+
+use super::build::{Domain, Entry};
+use super::rank::RankedBits;
+use super::regge::Numbering;
+use std::io::{self, Write};
+
+/// The magic bytes of the indexed layout.
+pub const MAGIC: &[u8; 8] = b"RECOUP3J";
+/// The layout version written.
+pub const VERSION: u32 = 1;
+/// Bytes before the bitmap.
+pub const HEADER_BYTES: usize = 64;
+
+/// The header of the indexed layout.
+pub fn header(domain: &Domain, numbering: &Numbering, entries: u64) -> [u8; HEADER_BYTES] {
+    let mut h = [0u8; HEADER_BYTES];
+    h[0..8].copy_from_slice(MAGIC);
+    h[8..12].copy_from_slice(&VERSION.to_le_bytes());
+    h[12..16].copy_from_slice(&(domain.integer_only as u32).to_le_bytes());
+    h[16..24].copy_from_slice(&domain.max_tj.to_le_bytes());
+    h[24..32].copy_from_slice(&numbering.max_sum().to_le_bytes());
+    h[32..40].copy_from_slice(&numbering.len().to_le_bytes());
+    h[40..48].copy_from_slice(&entries.to_le_bytes());
+    h
+}
+
+/// Writes the header and the bitmap of the indexed layout.
+pub fn write_index(
+    w: &mut dyn Write,
+    domain: &Domain,
+    numbering: &Numbering,
+    bits: &RankedBits,
+) -> io::Result<()> {
+    w.write_all(&header(domain, numbering, bits.ones()))?;
+    let mut buf = Vec::with_capacity(1 << 16);
+    for chunk in bits.words().chunks(8192) {
+        buf.clear();
+        for x in chunk {
+            buf.extend_from_slice(&x.to_le_bytes());
+        }
+        w.write_all(&buf)?;
+    }
+    Ok(())
+}
+
+/// Writes the values of the indexed layout.
+pub fn write_values(w: &mut dyn Write, entries: &[Entry]) -> io::Result<()> {
+    let mut buf = Vec::with_capacity(entries.len() * 8);
+    for e in entries {
+        buf.extend_from_slice(&e.value.to_le_bytes());
+    }
+    w.write_all(&buf)
+}
+
+/// The NumPy header of a record file with `n` entries.
+pub fn npy_header(n: u64) -> Vec<u8> {
+    let dict = format!(
+        "{{'descr': [('two_j1', '<i4'), ('two_j2', '<i4'), ('two_j3', '<i4'), \
+         ('two_m1', '<i4'), ('two_m2', '<i4'), ('two_m3', '<i4'), ('value', '<f8')], \
+         'fortran_order': False, 'shape': ({n},), }}"
+    );
+    // magic (6) + version (2) + length (2) + dict + padding + '\n', a multiple of 64
+    let unpadded = 10 + dict.len() + 1;
+    let total = unpadded.div_ceil(64) * 64;
+    let mut h = Vec::with_capacity(total);
+    h.extend_from_slice(b"\x93NUMPY\x01\x00");
+    h.extend_from_slice(&((total - 10) as u16).to_le_bytes());
+    h.extend_from_slice(dict.as_bytes());
+    h.resize(total - 1, b' ');
+    h.push(b'\n');
+    h
+}
+
+/// One record: the representative of an entry's orbit and its value.
+fn record(domain: &Domain, e: &Entry) -> io::Result<([i64; 3], [i64; 3], f64)> {
+    let (tj, tm, sign) = domain
+        .representative(&e.key)
+        .ok_or_else(|| io::Error::other("an entry without a representative in its domain"))?;
+    Ok((tj, tm, e.value * sign as f64))
+}
+
+/// Writes the records of some entries as `.npy` rows.
+pub fn write_npy_rows(w: &mut dyn Write, domain: &Domain, entries: &[Entry]) -> io::Result<()> {
+    let mut buf = Vec::with_capacity(entries.len() * 32);
+    for e in entries {
+        let (tj, tm, v) = record(domain, e)?;
+        for x in tj.iter().chain(tm.iter()) {
+            buf.extend_from_slice(&(*x as i32).to_le_bytes());
+        }
+        buf.extend_from_slice(&v.to_le_bytes());
+    }
+    w.write_all(&buf)
+}
+
+/// The CSV header line.
+pub const CSV_HEADER: &str = "j1,j2,j3,m1,m2,m3,value\n";
+
+fn half(t: i64) -> String {
+    if t % 2 == 0 {
+        format!("{}", t / 2)
+    } else {
+        format!(
+            "{}.5",
+            if t < 0 {
+                format!("-{}", (-t) / 2)
+            } else {
+                format!("{}", t / 2)
+            }
+        )
+    }
+}
+
+/// Writes the records of some entries as CSV lines.
+pub fn write_csv_rows(w: &mut dyn Write, domain: &Domain, entries: &[Entry]) -> io::Result<()> {
+    let mut s = String::new();
+    for e in entries {
+        let (tj, tm, v) = record(domain, e)?;
+        let fields: Vec<String> = tj.iter().chain(tm.iter()).map(|&t| half(t)).collect();
+        s.push_str(&fields.join(","));
+        s.push_str(&format!(",{v:.17e}\n"));
+    }
+    w.write_all(s.as_bytes())
+}
+
+/// A table file could not be read.
+#[derive(Debug, thiserror::Error)]
+pub enum TableFileError {
+    /// reading failed
+    #[error("{0}")]
+    Io(#[from] io::Error),
+    /// the bytes are not a table of this layout
+    #[error("not a recoup 3j table: {0}")]
+    Format(String),
+}
+
+fn u64_at(b: &[u8], at: usize) -> u64 {
+    u64::from_le_bytes(b[at..at + 8].try_into().unwrap_or([0; 8]))
+}
+
+/// The parts of an indexed table read from its bytes.
+pub struct Parts {
+    /// the domain
+    pub domain: Domain,
+    /// the numbering
+    pub numbering: Numbering,
+    /// the bitmap
+    pub bits: RankedBits,
+    /// the values
+    pub values: Vec<f64>,
+}
+
+/// Reads an indexed table from its bytes, checking every size.
+pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
+    let bad = |m: &str| TableFileError::Format(m.to_string());
+    if bytes.len() < HEADER_BYTES || &bytes[0..8] != MAGIC {
+        return Err(bad("the magic bytes RECOUP3J are missing"));
+    }
+    let version = u32::from_le_bytes(bytes[8..12].try_into().unwrap_or([0; 4]));
+    if version != VERSION {
+        return Err(bad(&format!(
+            "layout version {version}, this reader knows {VERSION}"
+        )));
+    }
+    let flags = u32::from_le_bytes(bytes[12..16].try_into().unwrap_or([0; 4]));
+    let max_tj = u64_at(bytes, 16) as i64;
+    let max_sum = u64_at(bytes, 24) as i64;
+    let positions = u64_at(bytes, 32);
+    let entries = u64_at(bytes, 40);
+    let domain = Domain {
+        max_tj,
+        integer_only: flags & 1 == 1,
+    };
+    if !(0..=super::MAX_DOUBLED_J).contains(&max_tj) || max_sum != domain.max_sum() {
+        return Err(bad("the header's bounds do not agree"));
+    }
+    let numbering = Numbering::new(max_sum);
+    if numbering.len() != positions {
+        return Err(bad("the header's position count does not match its bounds"));
+    }
+    let words = positions.div_ceil(64) as usize;
+    let expected = HEADER_BYTES as u64 + 8 * words as u64 + 8 * entries;
+    if bytes.len() as u64 != expected {
+        return Err(bad(&format!(
+            "{} bytes where the header implies {expected}",
+            bytes.len()
+        )));
+    }
+    let word_bytes = &bytes[HEADER_BYTES..HEADER_BYTES + 8 * words];
+    let bits = RankedBits::from_words(word_bytes.chunks_exact(8).map(|c| u64_at(c, 0)).collect());
+    if bits.ones() != entries {
+        return Err(bad(
+            "the bitmap does not hold as many entries as the header says",
+        ));
+    }
+    let values = bytes[HEADER_BYTES + 8 * words..]
+        .chunks_exact(8)
+        .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
+        .collect();
+    Ok(Parts {
+        domain,
+        numbering,
+        bits,
+        values,
+    })
+}
