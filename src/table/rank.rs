@@ -1,33 +1,49 @@
 //! A bitmap over a numbering with constant-time rank: which positions hold
 //! an entry, and how many entries come before a position. Words are u64,
-//! bit `i % 64` of word `i / 64`; a cumulative count is kept for every
-//! block of 8 words (512 bits), so a rank reads one count and at most one
-//! cache line of words (common practice, no source).
+//! bit `i % 64` of word `i / 64`. For rank the words are also kept in
+//! cache-line blocks of 7 words behind the count of entries before the
+//! block, so a rank reads one cache line (common practice, no source).
 
-/// Words per counted block.
-pub const BLOCK_WORDS: usize = 8;
+/// Words per counted block: a block is one 64-byte cache line, its count
+/// of earlier entries and 7 words of bits.
+pub const BLOCK_WORDS: usize = 7;
+const BLOCK_BITS: u64 = 64 * BLOCK_WORDS as u64;
+
+/// One cache line of the index.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq)]
+#[repr(C, align(64))]
+struct Block {
+    before: u64,
+    words: [u64; BLOCK_WORDS],
+}
 
 /// The bitmap and its block counts.
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct RankedBits {
     words: Vec<u64>,
-    /// entries before each block, and the total at the end
-    counts: Vec<u64>,
+    blocks: Vec<Block>,
+    ones: u64,
 }
 
 impl RankedBits {
     /// Bits from their words (the tail past the last position must be 0).
     pub fn from_words(words: Vec<u64>) -> RankedBits {
-        let mut counts = Vec::with_capacity(words.len() / BLOCK_WORDS + 2);
+        let mut blocks = Vec::with_capacity(words.len().div_ceil(BLOCK_WORDS));
         let mut total = 0u64;
-        for (i, w) in words.iter().enumerate() {
-            if i % BLOCK_WORDS == 0 {
-                counts.push(total);
-            }
-            total += w.count_ones() as u64;
+        for chunk in words.chunks(BLOCK_WORDS) {
+            let mut b = Block {
+                before: total,
+                ..Block::default()
+            };
+            b.words[..chunk.len()].copy_from_slice(chunk);
+            total += chunk.iter().map(|w| w.count_ones() as u64).sum::<u64>();
+            blocks.push(b);
         }
-        counts.push(total);
-        RankedBits { words, counts }
+        RankedBits {
+            words,
+            blocks,
+            ones: total,
+        }
     }
 
     /// The words.
@@ -37,7 +53,7 @@ impl RankedBits {
 
     /// How many bits are set.
     pub fn ones(&self) -> u64 {
-        *self.counts.last().unwrap_or(&0)
+        self.ones
     }
 
     /// Whether position `i` is set.
@@ -46,17 +62,17 @@ impl RankedBits {
         w < self.words.len() && self.words[w] >> (i % 64) & 1 == 1
     }
 
-    /// The entry number of position `i` when it is set.
+    /// The entry number of position `i` when it is set (one cache line).
     pub fn rank(&self, i: u64) -> Option<u64> {
-        let w = (i / 64) as usize;
-        let word = *self.words.get(w)?;
-        let bit = i % 64;
+        let block = self.blocks.get((i / BLOCK_BITS) as usize)?;
+        let within = i % BLOCK_BITS;
+        let (w, bit) = ((within / 64) as usize, within % 64);
+        let word = block.words[w];
         if word >> bit & 1 == 0 {
             return None;
         }
-        let block = w / BLOCK_WORDS;
-        let mut r = self.counts[block];
-        for x in &self.words[block * BLOCK_WORDS..w] {
+        let mut r = block.before;
+        for x in &block.words[..w] {
             r += x.count_ones() as u64;
         }
         r += (word & ((1u64 << bit) - 1)).count_ones() as u64;

@@ -127,6 +127,69 @@ fn orders(x: usize, y: usize, vx: i64, vy: i64) -> ([(usize, usize); 2], usize) 
 /// symbol to the key's (`Zero` when two arrangements of the orbit's
 /// canonical form carry opposite signs, so the symbol vanishes).
 pub fn canonical(sq: &Square) -> Canonical {
+    fast_canonical(sq).unwrap_or_else(|| canonical_by_search(sq))
+}
+
+/// The canonical key when the square has one smallest entry and no ties
+/// on the two lines through it (the common case): one arrangement, read
+/// off directly.
+fn fast_canonical(sq: &Square) -> Option<Canonical> {
+    let sum: i64 = sq[0].iter().sum();
+    let (mut i0, mut k0, mut s, mut count) = (0, 0, i64::MAX, 0);
+    for i in 0..3 {
+        for k in 0..3 {
+            let x = sq[i][k];
+            if x < s {
+                (i0, k0, s, count) = (i, k, x, 1);
+            } else if x == s {
+                count += 1;
+            }
+        }
+    }
+    if count != 1 {
+        return None;
+    }
+    let (ka, kb) = others(k0);
+    let (ia, ib) = others(i0);
+    // the row arm's smaller entry first, then the column arm's
+    let (rc1, rc2) = if sq[i0][ka] < sq[i0][kb] {
+        (ka, kb)
+    } else {
+        (kb, ka)
+    };
+    let (cr1, cr2) = if sq[ia][k0] < sq[ib][k0] {
+        (ia, ib)
+    } else {
+        (ib, ia)
+    };
+    let (rmin, rmax) = (sq[i0][rc1], sq[i0][rc2]);
+    let (cmin, cmax) = (sq[cr1][k0], sq[cr2][k0]);
+    if rmin == rmax || cmin == cmax || rmin == cmin {
+        return None;
+    }
+    // the arm with the smaller minimum is row 0 of the canonical form
+    let (a, b, c, e) = if rmin < cmin {
+        (rmin, rmax, cmin, sq[cr1][rc1])
+    } else {
+        (cmin, cmax, rmin, sq[cr1][rc1])
+    };
+    let negative = sum % 2 != 0 && (odd([i0, cr1, cr2]) != odd([k0, rc1, rc2]));
+    let key = Key {
+        sum,
+        s,
+        a,
+        c,
+        e: e - (s + b - c),
+    };
+    Some(Canonical::At {
+        key,
+        sign: if negative { -1 } else { 1 },
+    })
+}
+
+/// The canonical key by trying every arrangement that puts a smallest
+/// entry at the top left (ties included).
+fn canonical_by_search(sq: &Square) -> Canonical {
     let sum: i64 = sq[0].iter().sum();
     let mut s = i64::MAX;
     for r in sq {
@@ -134,11 +197,28 @@ pub fn canonical(sq: &Square) -> Canonical {
             s = s.min(x);
         }
     }
+    // the least (a, c) any placement of a smallest entry reaches: the
+    // smaller of the two arms' minima, then the other
+    let arms = |i0: usize, k0: usize| {
+        let (ka, kb) = others(k0);
+        let (ia, ib) = others(i0);
+        let r = sq[i0][ka].min(sq[i0][kb]);
+        let c = sq[ia][k0].min(sq[ib][k0]);
+        (r.min(c), r.max(c))
+    };
+    let mut least = (i64::MAX, i64::MAX);
+    for i0 in 0..3 {
+        for k0 in 0..3 {
+            if sq[i0][k0] == s {
+                least = least.min(arms(i0, k0));
+            }
+        }
+    }
     let mut best: Option<(Key, bool)> = None;
     let mut clash = false;
     for i0 in 0..3 {
         for k0 in 0..3 {
-            if sq[i0][k0] != s {
+            if sq[i0][k0] != s || arms(i0, k0) != least {
                 continue;
             }
             for transposed in [false, true] {
