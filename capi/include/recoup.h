@@ -31,6 +31,23 @@
 #define RECOUP_ERR_INTERNAL 3
 
 /**
+ * A table file that cannot be read or is not a recoup 3j table.
+ */
+#define RECOUP_ERR_FILE 4
+
+/**
+ * A symbol the table does not cover (beyond its largest j, or a
+ * half-integer j in a table of integer j).
+ */
+#define RECOUP_ERR_OUTSIDE 5
+
+/**
+ * A 3j table read from a file written by `recoup tabulate 3j` (indexed
+ * layout), opaque to C.
+ */
+typedef struct RecoupTable RecoupTable;
+
+/**
  * The 3j symbol `(j1 j2 j3; m1 m2 m3)` in double precision.
  */
 int recoup_3j(int tj1, int tj2, int tj3, int tm1, int tm2, int tm3, double *out);
@@ -127,5 +144,55 @@ int recoup_6j_family(int tj2,
                      double *values,
                      uintptr_t len,
                      uintptr_t *count);
+
+/**
+ * Reads a table file (`path` NUL-terminated) into memory; `*table` gets
+ * the handle, to be released with `recoup_table_close`.
+ *
+ * # Safety
+ * `path` must be a NUL-terminated string and `table` a pointer to one
+ * handle (or null, which is `RECOUP_ERR_BUFFER`).
+ */
+int recoup_table_open(const char *path, struct RecoupTable **table);
+
+/**
+ * Releases a table (null is allowed and does nothing).
+ *
+ * # Safety
+ * `table` must come from `recoup_table_open` and not be used afterwards.
+ */
+void recoup_table_close(struct RecoupTable *table);
+
+/**
+ * `(j1 j2 j3; m1 m2 m3)` looked up in a table: `RECOUP_OK` (0 for a
+ * symbol zero by its selection rules), `RECOUP_ERR_OUTSIDE` for a symbol
+ * the table does not cover.
+ *
+ * # Safety
+ * `table` must be a live handle from `recoup_table_open` or null.
+ */
+int recoup_table_3j(const struct RecoupTable *table,
+                    int tj1,
+                    int tj2,
+                    int tj3,
+                    int tm1,
+                    int tm2,
+                    int tm3,
+                    double *out);
+
+/**
+ * `<j1 m1; j2 m2 | J M>` looked up in a 3j table, like `recoup_table_3j`.
+ *
+ * # Safety
+ * `table` must be a live handle from `recoup_table_open` or null.
+ */
+int recoup_table_cg(const struct RecoupTable *table,
+                    int tj1,
+                    int tm1,
+                    int tj2,
+                    int tm2,
+                    int tjj,
+                    int tmm,
+                    double *out);
 
 #endif  /* RECOUP_H */

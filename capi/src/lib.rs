@@ -23,6 +23,11 @@ pub const RECOUP_ERR_ARGUMENT: c_int = 1;
 pub const RECOUP_ERR_BUFFER: c_int = 2;
 /// A defect in recoup (please report it with the arguments).
 pub const RECOUP_ERR_INTERNAL: c_int = 3;
+/// A table file that cannot be read or is not a recoup 3j table.
+pub const RECOUP_ERR_FILE: c_int = 4;
+/// A symbol the table does not cover (beyond its largest j, or a
+/// half-integer j in a table of integer j).
+pub const RECOUP_ERR_OUTSIDE: c_int = 5;
 
 fn guarded(f: impl FnOnce() -> c_int) -> c_int {
     catch_unwind(AssertUnwindSafe(f)).unwrap_or(RECOUP_ERR_INTERNAL)
@@ -336,6 +341,118 @@ pub extern "C" fn recoup_6j_family(
         }
         let f = six_j_over_j1(tj2.into(), tj3.into(), tl1.into(), tl2.into(), tl3.into());
         write_family(&f, first, values, len, count)
+    })
+}
+
+/// A 3j table read from a file written by `recoup tabulate 3j` (indexed
+/// layout), opaque to C.
+pub struct RecoupTable(recoup::table::ThreeJTable);
+
+/// Reads a table file (`path` NUL-terminated) into memory; `*table` gets
+/// the handle, to be released with `recoup_table_close`.
+///
+/// # Safety
+/// `path` must be a NUL-terminated string and `table` a pointer to one
+/// handle (or null, which is `RECOUP_ERR_BUFFER`).
+#[no_mangle]
+pub unsafe extern "C" fn recoup_table_open(
+    path: *const c_char,
+    table: *mut *mut RecoupTable,
+) -> c_int {
+    guarded(|| {
+        if path.is_null() || table.is_null() {
+            return RECOUP_ERR_BUFFER;
+        }
+        // SAFETY: the caller passes a NUL-terminated string (checked non-null)
+        let text = unsafe { std::ffi::CStr::from_ptr(path) };
+        let Ok(text) = text.to_str() else {
+            return RECOUP_ERR_FILE;
+        };
+        match recoup::table::ThreeJTable::read(std::path::Path::new(text)) {
+            Ok(t) => {
+                // SAFETY: checked non-null above
+                unsafe { *table = Box::into_raw(Box::new(RecoupTable(t))) };
+                RECOUP_OK
+            }
+            Err(_) => RECOUP_ERR_FILE,
+        }
+    })
+}
+
+/// Releases a table (null is allowed and does nothing).
+///
+/// # Safety
+/// `table` must come from `recoup_table_open` and not be used afterwards.
+#[no_mangle]
+pub unsafe extern "C" fn recoup_table_close(table: *mut RecoupTable) {
+    if !table.is_null() {
+        // SAFETY: the handle came from Box::into_raw in recoup_table_open
+        drop(unsafe { Box::from_raw(table) });
+    }
+}
+
+/// `(j1 j2 j3; m1 m2 m3)` looked up in a table: `RECOUP_OK` (0 for a
+/// symbol zero by its selection rules), `RECOUP_ERR_OUTSIDE` for a symbol
+/// the table does not cover.
+///
+/// # Safety
+/// `table` must be a live handle from `recoup_table_open` or null.
+#[no_mangle]
+pub unsafe extern "C" fn recoup_table_3j(
+    table: *const RecoupTable,
+    tj1: c_int,
+    tj2: c_int,
+    tj3: c_int,
+    tm1: c_int,
+    tm2: c_int,
+    tm3: c_int,
+    out: *mut c_double,
+) -> c_int {
+    guarded(|| {
+        // SAFETY: a live handle or null (checked)
+        let Some(t) = (unsafe { table.as_ref() }) else {
+            return RECOUP_ERR_BUFFER;
+        };
+        if tj1 < 0 || tj2 < 0 || tj3 < 0 {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        let tj = [tj1, tj2, tj3].map(i64::from);
+        let tm = [tm1, tm2, tm3].map(i64::from);
+        match t.0.three_j(tj, tm) {
+            Some(v) => write_f64(out, v),
+            None => RECOUP_ERR_OUTSIDE,
+        }
+    })
+}
+
+/// `<j1 m1; j2 m2 | J M>` looked up in a 3j table, like `recoup_table_3j`.
+///
+/// # Safety
+/// `table` must be a live handle from `recoup_table_open` or null.
+#[no_mangle]
+pub unsafe extern "C" fn recoup_table_cg(
+    table: *const RecoupTable,
+    tj1: c_int,
+    tm1: c_int,
+    tj2: c_int,
+    tm2: c_int,
+    tjj: c_int,
+    tmm: c_int,
+    out: *mut c_double,
+) -> c_int {
+    guarded(|| {
+        // SAFETY: a live handle or null (checked)
+        let Some(t) = (unsafe { table.as_ref() }) else {
+            return RECOUP_ERR_BUFFER;
+        };
+        if tj1 < 0 || tj2 < 0 || tjj < 0 {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        let a = [tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from);
+        match t.0.clebsch_gordan(a[0], a[1], a[2], a[3], a[4], a[5]) {
+            Some(v) => write_f64(out, v),
+            None => RECOUP_ERR_OUTSIDE,
+        }
     })
 }
 

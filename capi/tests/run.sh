@@ -11,9 +11,10 @@ cargo build --release --bin recoup
 lib=target/release/librecoup_capi.a
 cc -O2 -Wall -Werror -Icapi/include capi/tests/c/check.c "$lib" -lm -lpthread -ldl -o target/capi-check-c
 gfortran -O2 -Wall capi/tests/fortran/check.f90 "$lib" -lm -lpthread -ldl -o target/capi-check-f
+target/release/recoup tabulate 3j --max-j 6 -o target/capi-table.r3j > /dev/null
 checked=0
 for prog in target/capi-check-c target/capi-check-f; do
-  "$prog" > target/capi-out.txt
+  "$prog" target/capi-table.r3j > target/capi-out.txt
   while IFS=$'\t' read -r kind expr value; do
     case "$kind" in
       float)

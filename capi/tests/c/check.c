@@ -27,7 +27,7 @@ static void six_j(int a, int b, int c, int d, int e, int f) {
     printf("float\t{%d/2, %d/2, %d/2; %d/2, %d/2, %d/2}\t%.17g\n", a, b, c, d, e, f, v);
 }
 
-int main(void) {
+int main(int argc, char **argv) {
     double v;
     three_j(2, 2, 0, 0, 0, 0);
     three_j(3, 2, 1, 1, -2, 1);
@@ -96,6 +96,31 @@ int main(void) {
     if (v != 0.0) {
         fprintf(stderr, "a broken triangle gave %g\n", v);
         failures++;
+    }
+
+    /* a table written by `recoup tabulate 3j` (path in argv[1]) */
+    if (argc > 1) {
+        struct RecoupTable *table = NULL;
+        expect(recoup_table_open(argv[1], &table), RECOUP_OK, "recoup_table_open");
+        int rows[][6] = {{2, 2, 0, 2, -2, 0}, {6, 4, 4, 2, -4, 2}, {12, 10, 8, -6, 4, 2},
+                         {11, 9, 4, 5, -7, 2}, {12, 12, 12, 0, 0, 0}};
+        for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
+            int *r = rows[i];
+            expect(recoup_table_3j(table, r[0], r[1], r[2], r[3], r[4], r[5], &v), RECOUP_OK,
+                   "recoup_table_3j");
+            printf("float\t(%d/2, %d/2, %d/2; %d/2, %d/2, %d/2)\t%.17g\n", r[0], r[1], r[2],
+                   r[3], r[4], r[5], v);
+        }
+        expect(recoup_table_cg(table, 4, 2, 3, -1, 5, 1, &v), RECOUP_OK, "recoup_table_cg");
+        printf("float\t<2, 1; 3/2, -1/2 | 5/2, 1/2>\t%.17g\n", v);
+        expect(recoup_table_3j(table, 40, 40, 40, 0, 0, 0, &v), RECOUP_ERR_OUTSIDE,
+               "beyond the table");
+        expect(recoup_table_3j(NULL, 2, 2, 0, 0, 0, 0, &v), RECOUP_ERR_BUFFER, "null table");
+        recoup_table_close(table);
+        struct RecoupTable *none = NULL;
+        expect(recoup_table_open("/nonexistent/table.r3j", &none), RECOUP_ERR_FILE,
+               "missing table file");
+        expect(recoup_table_open(argv[0], &none), RECOUP_ERR_FILE, "not a table file");
     }
     return failures == 0 ? 0 : 1;
 }

@@ -24,8 +24,26 @@ program check
       integer(c_size_t), value :: length
       integer(c_size_t), intent(out) :: count
     end function
+    integer(c_int) function recoup_table_open(path, table) bind(c, name="recoup_table_open")
+      import :: c_char, c_int, c_ptr
+      character(kind=c_char), dimension(*), intent(in) :: path
+      type(c_ptr), intent(out) :: table
+    end function
+    integer(c_int) function recoup_table_3j(table, a, b, c, x, y, z, out) &
+        bind(c, name="recoup_table_3j")
+      import :: c_int, c_double, c_ptr
+      type(c_ptr), value :: table
+      integer(c_int), value :: a, b, c, x, y, z
+      real(c_double), intent(out) :: out
+    end function
+    subroutine recoup_table_close(table) bind(c, name="recoup_table_close")
+      import :: c_ptr
+      type(c_ptr), value :: table
+    end subroutine
   end interface
   character(len=1), parameter :: tab = char(9)
+  type(c_ptr) :: table
+  character(len=256) :: path
   real(c_double) :: v
   real(c_double) :: values(64)
   integer(c_int) :: code, first
@@ -48,6 +66,18 @@ program check
     write (*, '(a,i0,a)') 'float' // tab // '(', first + 2 * int(i - 1), &
         '/2, 10, 8; -1, 2, -1)' // tab // trim(num(values(i)))
   end do
+  ! a table written by `recoup tabulate 3j`, path as the first argument
+  if (command_argument_count() > 0) then
+    call get_command_argument(1, path)
+    code = recoup_table_open(trim(path) // c_null_char, table)
+    if (code /= 0) failures = failures + 1
+    code = recoup_table_3j(table, 12_c_int, 10_c_int, 8_c_int, -6_c_int, 4_c_int, 2_c_int, v)
+    if (code /= 0) failures = failures + 1
+    write (*, '(a)') 'float' // tab // '(6, 5, 4; -3, 2, 1)' // tab // trim(num(v))
+    code = recoup_table_3j(table, 40_c_int, 40_c_int, 40_c_int, 0_c_int, 0_c_int, 0_c_int, v)
+    if (code /= 5) failures = failures + 1
+    call recoup_table_close(table)
+  end if
   ! a negative angular momentum is an error code
   code = recoup_3j(-2, 2, 0, 0, 0, 0, v)
   if (code /= 1) failures = failures + 1
