@@ -1,11 +1,12 @@
 //! Cost per value of whole families by recursion (`numeric::family`)
 //! against a loop of single float values over the same members (recoup's
-//! single-sum routine; GSL is not linked here), at j ~ 100, 1000 and
-//! 10^4; then single float values (`three_j_f64`, `six_j_f64`, which take
-//! a member of the shortest family at j >= 200 when it is not small there)
-//! against the single sum on the same random arguments. Run:
-//! `cargo bench --bench families`. A benchmark: it asserts nothing about
-//! time.
+//! single-sum routine, and GSL 2.7's singles with `--features gsl-bench`,
+//! with how many of them are wrong beyond 1e-10 against the recursion),
+//! at j ~ 100, 1000 and 10^4; then single float values (`three_j_f64`,
+//! `six_j_f64`, which take a member of the shortest family at j >= 200
+//! when it is not small there) against the single sum on the same random
+//! arguments. Run: `cargo bench --bench families [--features gsl-bench]`.
+//! A benchmark: it asserts nothing about time.
 
 use recoup::numeric::family::{six_j_over_j1, three_j_over_j1};
 use recoup::numeric::float::{
@@ -14,14 +15,56 @@ use recoup::numeric::float::{
 use recoup::verify::rng::Rng;
 use std::time::Instant;
 
+#[cfg(feature = "gsl-bench")]
+#[path = "support/gsl.rs"]
+mod gsl;
+
+/// GSL's single values over a family's members (`None` without the
+/// feature): ns per value and how many differ from the recursion by more
+/// than 1e-10 relative (to the family's largest member where the member
+/// is tiny).
+#[allow(unused_variables)]
+fn gsl_loop(members: &[(i64, f64)], value: impl Fn(i64) -> f64) -> Option<(f64, usize)> {
+    #[cfg(feature = "gsl-bench")]
+    {
+        let t = Instant::now();
+        let mut sink = 0.0;
+        for &(x, _) in members {
+            sink += value(x);
+        }
+        std::hint::black_box(sink);
+        let ns = t.elapsed().as_secs_f64() / members.len() as f64 * 1e9;
+        let big = members.iter().fold(0.0f64, |a, m| a.max(m.1.abs()));
+        let wrong = members
+            .iter()
+            .filter(|&&(x, v)| !((value(x) - v).abs() <= 1e-10 * v.abs().max(1e-3 * big)))
+            .count();
+        return Some((ns, wrong));
+    }
+    #[allow(unreachable_code)]
+    None
+}
+
+fn gsl_cell(g: Option<(f64, usize)>, n: usize) -> String {
+    match g {
+        None => "- | -".into(),
+        Some((ns, 0)) => format!("{ns:.0} | 0 of {n}"),
+        Some((ns, w)) => format!("({ns:.0}: wrong, no comparison) | {w} of {n}"),
+    }
+}
+
 fn median(mut v: Vec<f64>) -> f64 {
     v.sort_by(|a, b| a.partial_cmp(b).unwrap());
     v[v.len() / 2]
 }
 
 fn main() {
-    println!("| family | members | recursion ns/value | single values ns/value | ratio |");
-    println!("|---|---|---|---|---|");
+    #[cfg(feature = "gsl-bench")]
+    unsafe {
+        gsl::gsl_set_error_handler_off();
+    }
+    println!("| family | members | recursion ns/value | single values ns/value | ratio | GSL singles ns/value | GSL wrong |");
+    println!("|---|---|---|---|---|---|---|");
     for j in [100i64, 1000, 10000] {
         let (tj2, tj3, tm2, tm3) = (2 * j, 2 * j, 2 * (j / 10), -2 * (j / 7));
         let mut rec = Vec::new();
@@ -45,9 +88,28 @@ fn main() {
         }
         let per_single = t.elapsed().as_secs_f64() / count as f64 * 1e9;
         std::hint::black_box(sink);
+        let f = three_j_over_j1(tj2, tj3, tm2, tm3);
+        let members: Vec<(i64, f64)> = (0..n).map(|i| (f.argument(i), f.values[i])).collect();
+        #[allow(unused_variables)]
+        let g = gsl_loop(&members, |x| {
+            #[cfg(feature = "gsl-bench")]
+            unsafe {
+                return gsl::gsl_sf_coupling_3j(
+                    x as i32,
+                    tj2 as i32,
+                    tj3 as i32,
+                    (-tm2 - tm3) as i32,
+                    tm2 as i32,
+                    tm3 as i32,
+                );
+            }
+            #[allow(unreachable_code)]
+            0.0
+        });
         println!(
-            "| 3j over j1, j2 = j3 = {j} | {n} | {per_rec:.1} | {per_single:.0} | {:.0}x |",
-            per_single / per_rec
+            "| 3j over j1, j2 = j3 = {j} | {n} | {per_rec:.1} | {per_single:.0} | {:.0}x | {} |",
+            per_single / per_rec,
+            gsl_cell(g, n)
         );
     }
     for j in [100i64, 1000, 10000] {
@@ -72,9 +134,27 @@ fn main() {
         }
         let per_single = t.elapsed().as_secs_f64() / count as f64 * 1e9;
         std::hint::black_box(sink);
+        let members: Vec<(i64, f64)> = (0..n).map(|i| (f.argument(i), f.values[i])).collect();
+        #[allow(unused_variables)]
+        let g = gsl_loop(&members, |x| {
+            #[cfg(feature = "gsl-bench")]
+            unsafe {
+                return gsl::gsl_sf_coupling_6j(
+                    x as i32,
+                    t6[0] as i32,
+                    t6[1] as i32,
+                    t6[2] as i32,
+                    t6[3] as i32,
+                    t6[4] as i32,
+                );
+            }
+            #[allow(unreachable_code)]
+            0.0
+        });
         println!(
-            "| 6j over j1, others ~ {j} | {n} | {per_rec:.1} | {per_single:.0} | {:.0}x |",
-            per_single / per_rec
+            "| 6j over j1, others ~ {j} | {n} | {per_rec:.1} | {per_single:.0} | {:.0}x | {} |",
+            per_single / per_rec,
+            gsl_cell(g, n)
         );
     }
     single_values();

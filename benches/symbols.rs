@@ -14,26 +14,8 @@ use recoup::verify::rng::Rng;
 use std::time::Instant;
 
 #[cfg(feature = "gsl-bench")]
-mod gsl {
-    #[link(name = "gsl")]
-    #[link(name = "gslcblas")]
-    extern "C" {
-        pub fn gsl_sf_coupling_3j(a: i32, b: i32, c: i32, ma: i32, mb: i32, mc: i32) -> f64;
-        pub fn gsl_sf_coupling_6j(a: i32, b: i32, c: i32, d: i32, e: i32, f: i32) -> f64;
-        pub fn gsl_sf_coupling_9j(
-            a: i32,
-            b: i32,
-            c: i32,
-            d: i32,
-            e: i32,
-            f: i32,
-            g: i32,
-            h: i32,
-            i: i32,
-        ) -> f64;
-        pub fn gsl_set_error_handler_off() -> *const u8;
-    }
-}
+#[path = "support/gsl.rs"]
+mod gsl;
 
 fn tri(a: i64, b: i64, c: i64) -> bool {
     exact::triangle2(a, b, c)
@@ -128,6 +110,9 @@ struct Row {
     gsl: f64,
     gsl_err: f64,
     ours_err: f64,
+    /// GSL values off by more than 1e-10 relative (or not finite)
+    gsl_wrong: usize,
+    count: usize,
 }
 
 fn rel(f: f64, e: f64) -> f64 {
@@ -212,8 +197,15 @@ fn measure<T>(
             .map(|(a, e)| rel(f(a), *e))
             .fold(0.0, f64::max)
     };
+    let gsl_wrong = list
+        .iter()
+        .zip(&ex)
+        .filter(|(a, e)| !(rel(gsl(a), **e) <= 1e-10))
+        .count();
     Row {
         what,
+        gsl_wrong,
+        count: list.len(),
         exact: time_per(list, reps.0, |a| exact_value(a).terms().count() as f64),
         float: time_per(list, reps.1, &float_value),
         gsl: time_per(list, reps.1, &gsl),
@@ -230,14 +222,15 @@ fn main() {
     let quick = std::env::args().any(|a| a == "--quick");
     let mut rng = Rng::new(42);
     let mut rows = Vec::new();
-    for &j in &[5i64, 20, 100, 1000] {
+    for &j in &[5i64, 20, 100, 1000, 10000] {
         let n = match j {
             5 => 2000,
             20 => 500,
             100 => 50,
-            _ => 6,
+            1000 => 6,
+            _ => 3,
         };
-        let reps = if quick { 3 } else { 11 };
+        let reps = if quick || j >= 10000 { 3 } else { 11 };
         let l = args_3j(&mut rng, j, n);
         let three = |a: &[i64; 6]| ([a[0], a[1], a[2]], [a[3], a[4], a[5]]);
         rows.push(measure(
@@ -281,17 +274,27 @@ fn main() {
             ));
         }
     }
-    println!("| symbol | recoup exact | recoup float | GSL 2.7 | exact/GSL | float/GSL | GSL max rel. error | recoup float max rel. error |");
-    println!("|---|---|---|---|---|---|---|---|");
+    println!("| symbol | recoup exact | recoup float | GSL 2.7 | exact/GSL | float/GSL | GSL wrong (> 1e-10) | GSL max rel. error | recoup float max rel. error |");
+    println!("|---|---|---|---|---|---|---|---|---|");
     for r in &rows {
+        // where GSL is wrong its time is no comparison: the ratio is marked
+        let ratio = |x: f64| {
+            if r.gsl_wrong > 0 {
+                format!("({:.2}, GSL wrong)", x / r.gsl)
+            } else {
+                format!("{:.2}", x / r.gsl)
+            }
+        };
         println!(
-            "| {} | {} | {} | {} | {:.2} | {:.2} | {:.1e} | {:.1e} |",
+            "| {} | {} | {} | {} | {} | {} | {} of {} | {:.1e} | {:.1e} |",
             r.what,
             fmt_ns(r.exact),
             fmt_ns(r.float),
             fmt_ns(r.gsl),
-            r.exact / r.gsl,
-            r.float / r.gsl,
+            ratio(r.exact),
+            ratio(r.float),
+            r.gsl_wrong,
+            r.count,
             r.gsl_err,
             r.ours_err
         );
