@@ -37,7 +37,10 @@ fn gsl_loop(members: &[(i64, f64)], value: impl Fn(i64) -> f64) -> Option<(f64, 
         let big = members.iter().fold(0.0f64, |a, m| a.max(m.1.abs()));
         let wrong = members
             .iter()
-            .filter(|&&(x, v)| !((value(x) - v).abs() <= 1e-10 * v.abs().max(1e-3 * big)))
+            .filter(|&&(x, v)| {
+                let d = (value(x) - v).abs();
+                d.is_nan() || d > 1e-10 * v.abs().max(1e-3 * big)
+            })
             .count();
         return Some((ns, wrong));
     }

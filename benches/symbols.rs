@@ -200,7 +200,10 @@ fn measure<T>(
     let gsl_wrong = list
         .iter()
         .zip(&ex)
-        .filter(|(a, e)| !(rel(gsl(a), **e) <= 1e-10))
+        .filter(|(a, e)| {
+            let r = rel(gsl(a), **e);
+            r.is_nan() || r > 1e-10
+        })
         .count();
     Row {
         what,

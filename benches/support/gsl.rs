@@ -1,5 +1,6 @@
 //! GSL 2.7's coupling coefficients, linked only into the benchmarks
 //! (feature `gsl-bench`, Debian's libgsl-dev).
+#![allow(dead_code)] // each benchmark uses some of them
 
 #[link(name = "gsl")]
 #[link(name = "gslcblas")]
