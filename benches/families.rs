@@ -161,6 +161,52 @@ fn main() {
         );
     }
     single_values();
+    nine_j_values();
+}
+
+/// Float 9j at j ~ 100 and 1000: the median time of `nine_j_f64`, and how
+/// many of the symbols the family path (three 6j recursions over x)
+/// answered under its error bound, against the median of the rest.
+fn nine_j_values() {
+    use recoup::numeric::float::{nine_j_by_families, nine_j_f64};
+    println!();
+    println!("| 9j | n | by families | median, by families | median, others |");
+    println!("|---|---|---|---|---|");
+    let mut rng = Rng::new(99);
+    for (j, n) in [(100i64, 20usize), (1000, 6)] {
+        let (mut fam, mut other) = (Vec::new(), Vec::new());
+        let mut done = 0;
+        while done < n {
+            let mut t = [0i64; 9];
+            for x in t.iter_mut() {
+                *x = 2 * j - 2 * rng.below((j / 10).max(1) as u64) as i64 + rng.below(2) as i64;
+            }
+            if !recoup::numeric::exact::nine_j_triads_ok(&t) {
+                continue;
+            }
+            done += 1;
+            let by_families = nine_j_by_families(&t).is_some();
+            let secs = timed(|| nine_j_f64(t));
+            if by_families {
+                fam.push(secs);
+            } else {
+                other.push(secs);
+            }
+        }
+        let med = |v: Vec<f64>| {
+            if v.is_empty() {
+                "-".to_string()
+            } else {
+                format!("{:.1} us", median(v) * 1e6)
+            }
+        };
+        println!(
+            "| j ~ {j} | {n} | {} | {} | {} |",
+            fam.len(),
+            med(fam),
+            med(other)
+        );
+    }
 }
 
 /// A 3j's doubled angular momenta and projections.
