@@ -11,17 +11,72 @@
 //! of `numeric`; a family is the first member's doubled value and the
 //! values in steps of 1.
 
-/// A family: values at `first`, `first + 2`, ... (doubled arguments).
+/// A family: values at `first`, `first + 2`, ... (doubled arguments), in
+/// f64 or in double-double (`Dd`).
 #[derive(Clone, Debug, PartialEq)]
-pub struct Family {
+pub struct Family<T = f64> {
     /// doubled value of the first member's varying argument
     pub first: i64,
     /// the values, one per member
-    pub values: Vec<f64>,
+    pub values: Vec<T>,
 }
 
-impl Family {
-    fn empty() -> Family {
+/// The numbers a recursion can run in: f64, or double-double where a sum
+/// of family members cancels heavily (the 9j).
+pub trait FamilyNumber:
+    Copy
+    + std::ops::Add<Output = Self>
+    + std::ops::Sub<Output = Self>
+    + std::ops::Mul<Output = Self>
+    + std::ops::Div<Output = Self>
+    + std::ops::Neg<Output = Self>
+{
+    /// An f64.
+    fn from_f64(x: f64) -> Self;
+    /// An integer (exact where the type allows).
+    fn from_i128(n: i128) -> Self;
+    /// The nearest f64 (for magnitude tests).
+    fn approx(self) -> f64;
+    /// The square root.
+    fn sqrt(self) -> Self;
+}
+
+impl FamilyNumber for f64 {
+    fn from_f64(x: f64) -> f64 {
+        x
+    }
+    fn from_i128(n: i128) -> f64 {
+        n as f64
+    }
+    fn approx(self) -> f64 {
+        self
+    }
+    fn sqrt(self) -> f64 {
+        f64::sqrt(self)
+    }
+}
+
+impl FamilyNumber for Dd {
+    fn from_f64(x: f64) -> Dd {
+        Dd::from_f64(x)
+    }
+    fn from_i128(n: i128) -> Dd {
+        if n < 0 {
+            -Dd::from_u128(n.unsigned_abs())
+        } else {
+            Dd::from_u128(n as u128)
+        }
+    }
+    fn approx(self) -> f64 {
+        self.to_f64()
+    }
+    fn sqrt(self) -> Dd {
+        Dd::sqrt(self)
+    }
+}
+
+impl<T> Family<T> {
+    fn empty() -> Family<T> {
         Family {
             first: 0,
             values: Vec::new(),
@@ -34,6 +89,8 @@ impl Family {
     }
 }
 
+use super::dd::Dd;
+
 /// Values beyond this are rescaled during a recursion run.
 const HUGE: f64 = 1e150;
 
@@ -44,60 +101,63 @@ const HUGE: f64 = 1e150;
 /// once the magnitude stops growing (the classical region); the backward
 /// run starts at the upper end and goes down to three members below
 /// that; the two are matched by least squares on their overlap.
-fn solve(
+fn solve<T: FamilyNumber>(
     n: usize,
-    abc: impl Fn(usize) -> (f64, f64, f64),
-    weight: impl Fn(usize) -> f64,
+    abc: impl Fn(usize) -> (T, T, T),
+    weight: impl Fn(usize) -> T,
     last_sign: f64,
-) -> Vec<f64> {
+) -> Vec<T> {
+    let num = T::from_f64;
+    let zero = num(0.0);
+    let mag = |x: T| x.approx().abs();
     if n == 0 {
         return Vec::new();
     }
     if n == 1 {
-        return vec![last_sign / weight(0).sqrt()];
+        return vec![num(last_sign) / weight(0).sqrt()];
     }
     // forward: f(0) = 1, f(1) from the equation at 0
-    let mut fw: Vec<f64> = Vec::new();
+    let mut fw: Vec<T> = Vec::new();
     let (a0, b0, _) = abc(0);
-    if a0 != 0.0 {
-        fw.push(1.0);
+    if a0.approx() != 0.0 {
+        fw.push(num(1.0));
         fw.push(-b0 / a0);
         let mut i = 1;
         while i + 1 < n {
-            let grown = fw[i].abs().max(fw[i - 1].abs());
-            if i >= 2 && grown < fw[i - 2].abs().max(fw[i - 1].abs()) {
+            let grown = mag(fw[i]).max(mag(fw[i - 1]));
+            if i >= 2 && grown < mag(fw[i - 2]).max(mag(fw[i - 1])) {
                 break;
             }
             let (a, b, c) = abc(i);
-            if a == 0.0 {
+            if a.approx() == 0.0 {
                 break;
             }
             let next = -(b * fw[i] + c * fw[i - 1]) / a;
             fw.push(next);
             i += 1;
-            if next.abs() > HUGE {
-                fw.iter_mut().for_each(|v| *v /= HUGE);
+            if mag(next) > HUGE {
+                fw.iter_mut().for_each(|v| *v = *v / num(HUGE));
             }
         }
     }
     // backward: g(n-1) = 1, g(n-2) from the equation at n-1, down to `low`
     let low = fw.len().saturating_sub(3);
-    let mut g = vec![0.0; n];
-    g[n - 1] = 1.0;
+    let mut g = vec![zero; n];
+    g[n - 1] = num(1.0);
     let (_, bn, cn) = abc(n - 1);
     if n >= 2 {
-        g[n - 2] = if cn == 0.0 { 0.0 } else { -bn / cn };
+        g[n - 2] = if cn.approx() == 0.0 { zero } else { -bn / cn };
     }
     let mut i = n - 2;
     while i > low {
         let (a, b, c) = abc(i);
-        g[i - 1] = if c == 0.0 {
-            0.0
+        g[i - 1] = if c.approx() == 0.0 {
+            zero
         } else {
             -(b * g[i] + a * g[i + 1]) / c
         };
-        if g[i - 1].abs() > HUGE {
-            g.iter_mut().for_each(|v| *v /= HUGE);
+        if mag(g[i - 1]) > HUGE {
+            g.iter_mut().for_each(|v| *v = *v / num(HUGE));
         }
         i -= 1;
     }
@@ -107,30 +167,33 @@ fn solve(
     let mut values = g;
     if !fw.is_empty() && fw.len() >= n {
         values.copy_from_slice(&fw[..n]);
-        top_sign = if fw[n - 1] < 0.0 { -1.0 } else { 1.0 };
+        top_sign = if fw[n - 1].approx() < 0.0 { -1.0 } else { 1.0 };
     } else if !fw.is_empty() {
         let top = fw.len();
-        let (mut num, mut den) = (0.0, 0.0);
+        let (mut nu, mut den) = (zero, zero);
         for k in low..top {
-            num += fw[k] * values[k];
-            den += values[k] * values[k];
+            nu = nu + fw[k] * values[k];
+            den = den + values[k] * values[k];
         }
-        if den > 0.0 && num != 0.0 {
+        if den.approx() > 0.0 && nu.approx() != 0.0 {
             // express the backward run in the forward run's scale
-            let scale = num / den;
-            top_sign = scale.signum();
+            let scale = nu / den;
+            top_sign = scale.approx().signum();
             for v in values.iter_mut() {
-                *v *= scale;
+                *v = *v * scale;
             }
             values[..top].copy_from_slice(&fw[..top]);
         }
     }
-    let norm: f64 = (0..n).map(|i| weight(i) * values[i] * values[i]).sum();
-    let mut scale = 1.0 / norm.sqrt();
+    let mut norm = zero;
+    for i in 0..n {
+        norm = norm + weight(i) * values[i] * values[i];
+    }
+    let mut scale = num(1.0) / norm.sqrt();
     if top_sign * last_sign < 0.0 {
         scale = -scale;
     }
-    values.iter_mut().for_each(|v| *v *= scale);
+    values.iter_mut().for_each(|v| *v = *v * scale);
     values
 }
 
@@ -266,6 +329,22 @@ pub fn six_j_with_first(t: [i64; 6], p: usize) -> [i64; 6] {
 
 /// `{j1, j2, j3; l1, l2, l3}` for every allowed j1 (doubled arguments).
 pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family {
+    six_j_over_j1_in(tj2, tj3, tl1, tl2, tl3)
+}
+
+/// `six_j_over_j1` in double-double: the same recursion with each
+/// coefficient rounded once to about 106 bits.
+pub fn six_j_over_j1_dd(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family<Dd> {
+    six_j_over_j1_in(tj2, tj3, tl1, tl2, tl3)
+}
+
+fn six_j_over_j1_in<T: FamilyNumber>(
+    tj2: i64,
+    tj3: i64,
+    tl1: i64,
+    tl2: i64,
+    tl3: i64,
+) -> Family<T> {
     let lo = (tj2 - tj3).abs().max((tl2 - tl3).abs());
     let hi = (tj2 + tj3).min(tl2 + tl3);
     // the other two triads must hold and every triad be integral
@@ -279,6 +358,7 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
         return Family::empty();
     }
     let n = ((hi - lo) / 2 + 1) as usize;
+    let num = T::from_f64;
     let l1 = half(tl1);
     let j_of = |i: usize| half(lo) + i as f64;
     // exact integer coefficients on doubled values, one rounding each
@@ -295,7 +375,7 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
     let big_e = |t: i128| {
         let p = (t * t - (t2 - t3) * (t2 - t3)) * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
         let q = (t * t - (s2 - s3) * (s2 - s3)) * ((s2 + s3 + 2) * (s2 + s3 + 2) - t * t);
-        ((p.max(0) as f64).sqrt() * (q.max(0) as f64).sqrt()) / 16.0
+        (T::from_i128(p.max(0)).sqrt() * T::from_i128(q.max(0)).sqrt()) / num(16.0)
     };
     // F(j) = (2j+1) [JJ(-JJ + A2 + A3 - 2 B1) + B2(JJ + A2 - A3) + B3(JJ - A2 + A3)] / 16
     // with JJ = t(t+2) = 4 j(j+1) and likewise for the others
@@ -304,17 +384,25 @@ pub fn six_j_over_j1(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Family
         let (a2, a3) = (t2 * (t2 + 2), t3 * (t3 + 2));
         let (b1, b2, b3) = (s1 * (s1 + 2), s2 * (s2 + 2), s3 * (s3 + 2));
         let inner = tt * (-tt + a2 + a3 - 2 * b1) + b2 * (tt + a2 - a3) + b3 * (tt - a2 + a3);
-        ((t + 1) * inner) as f64 / 16.0
+        T::from_i128((t + 1) * inner) / num(16.0)
     };
     // j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0, each E once
-    let e_of: Vec<f64> = (0..=n).map(|i| big_e(t_of(i))).collect();
+    let e_of: Vec<T> = (0..=n).map(|i| big_e(t_of(i))).collect();
     let abc = |i: usize| {
         let j = j_of(i);
-        let a = if i + 1 < n { j * e_of[i + 1] } else { 0.0 };
-        let c = if i > 0 { (j + 1.0) * e_of[i] } else { 0.0 };
+        let a = if i + 1 < n {
+            num(j) * e_of[i + 1]
+        } else {
+            num(0.0)
+        };
+        let c = if i > 0 {
+            num(j + 1.0) * e_of[i]
+        } else {
+            num(0.0)
+        };
         (a, big_f(t_of(i)), c)
     };
-    let weight = |i: usize| (2.0 * j_of(i) + 1.0) * (2.0 * l1 + 1.0);
+    let weight = |i: usize| num((2.0 * j_of(i) + 1.0) * (2.0 * l1 + 1.0));
     // the last member has the sign (-1)^(j2+j3+l2+l3)
     let e = (tj2 + tj3 + tl2 + tl3) / 2;
     let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };

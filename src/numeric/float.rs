@@ -11,6 +11,7 @@
 
 use super::dd::{Dd, Xf};
 use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range, projection_ok2, triangle2};
+use super::family::FamilyNumber;
 use super::racah::{six_j_formula, three_j_formula, RacahFormula, RacahSum};
 use super::{exact, Surd};
 use num_traits::Signed;
@@ -520,30 +521,37 @@ pub fn nine_j_f64(t: [i64; 9]) -> f64 {
     if !nine_j_triads_ok(&t) {
         return 0.0;
     }
-    if let Some(v) = exact::nine_j_fast(&t) {
-        return v.to_f64();
-    }
+    // O(j) by recursion where its error bound allows (faster than the
+    // exact stack path from j ~ 5 on), else the exact value rounded (small
+    // j), else the single sums
     if let Some(v) = nine_j_by_families(&t) {
         return v;
+    }
+    if let Some(v) = exact::nine_j_fast(&t) {
+        return v.to_f64();
     }
     nine_j_by_six_j_sums(&t)
 }
 
-/// Absolute error of a family member, as a fraction of the largest of its
-/// neighbours (measured below 1.5e-15 of the family's largest for j <= 30
-/// in `tests/family.rs`;
-/// the 9j values this bound lets through are checked against exact ones
-/// at j ~ 40 and 100 in `tests/float_accuracy.rs`).
+/// Absolute error of an f64 family member, as a fraction of the largest
+/// of its neighbours (measured below 1.5e-15 of the family's largest for
+/// j <= 30 in `tests/family.rs`; the 9j values this bound lets through
+/// are checked against exact ones in `tests/float_accuracy.rs`).
 const FAMILY_ABSOLUTE_ERROR: f64 = 2e-15;
+/// The same for a double-double family (about 106 bits, less what the
+/// recursion and its matching lose; checked the same way).
+const DD_FAMILY_ABSOLUTE_ERROR: f64 = 1e-27;
 /// Relative error bound a 9j by families must meet to be returned.
 const NINE_J_FAMILY_TOLERANCE: f64 = 1e-13;
 
 /// The 9j as its sum over x of three 6j, each 6j's values over x from
 /// one recursion (`six_j_over_j1` after moving x to the top left): O(j)
-/// work. Returned only when the error bound of the sum (each member's
-/// absolute error `FAMILY_ABSOLUTE_ERROR` times the largest of its
-/// neighbours, propagated through the products) is within `NINE_J_FAMILY_TOLERANCE`
-/// of the result; `None` sends the caller to the single sums.
+/// work, first in f64, then, where the sum cancels too much for f64
+/// members, in double-double. A value is returned only when the error
+/// bound of the sum (each member's absolute error a fixed fraction of the
+/// largest of its neighbours, propagated through the products) is within
+/// `NINE_J_FAMILY_TOLERANCE` of the result; `None` sends the caller to
+/// the single sums.
 pub fn nine_j_by_families(t: &[i64; 9]) -> Option<f64> {
     let (lo, hi) = nine_j_x_range(t);
     if lo > hi {
@@ -551,10 +559,27 @@ pub fn nine_j_by_families(t: &[i64; 9]) -> Option<f64> {
     }
     // x stands at position 5, 4 and 3 of the three 6j
     let sixes = nine_j_six_js(t, 0);
-    let families = [(0usize, 5usize), (1, 4), (2, 3)].map(|(k, p)| {
-        let u = super::family::six_j_with_first(sixes[k], p);
-        super::family::six_j_over_j1(u[1], u[2], u[3], u[4], u[5])
-    });
+    let moved = [(0usize, 5usize), (1, 4), (2, 3)]
+        .map(|(k, p)| super::family::six_j_with_first(sixes[k], p));
+    let f64_families = moved.map(|u| super::family::six_j_over_j1(u[1], u[2], u[3], u[4], u[5]));
+    if let Some(v) = nine_j_sum(&f64_families, lo, hi, FAMILY_ABSOLUTE_ERROR, f64::EPSILON) {
+        return Some(v);
+    }
+    crate::limits::check_now();
+    let dd_families = moved.map(|u| super::family::six_j_over_j1_dd(u[1], u[2], u[3], u[4], u[5]));
+    nine_j_sum(&dd_families, lo, hi, DD_FAMILY_ABSOLUTE_ERROR, 1e-31)
+}
+
+/// The sum over x (doubled, `lo..=hi`) of `(-1)^(2x) (2x+1)` times the
+/// three families' members, with its error bound; `None` when the bound
+/// exceeds the tolerance.
+fn nine_j_sum<T: FamilyNumber>(
+    families: &[super::family::Family<T>; 3],
+    lo: i64,
+    hi: i64,
+    member_error: f64,
+    rounding: f64,
+) -> Option<f64> {
     // each member's error is taken relative to the largest of its
     // neighbours (the family's local amplitude), as `trusted_member` does
     let local = families.each_ref().map(|f| {
@@ -562,40 +587,41 @@ pub fn nine_j_by_families(t: &[i64; 9]) -> Option<f64> {
         (0..n)
             .map(|i| {
                 let w = &f.values[i.saturating_sub(FAMILY_WINDOW)..(i + FAMILY_WINDOW + 1).min(n)];
-                w.iter().fold(0.0f64, |a, v| a.max(v.abs()))
+                w.iter().fold(0.0f64, |a, v| a.max(v.approx().abs()))
             })
             .collect::<Vec<f64>>()
     });
-    let index = |f: &super::family::Family, x: i64| -> Option<usize> {
+    let index = |f: &super::family::Family<T>, x: i64| -> Option<usize> {
         usize::try_from((x - f.first) / 2)
             .ok()
             .filter(|&i| x >= f.first && i < f.values.len())
     };
-    let (mut sum, mut bound) = (0.0f64, 0.0f64);
+    let zero = T::from_f64(0.0);
+    let (mut sum, mut bound) = (zero, 0.0f64);
     let mut x = lo;
     while x <= hi {
-        let mut f = [0.0f64; 3];
+        let mut f = [zero; 3];
         let mut delta = [0.0f64; 3];
         for k in 0..3 {
             if let Some(i) = index(&families[k], x) {
                 f[k] = families[k].values[i];
-                delta[k] = FAMILY_ABSOLUTE_ERROR * local[k][i];
+                delta[k] = member_error * local[k][i];
             }
         }
-        let [f1, f2, f3] = f;
-        let w = (x + 1) as f64;
-        let term = w * f1 * f2 * f3;
-        sum += if x % 2 != 0 { -term } else { term };
-        bound += w
-            * (delta[0] * (f2 * f3).abs()
-                + delta[1] * (f1 * f3).abs()
-                + delta[2] * (f1 * f2).abs()
-                + delta[0] * delta[1] * f3.abs()
-                + delta[1] * delta[2] * f1.abs()
-                + delta[0] * delta[2] * f2.abs())
-            + term.abs() * 4.0 * f64::EPSILON;
+        let term = T::from_f64((x + 1) as f64) * f[0] * f[1] * f[2];
+        sum = if x % 2 != 0 { sum - term } else { sum + term };
+        let [f1, f2, f3] = f.map(|v| v.approx().abs());
+        bound += (x + 1) as f64
+            * (delta[0] * f2 * f3
+                + delta[1] * f1 * f3
+                + delta[2] * f1 * f2
+                + delta[0] * delta[1] * f3
+                + delta[1] * delta[2] * f1
+                + delta[0] * delta[2] * f2)
+            + term.approx().abs() * 4.0 * rounding;
         x += 2;
     }
+    let sum = sum.approx();
     (sum != 0.0 && sum.is_finite() && bound <= NINE_J_FAMILY_TOLERANCE * sum.abs()).then_some(sum)
 }
 
