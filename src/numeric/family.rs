@@ -46,7 +46,7 @@ impl FamilyNumber for f64 {
         x
     }
     fn from_i128(n: i128) -> f64 {
-        n as f64
+        exact_or_rounded(n)
     }
     fn approx(self) -> f64 {
         self
@@ -54,6 +54,24 @@ impl FamilyNumber for f64 {
     fn sqrt(self) -> f64 {
         f64::sqrt(self)
     }
+}
+
+/// An i128 as f64 (one instruction when it fits in i64: the general
+/// conversion is a slow library routine).
+#[inline]
+fn exact_or_rounded(n: i128) -> f64 {
+    let small = n as i64;
+    if small as i128 == n {
+        small as f64
+    } else {
+        wide_to_f64(n)
+    }
+}
+
+#[cold]
+#[inline(never)]
+fn wide_to_f64(n: i128) -> f64 {
+    n as f64
 }
 
 impl FamilyNumber for Dd {
@@ -225,18 +243,19 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
         tm2 as i128,
         tm3 as i128,
     );
-    // 64 A(j)^2 = (t^2 - (t2-t3)^2)((t2+t3+2)^2 - t^2)(t^2 - u1^2)
+    // 64 A(j)^2 = (t^2 - (t2-t3)^2)((t2+t3+2)^2 - t^2)(t^2 - u1^2): each
+    // factor exact, their product rounded twice (no cancellation there)
     let big_a = |t: i128| {
-        let v = (t * t - (t2 - t3) * (t2 - t3))
-            * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t)
-            * (t * t - u1 * u1);
-        (v.max(0) as f64).sqrt() / 8.0
+        let p = exact_or_rounded(t * t - (t2 - t3) * (t2 - t3));
+        let q = exact_or_rounded((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
+        let r = exact_or_rounded(t * t - u1 * u1);
+        (p * q * r).max(0.0).sqrt() / 8.0
     };
     // 8 B(j) / (2j+1) = -(T2 u1 - T3 u1 - T (u3 - u2)) with T = t(t+2)
     let big_b = |t: i128| {
         let tt = t * (t + 2);
         let inner = t2 * (t2 + 2) * u1 - t3 * (t3 + 2) * u1 - tt * (u3 - u2);
-        -((t + 1) * inner) as f64 / 8.0
+        -exact_or_rounded((t + 1) * inner) / 8.0
     };
     // j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0, each A once
     let a_of: Vec<f64> = (0..=n).map(|i| big_a(t_of(i))).collect();
@@ -280,12 +299,12 @@ pub fn three_j_over_m2(tj1: i64, tj2: i64, tj3: i64, tm1: i64) -> Family {
     let big_c = |u2: i128| {
         let u3 = -u1 - u2;
         let v = (t2 - u2 + 2) * (t2 + u2) * (t3 + u3 + 2) * (t3 - u3);
-        (v.max(0) as f64).sqrt() / 4.0
+        exact_or_rounded(v.max(0)).sqrt() / 4.0
     };
     // 4 D(m2) = T2 + T3 - T1 + 2 u2 u3 with T = t(t+2)
     let big_d = |u2: i128| {
         let u3 = -u1 - u2;
-        (t2 * (t2 + 2) + t3 * (t3 + 2) - t1 * (t1 + 2) + 2 * u2 * u3) as f64 / 4.0
+        exact_or_rounded(t2 * (t2 + 2) + t3 * (t3 + 2) - t1 * (t1 + 2) + 2 * u2 * u3) / 4.0
     };
     let c_of: Vec<f64> = (0..=n).map(|i| big_c(u_of(i))).collect();
     let abc = |i: usize| {
