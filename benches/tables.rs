@@ -192,6 +192,67 @@ fn main() {
         }
     }
     println!("worst relative error over {sample} random symbols: {worst:.1e} at {worst_at:?}");
+    six_j_lookups();
+}
+
+/// 6j: a table of every 6j with j <= 20 built in memory, lookups of
+/// random symbols against float evaluation, and accuracy against exact.
+fn six_j_lookups() {
+    use recoup::numeric::exact::{six_j, triangle2};
+    use recoup::numeric::float::six_j_f64;
+    use recoup::table::six_j::SixJDomain;
+    use recoup::table::SixJTable;
+    let t = Instant::now();
+    let table = SixJTable::build(SixJDomain {
+        max_t: 40,
+        integer_only: false,
+    });
+    println!(
+        "\n6j table: built in memory ({} entries, j <= 20) in {:.2} s",
+        table.len(),
+        t.elapsed().as_secs_f64()
+    );
+    let mut rng = Rng::new(11);
+    let mut list = Vec::new();
+    while list.len() < 1_000_000 {
+        let t: [i64; 6] = std::array::from_fn(|_| rng.below(41) as i64);
+        let [a, b, c, d, e, f] = t;
+        if triangle2(a, b, c) && triangle2(a, e, f) && triangle2(d, b, f) && triangle2(d, e, c) {
+            list.push(t);
+        }
+    }
+    let (mut best_lookup, mut best_float) = (f64::MAX, f64::MAX);
+    for _ in 0..3 {
+        let t = Instant::now();
+        let mut sink = 0.0;
+        for x in &list {
+            sink += table.six_j(*x).unwrap_or(0.0);
+        }
+        std::hint::black_box(sink);
+        best_lookup = best_lookup.min(t.elapsed().as_secs_f64() / list.len() as f64 * 1e9);
+        let t = Instant::now();
+        let mut sink = 0.0;
+        for x in list.iter().take(100_000) {
+            sink += six_j_f64(*x);
+        }
+        std::hint::black_box(sink);
+        best_float = best_float.min(t.elapsed().as_secs_f64() / 100_000.0 * 1e9);
+    }
+    println!("| 6j, j <= 20 | lookup ns/value | float evaluation ns/value | ratio |");
+    println!("|---|---|---|---|");
+    println!(
+        "| random over the whole table | {best_lookup:.0} | {best_float:.0} | {:.1}x |",
+        best_float / best_lookup
+    );
+    let mut worst = 0.0f64;
+    for x in list.iter().take(20_000) {
+        let e = six_j(*x).to_f64();
+        let got = table.six_j(*x).expect("inside the table");
+        if e != 0.0 {
+            worst = worst.max(((got - e) / e).abs());
+        }
+    }
+    println!("worst relative error over 20000 random 6j: {worst:.1e}");
 }
 
 /// Only the warm lookups, for profiling: `RECOUP_TABLE_WARM_ONLY=1`.

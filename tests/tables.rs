@@ -304,3 +304,155 @@ fn bad_requests_are_refused_with_their_reason() {
     ]);
     assert_eq!(code, 2, "{err}");
 }
+
+/// Every 6j (doubled) with entries up to `max_t` whose four triads hold.
+fn six_js(max_t: i64, integer_only: bool) -> Vec<[i64; 6]> {
+    let step = if integer_only { 2 } else { 1 };
+    let r: Vec<i64> = (0..=max_t).step_by(step).collect();
+    let tri = recoup::numeric::exact::triangle2;
+    let mut out = Vec::new();
+    for &a in &r {
+        for &b in &r {
+            for &c in &r {
+                if !tri(a, b, c) {
+                    continue;
+                }
+                for &d in &r {
+                    for &e in &r {
+                        for &f in &r {
+                            if tri(a, e, f) && tri(d, b, f) && tri(d, e, c) {
+                                out.push([a, b, c, d, e, f]);
+                            }
+                        }
+                    }
+                }
+            }
+        }
+    }
+    out
+}
+
+/// The 24 images of a 6j: columns permuted, rows swapped in two columns
+/// (Edmonds 6.2.4, 6.2.5, from memory), by brute force.
+fn six_j_images(t: [i64; 6]) -> Vec<[i64; 6]> {
+    let perms = [
+        [0, 1, 2],
+        [1, 2, 0],
+        [2, 0, 1],
+        [1, 0, 2],
+        [0, 2, 1],
+        [2, 1, 0],
+    ];
+    let flips = [
+        [false, false, false],
+        [true, true, false],
+        [true, false, true],
+        [false, true, true],
+    ];
+    let mut out = Vec::new();
+    for p in perms {
+        for fl in flips {
+            let mut u = [0; 6];
+            for k in 0..3 {
+                let (top, bottom) = (t[p[k]], t[3 + p[k]]);
+                (u[k], u[3 + k]) = if fl[k] { (bottom, top) } else { (top, bottom) };
+            }
+            out.push(u);
+        }
+    }
+    out
+}
+
+#[test]
+fn every_six_j_up_to_the_bound_is_found_with_its_exact_value() {
+    use recoup::table::six_j::SixJDomain;
+    use recoup::table::SixJTable;
+    for (max_t, integer_only) in [(7, false), (12, true)] {
+        let table = SixJTable::build(SixJDomain {
+            max_t,
+            integer_only,
+        });
+        let list = six_js(max_t, integer_only);
+        // entries = orbits, each named by its largest image
+        let orbits: std::collections::HashSet<[i64; 6]> = list
+            .iter()
+            .map(|t| six_j_images(*t).into_iter().max().unwrap())
+            .collect();
+        assert_eq!(table.len(), orbits.len(), "max_t {max_t}");
+        for t in &list {
+            let exact = recoup::numeric::exact::six_j(*t).to_f64();
+            let got = table.six_j(*t).unwrap_or_else(|| panic!("{t:?} missing"));
+            assert!(close(got, exact), "{t:?}: table {got}, exact {exact}");
+        }
+        let big = max_t + 2 - max_t % 2;
+        assert_eq!(table.six_j([big, big, big, big, big, big]), None);
+        assert_eq!(
+            table.six_j([2, 2, 8, 2, 2, 2]),
+            Some(0.0),
+            "a broken triad is zero"
+        );
+    }
+}
+
+#[test]
+fn six_j_files_read_back_and_list_records() {
+    use recoup::table::SixJTable;
+    let dir = std::env::temp_dir().join(format!("recoup-6j-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let path = dir.join("t.r6j");
+    let (code, out, err) = run(&[
+        "tabulate",
+        "6j",
+        "--max-j",
+        "4",
+        "--integer-j",
+        "-o",
+        path.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    assert!(out.contains("6j symbols of integer j with j <= 4"), "{out}");
+    let table = SixJTable::read(&path).unwrap();
+    // {1 1 1; 1 1 1} = 1/6 (Edmonds Table 5, from memory)
+    assert!(close(table.six_j([2, 2, 2, 2, 2, 2]).unwrap(), 1.0 / 6.0));
+    let bytes = std::fs::read(&path).unwrap();
+    assert!(SixJTable::from_bytes(&bytes[..bytes.len() - 1]).is_err());
+    assert!(
+        ThreeJTable::from_bytes(&bytes).is_err(),
+        "a 6j file is not a 3j table"
+    );
+    let mut huge = bytes.clone();
+    huge[40..48].copy_from_slice(&u64::MAX.to_le_bytes());
+    assert!(SixJTable::from_bytes(&huge).is_err());
+    let csv = dir.join("t.csv");
+    let (code, _, err) = run(&[
+        "tabulate",
+        "6j",
+        "--max-j",
+        "2",
+        "-o",
+        csv.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 0, "{err}");
+    let text = std::fs::read_to_string(&csv).unwrap();
+    let mut lines = text.lines();
+    assert_eq!(lines.next(), Some("j1,j2,j3,l1,l2,l3,value"));
+    let mut n = 0;
+    for l in lines {
+        let r: Vec<f64> = l.split(',').map(|x| x.parse().unwrap()).collect();
+        let t = [0, 1, 2, 3, 4, 5].map(|k| (2.0 * r[k]) as i64);
+        assert!(
+            close(r[6], recoup::numeric::exact::six_j(t).to_f64()),
+            "{l}"
+        );
+        n += 1;
+    }
+    assert_eq!(
+        n,
+        SixJTable::build(recoup::table::six_j::SixJDomain {
+            max_t: 4,
+            integer_only: false
+        })
+        .len()
+    );
+    let _ = std::fs::remove_dir_all(&dir);
+}

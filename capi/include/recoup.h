@@ -42,8 +42,8 @@
 #define RECOUP_ERR_OUTSIDE 5
 
 /**
- * A 3j table read from a file written by `recoup tabulate 3j` (indexed
- * layout), opaque to C.
+ * A table read from a file written by `recoup tabulate 3j` or
+ * `recoup tabulate 6j` (indexed layout), opaque to C.
  */
 typedef struct RecoupTable RecoupTable;
 
@@ -164,9 +164,9 @@ int recoup_table_open(const char *path, struct RecoupTable **table);
 void recoup_table_close(struct RecoupTable *table);
 
 /**
- * `(j1 j2 j3; m1 m2 m3)` looked up in a table: `RECOUP_OK` (0 for a
+ * `(j1 j2 j3; m1 m2 m3)` looked up in a 3j table: `RECOUP_OK` (0 for a
  * symbol zero by its selection rules), `RECOUP_ERR_OUTSIDE` for a symbol
- * the table does not cover.
+ * the table does not cover, `RECOUP_ERR_ARGUMENT` for a 6j table.
  *
  * # Safety
  * `table` must be a live handle from `recoup_table_open` or null.
@@ -193,6 +193,22 @@ int recoup_table_cg(const struct RecoupTable *table,
                     int tm2,
                     int tjj,
                     int tmm,
+                    double *out);
+
+/**
+ * `{j1 j2 j3; l1 l2 l3}` looked up in a 6j table, like
+ * `recoup_table_3j` (`RECOUP_ERR_ARGUMENT` for a 3j table).
+ *
+ * # Safety
+ * `table` must be a live handle from `recoup_table_open` or null.
+ */
+int recoup_table_6j(const struct RecoupTable *table,
+                    int tj1,
+                    int tj2,
+                    int tj3,
+                    int tl1,
+                    int tl2,
+                    int tl3,
                     double *out);
 
 #endif  /* RECOUP_H */

@@ -344,9 +344,14 @@ pub extern "C" fn recoup_6j_family(
     })
 }
 
-/// A 3j table read from a file written by `recoup tabulate 3j` (indexed
-/// layout), opaque to C.
-pub struct RecoupTable(recoup::table::ThreeJTable);
+/// A table read from a file written by `recoup tabulate 3j` or
+/// `recoup tabulate 6j` (indexed layout), opaque to C.
+pub enum RecoupTable {
+    /// 3j symbols (and CG coefficients through them)
+    ThreeJ(recoup::table::ThreeJTable),
+    /// 6j symbols
+    SixJ(recoup::table::SixJTable),
+}
 
 /// Reads a table file (`path` NUL-terminated) into memory; `*table` gets
 /// the handle, to be released with `recoup_table_close`.
@@ -368,14 +373,19 @@ pub unsafe extern "C" fn recoup_table_open(
         let Ok(text) = text.to_str() else {
             return RECOUP_ERR_FILE;
         };
-        match recoup::table::ThreeJTable::read(std::path::Path::new(text)) {
-            Ok(t) => {
-                // SAFETY: checked non-null above
-                unsafe { *table = Box::into_raw(Box::new(RecoupTable(t))) };
-                RECOUP_OK
-            }
-            Err(_) => RECOUP_ERR_FILE,
-        }
+        let Ok(bytes) = std::fs::read(text) else {
+            return RECOUP_ERR_FILE;
+        };
+        let t = match recoup::table::ThreeJTable::from_bytes(&bytes) {
+            Ok(t) => RecoupTable::ThreeJ(t),
+            Err(_) => match recoup::table::SixJTable::from_bytes(&bytes) {
+                Ok(t) => RecoupTable::SixJ(t),
+                Err(_) => return RECOUP_ERR_FILE,
+            },
+        };
+        // SAFETY: checked non-null above
+        unsafe { *table = Box::into_raw(Box::new(t)) };
+        RECOUP_OK
     })
 }
 
@@ -391,9 +401,9 @@ pub unsafe extern "C" fn recoup_table_close(table: *mut RecoupTable) {
     }
 }
 
-/// `(j1 j2 j3; m1 m2 m3)` looked up in a table: `RECOUP_OK` (0 for a
+/// `(j1 j2 j3; m1 m2 m3)` looked up in a 3j table: `RECOUP_OK` (0 for a
 /// symbol zero by its selection rules), `RECOUP_ERR_OUTSIDE` for a symbol
-/// the table does not cover.
+/// the table does not cover, `RECOUP_ERR_ARGUMENT` for a 6j table.
 ///
 /// # Safety
 /// `table` must be a live handle from `recoup_table_open` or null.
@@ -413,12 +423,15 @@ pub unsafe extern "C" fn recoup_table_3j(
         let Some(t) = (unsafe { table.as_ref() }) else {
             return RECOUP_ERR_BUFFER;
         };
+        let RecoupTable::ThreeJ(t) = t else {
+            return RECOUP_ERR_ARGUMENT;
+        };
         if tj1 < 0 || tj2 < 0 || tj3 < 0 {
             return RECOUP_ERR_ARGUMENT;
         }
         let tj = [tj1, tj2, tj3].map(i64::from);
         let tm = [tm1, tm2, tm3].map(i64::from);
-        match t.0.three_j(tj, tm) {
+        match t.three_j(tj, tm) {
             Some(v) => write_f64(out, v),
             None => RECOUP_ERR_OUTSIDE,
         }
@@ -445,11 +458,49 @@ pub unsafe extern "C" fn recoup_table_cg(
         let Some(t) = (unsafe { table.as_ref() }) else {
             return RECOUP_ERR_BUFFER;
         };
+        let RecoupTable::ThreeJ(t) = t else {
+            return RECOUP_ERR_ARGUMENT;
+        };
         if tj1 < 0 || tj2 < 0 || tjj < 0 {
             return RECOUP_ERR_ARGUMENT;
         }
         let a = [tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from);
-        match t.0.clebsch_gordan(a[0], a[1], a[2], a[3], a[4], a[5]) {
+        match t.clebsch_gordan(a[0], a[1], a[2], a[3], a[4], a[5]) {
+            Some(v) => write_f64(out, v),
+            None => RECOUP_ERR_OUTSIDE,
+        }
+    })
+}
+
+/// `{j1 j2 j3; l1 l2 l3}` looked up in a 6j table, like
+/// `recoup_table_3j` (`RECOUP_ERR_ARGUMENT` for a 3j table).
+///
+/// # Safety
+/// `table` must be a live handle from `recoup_table_open` or null.
+#[no_mangle]
+pub unsafe extern "C" fn recoup_table_6j(
+    table: *const RecoupTable,
+    tj1: c_int,
+    tj2: c_int,
+    tj3: c_int,
+    tl1: c_int,
+    tl2: c_int,
+    tl3: c_int,
+    out: *mut c_double,
+) -> c_int {
+    guarded(|| {
+        // SAFETY: a live handle or null (checked)
+        let Some(t) = (unsafe { table.as_ref() }) else {
+            return RECOUP_ERR_BUFFER;
+        };
+        let RecoupTable::SixJ(t) = t else {
+            return RECOUP_ERR_ARGUMENT;
+        };
+        let a = [tj1, tj2, tj3, tl1, tl2, tl3];
+        if a.iter().any(|&x| x < 0) {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        match t.six_j(a.map(i64::from)) {
             Some(v) => write_f64(out, v),
             None => RECOUP_ERR_OUTSIDE,
         }

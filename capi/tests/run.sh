@@ -12,9 +12,10 @@ lib=target/release/librecoup_capi.a
 cc -O2 -Wall -Werror -Icapi/include capi/tests/c/check.c "$lib" -lm -lpthread -ldl -o target/capi-check-c
 gfortran -O2 -Wall capi/tests/fortran/check.f90 "$lib" -lm -lpthread -ldl -o target/capi-check-f
 target/release/recoup tabulate 3j --max-j 6 -o target/capi-table.r3j > /dev/null
+target/release/recoup tabulate 6j --max-j 6 -o target/capi-table.r6j > /dev/null
 checked=0
 for prog in target/capi-check-c target/capi-check-f; do
-  "$prog" target/capi-table.r3j > target/capi-out.txt
+  "$prog" target/capi-table.r3j target/capi-table.r6j > target/capi-out.txt
   while IFS=$'\t' read -r kind expr value; do
     case "$kind" in
       float)

@@ -220,14 +220,17 @@ enum Command {
     /// `value<TAB>float` per member (`value<TAB>exact<TAB>float` with
     /// --exact).
     Family(family::FamilyArgs),
-    /// Write every symmetry-unique 3j symbol up to a largest j to a file.
+    /// Write every symmetry-unique 3j or 6j symbol up to a largest j to a
+    /// file.
     ///
-    /// Symbols are unique under all 72 symmetries of the 3j symbol
-    /// (column permutations, projections reversed, Regge's). The indexed
-    /// layout (default) holds a header, a bitmap index and the values, for
-    /// lookup of any 3j or Clebsch-Gordan coefficient by the library and
-    /// the C interface; .npy and .csv files list one representative symbol
-    /// per entry (doubled j and m in .npy). Runs on every core.
+    /// 3j symbols are unique under all 72 symmetries of the 3j symbol
+    /// (column permutations, projections reversed, Regge's), 6j symbols
+    /// under their 24 (columns permuted, rows swapped in two columns). The
+    /// indexed layout (default) holds a header, a bitmap index and the
+    /// values, for lookup of any 3j, Clebsch-Gordan coefficient or 6j by
+    /// the library and the C interface; .npy and .csv files list one
+    /// representative symbol per entry (doubled arguments in .npy). Runs
+    /// on every core.
     Tabulate(tabulate::TabulateArgs),
     /// Simplify an expression; every step is verified by exact
     /// spot-evaluation.

@@ -1,7 +1,8 @@
-//! `recoup tabulate 3j --max-j J --output FILE`: every 3j symbol unique
-//! under its 72 symmetries up to a largest j, written as an indexed table
-//! (`table::file`, read back by `table::ThreeJTable` and the C interface)
-//! or as records (`.npy`, CSV). Work runs on every core; a progress bar
+//! `recoup tabulate 3j|6j --max-j J --output FILE`: every 3j symbol
+//! unique under its 72 symmetries, or 6j under its 24, up to a largest j,
+//! written as an indexed table (`table::file`, read back by
+//! `table::ThreeJTable`, `table::SixJTable` and the C interface) or as
+//! records (`.npy`, CSV). Work runs on every core; a progress bar
 //! appears on standard error when it is a terminal and the job runs past
 //! a second. The time limit applies only when --time-limit is given.
 
@@ -28,6 +29,9 @@ pub enum Symbol {
     /// 3j symbols (Clebsch-Gordan coefficients are looked up through them)
     #[value(name = "3j")]
     ThreeJ,
+    /// 6j symbols
+    #[value(name = "6j")]
+    SixJ,
 }
 
 /// The file layouts.
@@ -136,7 +140,102 @@ fn past_deadline() -> bool {
 }
 
 pub fn run(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
-    let Symbol::ThreeJ = a.symbol;
+    match a.symbol {
+        Symbol::ThreeJ => run_three_j(a, io),
+        Symbol::SixJ => run_six_j(a, io),
+    }
+}
+
+/// Creates the output file, buffered.
+fn create(path: &std::path::Path) -> Result<BufWriter<std::fs::File>, Failure> {
+    let created = std::fs::File::create(path)
+        .map_err(|e| Failure::input(format!("cannot write {}: {e}", path.display())))?;
+    Ok(BufWriter::with_capacity(1 << 20, created))
+}
+
+/// The entry limit of a layout, refused with a hint.
+fn check_entries(entries: u64, layout: Layout) -> Result<(), Failure> {
+    let limit = if layout == Layout::Csv {
+        MAX_CSV_ENTRIES
+    } else {
+        MAX_ENTRIES
+    };
+    if entries > limit {
+        let hint = if layout == Layout::Csv {
+            "; write .npy or the indexed layout instead"
+        } else {
+            ""
+        };
+        return Err(Failure::limit(format!(
+            "the table would hold {entries} entries, beyond the limit of {limit} for this layout{hint}"
+        )));
+    }
+    Ok(())
+}
+
+fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
+    use crate::table::six_j::{self, SixJDomain, SixJNumbering};
+    let domain = SixJDomain {
+        max_t: max_doubled_j(&a.max_j)?,
+        integer_only: a.integer_j,
+    };
+    let layout = layout_of(&a);
+    let started = Instant::now();
+    let numbering = SixJNumbering::new(domain);
+    if numbering.len() > MAX_POSITIONS {
+        return Err(Failure::limit(format!(
+            "a 6j table up to j = {} numbers {} positions, beyond the limit of {MAX_POSITIONS}; ask for a smaller --max-j",
+            a.max_j, numbering.len()
+        )));
+    }
+    let bits = six_j::positions(&numbering, &past_deadline).ok_or_else(time_up)?;
+    let entries = bits.ones();
+    check_entries(entries, layout)?;
+    let mut w = create(&a.output)?;
+    let rows = match layout {
+        Layout::Indexed => {
+            file::write_six_j_index(&mut w, &numbering, &bits)?;
+            file::RowLayout::Values
+        }
+        Layout::Npy => {
+            w.write_all(&file::six_j_npy_header(entries))?;
+            file::RowLayout::Npy
+        }
+        Layout::Csv => {
+            w.write_all(file::SIX_J_CSV_HEADER.as_bytes())?;
+            file::RowLayout::Csv
+        }
+    };
+    let mut sink = |part: &[([i64; 6], f64)]| file::write_six_j_rows(&mut w, rows, part);
+    let mut progress = Progress::new();
+    let finished = six_j::values(
+        &numbering,
+        &bits,
+        &mut sink,
+        &mut |done, total| progress.update(done, total),
+        &past_deadline,
+    )?;
+    progress.finish();
+    w.flush()?;
+    if !finished {
+        drop(w);
+        let _ = std::fs::remove_file(&a.output);
+        return Err(time_up());
+    }
+    outln!(
+        io,
+        "{entries} symmetry-unique 6j symbols{} with j <= {} written to {} ({:?} layout, {} positions) in {:.1} s",
+        if domain.integer_only { " of integer j" } else { "" },
+        a.max_j.trim(),
+        a.output.display(),
+        layout,
+        numbering.len(),
+        started.elapsed().as_secs_f64()
+    )?;
+    Ok(())
+}
+
+fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     let domain = Domain {
         max_tj: max_doubled_j(&a.max_j)?,
         integer_only: a.integer_j,

@@ -19,6 +19,10 @@
 //! is the 3j of its key's square read with row 0 as the triangle row, and
 //! entry `k` is the `k`-th set position.
 //!
+//! A 6j table has the same layout with magic `RECOUP6J`, bytes 16..24
+//! the largest doubled entry, 24..32 zero, positions those of
+//! `six_j::SixJNumbering` and values those of the canonical forms.
+//!
 //! Record files list one symbol per entry, a representative within the
 //! domain with its own value: NumPy `.npy` (format 1.0, a structured array
 //! of `two_j1, two_j2, two_j3, two_m1, two_m2, two_m3` as `<i4` and
@@ -28,10 +32,13 @@
 use super::build::{Domain, Entry};
 use super::rank::RankedBits;
 use super::regge::Numbering;
+use super::six_j::{SixJDomain, SixJNumbering};
 use std::io::{self, Write};
 
 /// The magic bytes of the indexed layout.
 pub const MAGIC: &[u8; 8] = b"RECOUP3J";
+/// The magic bytes of a 6j table.
+pub const MAGIC_6J: &[u8; 8] = b"RECOUP6J";
 /// The layout version written.
 pub const VERSION: u32 = 1;
 /// Bytes before the bitmap.
@@ -58,15 +65,7 @@ pub fn write_index(
     bits: &RankedBits,
 ) -> io::Result<()> {
     w.write_all(&header(domain, numbering, bits.ones()))?;
-    let mut buf = Vec::with_capacity(1 << 16);
-    for chunk in bits.words().chunks(8192) {
-        buf.clear();
-        for x in chunk {
-            buf.extend_from_slice(&x.to_le_bytes());
-        }
-        w.write_all(&buf)?;
-    }
-    Ok(())
+    write_words(w, bits)
 }
 
 /// Writes the values of the indexed layout.
@@ -80,11 +79,16 @@ pub fn write_values(w: &mut dyn Write, entries: &[Entry]) -> io::Result<()> {
 
 /// The NumPy header of a record file with `n` entries.
 pub fn npy_header(n: u64) -> Vec<u8> {
-    let dict = format!(
-        "{{'descr': [('two_j1', '<i4'), ('two_j2', '<i4'), ('two_j3', '<i4'), \
-         ('two_m1', '<i4'), ('two_m2', '<i4'), ('two_m3', '<i4'), ('value', '<f8')], \
-         'fortran_order': False, 'shape': ({n},), }}"
-    );
+    npy_header_with(
+        "[('two_j1', '<i4'), ('two_j2', '<i4'), ('two_j3', '<i4'), \
+         ('two_m1', '<i4'), ('two_m2', '<i4'), ('two_m3', '<i4'), ('value', '<f8')]",
+        n,
+    )
+}
+
+/// A NumPy format 1.0 header for a 1-d structured array.
+fn npy_header_with(descr: &str, n: u64) -> Vec<u8> {
+    let dict = format!("{{'descr': {descr}, 'fortran_order': False, 'shape': ({n},), }}");
     // magic (6) + version (2) + length (2) + dict + padding + '\n', a multiple of 64
     let unpadded = 10 + dict.len() + 1;
     let total = unpadded.div_ceil(64) * 64;
@@ -204,7 +208,11 @@ pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
         return Err(bad("the header's position count does not match its bounds"));
     }
     let words = positions.div_ceil(64) as usize;
-    let expected = HEADER_BYTES as u64 + 8 * words as u64 + 8 * entries;
+    let expected = (words as u64)
+        .checked_mul(8)
+        .and_then(|x| x.checked_add(entries.checked_mul(8)?))
+        .and_then(|x| x.checked_add(HEADER_BYTES as u64))
+        .ok_or_else(|| bad("the header's sizes overflow"))?;
     if bytes.len() as u64 != expected {
         return Err(bad(&format!(
             "{} bytes where the header implies {expected}",
@@ -224,6 +232,158 @@ pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
         .collect();
     Ok(Parts {
         domain,
+        numbering,
+        bits,
+        values,
+    })
+}
+
+/// The header of a 6j table.
+pub fn six_j_header(domain: &SixJDomain, positions: u64, entries: u64) -> [u8; HEADER_BYTES] {
+    let mut h = [0u8; HEADER_BYTES];
+    h[0..8].copy_from_slice(MAGIC_6J);
+    h[8..12].copy_from_slice(&VERSION.to_le_bytes());
+    h[12..16].copy_from_slice(&(domain.integer_only as u32).to_le_bytes());
+    h[16..24].copy_from_slice(&domain.max_t.to_le_bytes());
+    h[32..40].copy_from_slice(&positions.to_le_bytes());
+    h[40..48].copy_from_slice(&entries.to_le_bytes());
+    h
+}
+
+/// Writes the header and bitmap of a 6j table.
+pub fn write_six_j_index(
+    w: &mut dyn Write,
+    numbering: &SixJNumbering,
+    bits: &RankedBits,
+) -> io::Result<()> {
+    w.write_all(&six_j_header(
+        &numbering.domain(),
+        numbering.len(),
+        bits.ones(),
+    ))?;
+    write_words(w, bits)
+}
+
+fn write_words(w: &mut dyn Write, bits: &RankedBits) -> io::Result<()> {
+    let mut buf = Vec::with_capacity(1 << 16);
+    for chunk in bits.words().chunks(8192) {
+        buf.clear();
+        for x in chunk {
+            buf.extend_from_slice(&x.to_le_bytes());
+        }
+        w.write_all(&buf)?;
+    }
+    Ok(())
+}
+
+/// Writes 6j values, or records (`{a b c; d e f}` doubled, value) for
+/// .npy and CSV.
+pub fn write_six_j_rows(
+    w: &mut dyn Write,
+    layout: RowLayout,
+    rows: &[([i64; 6], f64)],
+) -> io::Result<()> {
+    let mut buf = Vec::with_capacity(rows.len() * 32);
+    for (k, v) in rows {
+        match layout {
+            RowLayout::Values => buf.extend_from_slice(&v.to_le_bytes()),
+            RowLayout::Npy => {
+                for x in k {
+                    buf.extend_from_slice(&(*x as i32).to_le_bytes());
+                }
+                buf.extend_from_slice(&v.to_le_bytes());
+            }
+            RowLayout::Csv => {
+                let fields: Vec<String> = k.iter().map(|&t| half(t)).collect();
+                buf.extend_from_slice(format!("{},{v:.17e}\n", fields.join(",")).as_bytes());
+            }
+        }
+    }
+    w.write_all(&buf)
+}
+
+/// How rows of a table are written.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum RowLayout {
+    /// f64 values only (the indexed layout)
+    Values,
+    /// .npy records
+    Npy,
+    /// CSV records
+    Csv,
+}
+
+/// The NumPy header of a 6j record file with `n` entries.
+pub fn six_j_npy_header(n: u64) -> Vec<u8> {
+    npy_header_with(
+        "[('two_j1', '<i4'), ('two_j2', '<i4'), ('two_j3', '<i4'), ('two_l1', '<i4'), \
+         ('two_l2', '<i4'), ('two_l3', '<i4'), ('value', '<f8')]",
+        n,
+    )
+}
+
+/// The CSV header line of a 6j record file.
+pub const SIX_J_CSV_HEADER: &str = "j1,j2,j3,l1,l2,l3,value\n";
+
+/// The parts of a 6j table read from its bytes.
+pub struct SixJParts {
+    /// the numbering (and domain)
+    pub numbering: SixJNumbering,
+    /// the bitmap
+    pub bits: RankedBits,
+    /// the values
+    pub values: Vec<f64>,
+}
+
+/// Reads a 6j table from its bytes, checking every size.
+pub fn parse_six_j(bytes: &[u8]) -> Result<SixJParts, TableFileError> {
+    let bad = |m: &str| TableFileError::Format(m.to_string());
+    if bytes.len() < HEADER_BYTES || &bytes[0..8] != MAGIC_6J {
+        return Err(bad("the magic bytes RECOUP6J are missing"));
+    }
+    let version = u32::from_le_bytes(bytes[8..12].try_into().unwrap_or([0; 4]));
+    if version != VERSION {
+        return Err(bad(&format!(
+            "layout version {version}, this reader knows {VERSION}"
+        )));
+    }
+    let flags = u32::from_le_bytes(bytes[12..16].try_into().unwrap_or([0; 4]));
+    let max_t = u64_at(bytes, 16) as i64;
+    let (positions, entries) = (u64_at(bytes, 32), u64_at(bytes, 40));
+    if !(0..=super::MAX_DOUBLED_J).contains(&max_t) {
+        return Err(bad("the header's bound is out of range"));
+    }
+    let words = positions.div_ceil(64);
+    let expected = (HEADER_BYTES as u64)
+        .checked_add(words.checked_mul(8).ok_or_else(|| bad("sizes overflow"))?)
+        .and_then(|x| x.checked_add(entries.checked_mul(8)?))
+        .ok_or_else(|| bad("sizes overflow"))?;
+    if bytes.len() as u64 != expected {
+        return Err(bad(&format!(
+            "{} bytes where the header implies {expected}",
+            bytes.len()
+        )));
+    }
+    let numbering = SixJNumbering::new(SixJDomain {
+        max_t,
+        integer_only: flags & 1 == 1,
+    });
+    if numbering.len() != positions {
+        return Err(bad("the header's position count does not match its bound"));
+    }
+    let words = words as usize;
+    let word_bytes = &bytes[HEADER_BYTES..HEADER_BYTES + 8 * words];
+    let bits = RankedBits::from_words(word_bytes.chunks_exact(8).map(|c| u64_at(c, 0)).collect());
+    if bits.ones() != entries {
+        return Err(bad(
+            "the bitmap does not hold as many entries as the header says",
+        ));
+    }
+    let values = bytes[HEADER_BYTES + 8 * words..]
+        .chunks_exact(8)
+        .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
+        .collect();
+    Ok(SixJParts {
         numbering,
         bits,
         values,

@@ -62,6 +62,20 @@ impl RankedBits {
         w < self.words.len() && self.words[w] >> (i % 64) & 1 == 1
     }
 
+    /// How many set positions come before position `i`.
+    pub fn ones_before(&self, i: u64) -> u64 {
+        let Some(block) = self.blocks.get((i / BLOCK_BITS) as usize) else {
+            return self.ones;
+        };
+        let within = i % BLOCK_BITS;
+        let (w, bit) = ((within / 64) as usize, within % 64);
+        let mut r = block.before;
+        for x in &block.words[..w] {
+            r += x.count_ones() as u64;
+        }
+        r + (block.words[w] & ((1u64 << bit) - 1)).count_ones() as u64
+    }
+
     /// The entry number of position `i` when it is set (one cache line).
     pub fn rank(&self, i: u64) -> Option<u64> {
         let block = self.blocks.get((i / BLOCK_BITS) as usize)?;
@@ -96,6 +110,7 @@ mod tests {
         assert_eq!(bits.ones(), n.div_ceil(3));
         for i in 0..n {
             assert_eq!(bits.rank(i), (i % 3 == 0).then_some(i / 3), "{i}");
+            assert_eq!(bits.ones_before(i), i.div_ceil(3), "{i}");
         }
         assert_eq!(bits.rank(n + 64 * 100), None);
     }

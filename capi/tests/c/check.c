@@ -122,5 +122,24 @@ int main(int argc, char **argv) {
                "missing table file");
         expect(recoup_table_open(argv[0], &none), RECOUP_ERR_FILE, "not a table file");
     }
+    /* a 6j table (path in argv[2]) */
+    if (argc > 2) {
+        struct RecoupTable *table = NULL;
+        expect(recoup_table_open(argv[2], &table), RECOUP_OK, "recoup_table_open 6j");
+        int rows[][6] = {{2, 2, 2, 2, 2, 2}, {8, 6, 4, 6, 8, 4}, {3, 4, 5, 4, 3, 4},
+                         {12, 12, 12, 12, 12, 12}, {1, 12, 11, 8, 9, 4}};
+        for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
+            int *r = rows[i];
+            expect(recoup_table_6j(table, r[0], r[1], r[2], r[3], r[4], r[5], &v), RECOUP_OK,
+                   "recoup_table_6j");
+            printf("float\t{%d/2, %d/2, %d/2; %d/2, %d/2, %d/2}\t%.17g\n", r[0], r[1], r[2],
+                   r[3], r[4], r[5], v);
+        }
+        expect(recoup_table_3j(table, 2, 2, 0, 0, 0, 0, &v), RECOUP_ERR_ARGUMENT,
+               "3j from a 6j table");
+        expect(recoup_table_6j(table, 14, 14, 14, 14, 14, 14, &v), RECOUP_ERR_OUTSIDE,
+               "beyond the 6j table");
+        recoup_table_close(table);
+    }
     return failures == 0 ? 0 : 1;
 }
