@@ -22,6 +22,9 @@ use crate::numeric::family::{six_j_over_j1, six_j_with_first};
 use crate::numeric::float::{six_j_f64, trusted_member};
 use rayon::prelude::*;
 
+/// A canonical 6j (doubled entries) and its value.
+pub type SixJEntry = ([i64; 6], f64);
+
 /// The canonical image of a 6j (doubled entries), or `None` when a triad
 /// fails (the symbol is 0).
 pub fn canonical(t: [i64; 6]) -> Option<[i64; 6]> {
@@ -247,7 +250,7 @@ pub fn positions(n: &SixJNumbering, stop: &dyn Fn() -> bool) -> Option<RankedBit
 }
 
 /// The entries of one `(a, b)` row, in position order.
-fn row_values(n: &SixJNumbering, bits: &RankedBits, a: i64, b: i64) -> Vec<([i64; 6], f64)> {
+fn row_values(n: &SixJNumbering, bits: &RankedBits, a: i64, b: i64) -> Vec<SixJEntry> {
     let mut out = Vec::new();
     for ([a, b, c, e, f], lo, hi) in row_tuples(a, b, n.step) {
         let held: Vec<i64> = (lo..=hi)
@@ -276,7 +279,7 @@ fn row_values(n: &SixJNumbering, bits: &RankedBits, a: i64, b: i64) -> Vec<([i64
 pub fn values(
     n: &SixJNumbering,
     bits: &RankedBits,
-    sink: &mut dyn FnMut(&[([i64; 6], f64)]) -> std::io::Result<()>,
+    sink: &mut dyn FnMut(&[SixJEntry]) -> std::io::Result<()>,
     progress: &mut dyn FnMut(u64, u64),
     stop: &dyn Fn() -> bool,
 ) -> std::io::Result<bool> {
@@ -285,7 +288,7 @@ pub fn values(
         if stop() {
             return Ok(false);
         }
-        let parts: Vec<Vec<([i64; 6], f64)>> = chunk
+        let parts: Vec<Vec<SixJEntry>> = chunk
             .par_iter()
             .map(|&(a, b)| row_values(n, bits, a, b))
             .collect();
