@@ -21,6 +21,7 @@
 pub mod algebra;
 #[cfg(feature = "cli")]
 pub mod cli;
+pub mod document;
 pub mod expr;
 pub mod graph;
 pub mod limits;

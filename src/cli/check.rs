@@ -87,7 +87,7 @@ fn point_json(p: &crate::verify::sample::Point) -> serde_json::Value {
 }
 
 /// How the points were chosen, in words.
-fn how(r: &CheckResult, s: &SpotSettings) -> String {
+pub fn how(r: &CheckResult, s: &SpotSettings) -> String {
     let domain = if s.triangles_hold {
         ", triangle rules of free triads kept"
     } else {
@@ -120,13 +120,7 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
         return Err(Failure::input("--max-points must be at least 1"));
     }
     s.max_points = a.max_points;
-    let r = check(&lhs, &rhs, &s).map_err(|e| match e {
-        CheckError::Eval(e) => e.into(),
-        too_many @ CheckError::TooManyPoints { .. } => {
-            Failure::limit(format!("{too_many} (--max-points N, --max-j J)"))
-        }
-    })?;
-    let how = how(&r, &s);
+    let r = check(&lhs, &rhs, &s).map_err(check_failure)?;
     let code = match &r.verdict {
         Verdict::Equal => 0,
         _ => 1,
@@ -170,6 +164,20 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
         )?;
         return Ok(code);
     }
+    write_verdict(io, &r, &s, "")?;
+    Ok(code)
+}
+
+/// The verdict in words: one line for equal or not established; for
+/// different, the counterexample, the values and the diagnosis, each line
+/// after the first indented by `indent`.
+pub fn write_verdict(
+    io: &mut Io,
+    r: &CheckResult,
+    s: &SpotSettings,
+    indent: &str,
+) -> Result<(), Failure> {
+    let how = how(r, s);
     match &r.verdict {
         Verdict::Equal => outln!(io, "equal at {how}")?,
         Verdict::NotEstablished => outln!(
@@ -185,19 +193,19 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
             outln!(io, "different at {} of {how}", r.mismatches)?;
             outln!(
                 io,
-                "smallest counterexample: {}",
+                "{indent}smallest counterexample: {}",
                 crate::simplify::fmt_point(at)
             )?;
-            outln!(io, "  left  = {lhs}")?;
-            outln!(io, "  right = {rhs}")?;
+            outln!(io, "{indent}  left  = {lhs}")?;
+            outln!(io, "{indent}  right = {rhs}")?;
             match diagnosis {
                 Some(d) => {
-                    outln!(io, "diagnosis: {}", d.text)?;
+                    outln!(io, "{indent}diagnosis: {}", d.text)?;
                     let which = match d.side {
                         Side::Left => "left",
                         Side::Right => "right",
                     };
-                    outln!(io, "repaired {which} side: {}", d.repaired)?;
+                    outln!(io, "{indent}repaired {which} side: {}", d.repaired)?;
                     let again = if r.domain.is_some() {
                         "the same exhaustive domain"
                     } else {
@@ -205,14 +213,24 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
                     };
                     outln!(
                         io,
-                        "the repaired claim agrees at {} points ({} nonzero, {again})",
+                        "{indent}the repaired claim agrees at {} points ({} nonzero, {again})",
                         d.confirmed.checked,
                         d.confirmed.nonzero
                     )?;
                 }
-                None => outln!(io, "diagnosis: no single phase, factor of hats, triangle factor or swapped pair of arguments explains the difference")?,
+                None => outln!(io, "{indent}diagnosis: no single phase, factor of hats, triangle factor or swapped pair of arguments explains the difference")?,
             }
         }
     }
-    Ok(code)
+    Ok(())
+}
+
+/// A check error as a failure of the command.
+pub fn check_failure(e: CheckError) -> Failure {
+    match e {
+        CheckError::Eval(e) => e.into(),
+        too_many @ CheckError::TooManyPoints { .. } => {
+            Failure::limit(format!("{too_many} (--max-points N, --max-j J)"))
+        }
+    }
 }

@@ -15,6 +15,7 @@ mod family;
 mod graph;
 mod input;
 mod recouple;
+mod run;
 mod simplify;
 mod table;
 mod tabulate;
@@ -232,6 +233,17 @@ enum Command {
     /// representative symbol per entry (doubled arguments in .npy). Runs
     /// on every core.
     Tabulate(tabulate::TabulateArgs),
+    /// Check a derivation document: claims, simplifications, definitions.
+    ///
+    /// FILE holds one item a line (`\` continues a line, `#` starts a
+    /// comment): `integer k, q;` and `half-odd s;` declarations, `let NAME
+    /// = EXPR` (later items use NAME), `claim [LABEL:] LHS = RHS` (checked
+    /// like `check`), `simplify [LABEL:] EXPR [= EXPECTED]` (simplified,
+    /// and the result checked equal to the expected form). Prints a line
+    /// per item; exit 1 when any fails, each failure with its file, line,
+    /// counterexample and diagnosis. --latex prints the derivation as a
+    /// standalone LaTeX document when every item holds.
+    Run(run::RunArgs),
     /// Simplify an expression; every step is verified by exact
     /// spot-evaluation.
     ///
@@ -330,6 +342,7 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
         Command::Tabulate(a) => tabulate::run(a, io).map(|_| EXIT_OK),
         Command::Simplify(a) => simplify::run(a, io).map(|_| EXIT_OK),
         Command::Check(a) => check::run(a, io),
+        Command::Run(a) => run::run(a, io),
         Command::Graph(a) => graph::run(a, io).map(|_| EXIT_OK),
         Command::Recouple(a) => recouple::run(a, io).map(|_| EXIT_OK),
         Command::Latex { expr } => {
