@@ -333,7 +333,36 @@ fn case(rng: &mut Rng, corpus: &[String]) -> (Vec<String>, Vec<u8>) {
         }
     };
     let s = |x: &str| x.to_string();
-    match rng.below(20) {
+    match rng.below(22) {
+        20 | 21 => {
+            // a derivation document on standard input
+            let mut doc = String::new();
+            for _ in 0..1 + rng.below(4) {
+                let line = match rng.below(8) {
+                    0 => pick(
+                        rng,
+                        &["integer k;", "half-odd s;", "integer a, b;", "# note"],
+                    )
+                    .to_string(),
+                    1 => format!("let W = {}", text(rng)),
+                    2 | 3 => format!("claim {} = {}", text(rng), text(rng)),
+                    4 => format!("simplify {}", text(rng)),
+                    5 => format!("simplify x: {} = {}", text(rng), text(rng)),
+                    6 => format!("claim W = {} \\", text(rng)),
+                    _ => {
+                        let claim = format!("claim {} = {}", text(rng), text(rng));
+                        mutate(rng, &claim)
+                    }
+                };
+                doc.push_str(&line);
+                doc.push('\n');
+            }
+            let mut a = vec![s("run"), s("-")];
+            if rng.below(4) == 0 {
+                a.push(s("--latex"));
+            }
+            (a, doc.into_bytes())
+        }
         0..=5 => {
             let mut a = vec![s("eval"), text(rng)];
             if rng.below(5) != 0 {
@@ -518,7 +547,7 @@ fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
     }
     match code {
         0 => {}
-        1 if args[0] == "check" => {}
+        1 if args[0] == "check" || args[0] == "run" => {}
         2 => {
             if err.trim().is_empty() {
                 return Err(format!("exit 2 without a message: {}", show()));

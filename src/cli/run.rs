@@ -92,6 +92,22 @@ fn label_text(label: &Option<String>) -> String {
 
 pub fn run(a: RunArgs, io: &mut Io) -> Result<i32, Failure> {
     let text = read_file(&a, io)?;
+    // the report is held back until every item has run, so that bad input
+    // anywhere leaves standard output empty (exit 2 prints nothing there)
+    let mut report = Vec::new();
+    let code = {
+        let mut held = Io {
+            stdin: &mut *io.stdin,
+            out: &mut report,
+            err: &mut *io.err,
+        };
+        run_items(&a, &text, &mut held)?
+    };
+    io.out.write_all(&report)?;
+    Ok(code)
+}
+
+fn run_items(a: &RunArgs, text: &str, io: &mut Io) -> Result<i32, Failure> {
     let name = if a.file == "-" {
         "<stdin>"
     } else {
