@@ -114,7 +114,7 @@ fn run_items(a: &RunArgs, text: &str, io: &mut Io) -> Result<i32, Failure> {
         a.file.as_str()
     };
     let items =
-        read(&text).map_err(|e| Failure::input(format!("{name}:{}: {}", e.line, e.message)))?;
+        read(text).map_err(|e| Failure::input(format!("{name}:{}: {}", e.line, e.message)))?;
     let spot = settings(&a.max_j, a.samples, a.exhaustive, a.seed)?;
     let opts = Options {
         final_spot: settings(&a.max_j, a.samples, false, a.seed)?,
