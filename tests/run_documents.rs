@@ -6,27 +6,10 @@
 //! Angular Momentum in Quantum Mechanics, eq. 6.2.9, from memory) in the
 //! sample; a phase added to it makes the false claim below.
 
-use std::io::Write;
-use std::process::{Command, Stdio};
+mod common;
 
 fn run(args: &[&str], stdin: Option<&str>) -> (i32, String, String) {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_recoup"))
-        .args(args)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .unwrap();
-    if let Some(s) = stdin {
-        child.stdin.take().unwrap().write_all(s.as_bytes()).unwrap();
-    }
-    drop(child.stdin.take());
-    let out = child.wait_with_output().unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-        String::from_utf8(out.stderr).unwrap(),
-    )
+    common::run_binary(args, stdin)
 }
 
 #[test]

@@ -1,25 +1,10 @@
 //! The sample files the README points to run as their first lines say.
 
-use std::io::Write;
-use std::process::{Command, Stdio};
+mod common;
 
 fn run(args: &[&str], stdin: Option<&str>) -> (i32, String) {
-    let mut child = Command::new(env!("CARGO_BIN_EXE_recoup"))
-        .args(args)
-        .stdin(Stdio::piped())
-        .stdout(Stdio::piped())
-        .stderr(Stdio::piped())
-        .spawn()
-        .unwrap();
-    if let Some(s) = stdin {
-        child.stdin.take().unwrap().write_all(s.as_bytes()).unwrap();
-    }
-    drop(child.stdin.take());
-    let out = child.wait_with_output().unwrap();
-    (
-        out.status.code().unwrap_or(-1),
-        String::from_utf8(out.stdout).unwrap(),
-    )
+    let (code, out, _) = common::run_binary(args, stdin);
+    (code, out)
 }
 
 fn line(text: &str, n: usize) -> String {

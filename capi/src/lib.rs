@@ -401,6 +401,32 @@ pub unsafe extern "C" fn recoup_table_close(table: *mut RecoupTable) {
     }
 }
 
+/// A lookup in a live table handle: `RECOUP_ERR_BUFFER` for a null
+/// handle, `RECOUP_ERR_ARGUMENT` for a negative angular momentum or a
+/// table of the other kind, `RECOUP_ERR_OUTSIDE` when `look` finds no
+/// entry, else the value through `out`.
+fn look_up(
+    table: *const RecoupTable,
+    js: &[c_int],
+    out: *mut c_double,
+    look: impl FnOnce(&RecoupTable) -> Option<Option<f64>>,
+) -> c_int {
+    guarded(|| {
+        // SAFETY: a live handle or null (checked by as_ref)
+        let Some(t) = (unsafe { table.as_ref() }) else {
+            return RECOUP_ERR_BUFFER;
+        };
+        if js.iter().any(|&j| j < 0) {
+            return RECOUP_ERR_ARGUMENT;
+        }
+        match look(t) {
+            None => RECOUP_ERR_ARGUMENT,
+            Some(None) => RECOUP_ERR_OUTSIDE,
+            Some(Some(v)) => write_f64(out, v),
+        }
+    })
+}
+
 /// `(j1 j2 j3; m1 m2 m3)` looked up in a 3j table: `RECOUP_OK` (0 for a
 /// symbol zero by its selection rules), `RECOUP_ERR_OUTSIDE` for a symbol
 /// the table does not cover, `RECOUP_ERR_ARGUMENT` for a 6j table.
@@ -418,23 +444,12 @@ pub unsafe extern "C" fn recoup_table_3j(
     tm3: c_int,
     out: *mut c_double,
 ) -> c_int {
-    guarded(|| {
-        // SAFETY: a live handle or null (checked)
-        let Some(t) = (unsafe { table.as_ref() }) else {
-            return RECOUP_ERR_BUFFER;
-        };
-        let RecoupTable::ThreeJ(t) = t else {
-            return RECOUP_ERR_ARGUMENT;
-        };
-        if tj1 < 0 || tj2 < 0 || tj3 < 0 {
-            return RECOUP_ERR_ARGUMENT;
+    look_up(table, &[tj1, tj2, tj3], out, |t| match t {
+        RecoupTable::ThreeJ(t) => {
+            let tj = [tj1, tj2, tj3].map(i64::from);
+            Some(t.three_j(tj, [tm1, tm2, tm3].map(i64::from)))
         }
-        let tj = [tj1, tj2, tj3].map(i64::from);
-        let tm = [tm1, tm2, tm3].map(i64::from);
-        match t.three_j(tj, tm) {
-            Some(v) => write_f64(out, v),
-            None => RECOUP_ERR_OUTSIDE,
-        }
+        RecoupTable::SixJ(_) => None,
     })
 }
 
@@ -453,22 +468,12 @@ pub unsafe extern "C" fn recoup_table_cg(
     tmm: c_int,
     out: *mut c_double,
 ) -> c_int {
-    guarded(|| {
-        // SAFETY: a live handle or null (checked)
-        let Some(t) = (unsafe { table.as_ref() }) else {
-            return RECOUP_ERR_BUFFER;
-        };
-        let RecoupTable::ThreeJ(t) = t else {
-            return RECOUP_ERR_ARGUMENT;
-        };
-        if tj1 < 0 || tj2 < 0 || tjj < 0 {
-            return RECOUP_ERR_ARGUMENT;
+    look_up(table, &[tj1, tj2, tjj], out, |t| match t {
+        RecoupTable::ThreeJ(t) => {
+            let a = [tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from);
+            Some(t.clebsch_gordan(a[0], a[1], a[2], a[3], a[4], a[5]))
         }
-        let a = [tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from);
-        match t.clebsch_gordan(a[0], a[1], a[2], a[3], a[4], a[5]) {
-            Some(v) => write_f64(out, v),
-            None => RECOUP_ERR_OUTSIDE,
-        }
+        RecoupTable::SixJ(_) => None,
     })
 }
 
@@ -488,22 +493,10 @@ pub unsafe extern "C" fn recoup_table_6j(
     tl3: c_int,
     out: *mut c_double,
 ) -> c_int {
-    guarded(|| {
-        // SAFETY: a live handle or null (checked)
-        let Some(t) = (unsafe { table.as_ref() }) else {
-            return RECOUP_ERR_BUFFER;
-        };
-        let RecoupTable::SixJ(t) = t else {
-            return RECOUP_ERR_ARGUMENT;
-        };
-        let a = [tj1, tj2, tj3, tl1, tl2, tl3];
-        if a.iter().any(|&x| x < 0) {
-            return RECOUP_ERR_ARGUMENT;
-        }
-        match t.six_j(a.map(i64::from)) {
-            Some(v) => write_f64(out, v),
-            None => RECOUP_ERR_OUTSIDE,
-        }
+    let a = [tj1, tj2, tj3, tl1, tl2, tl3];
+    look_up(table, &a, out, |t| match t {
+        RecoupTable::SixJ(t) => Some(t.six_j(a.map(i64::from))),
+        RecoupTable::ThreeJ(_) => None,
     })
 }
 

@@ -206,33 +206,24 @@ fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
             file::RowLayout::Csv
         }
     };
-    let mut sink = |part: &[([i64; 6], f64)]| file::write_six_j_rows(&mut w, rows, part);
-    let mut progress = Progress::new();
-    let finished = six_j::values(
-        &numbering,
-        &bits,
-        &mut sink,
-        &mut |done, total| progress.update(done, total),
-        &past_deadline,
-    )?;
-    progress.finish();
-    w.flush()?;
-    if !finished {
-        drop(w);
-        let _ = std::fs::remove_file(&a.output);
-        return Err(time_up());
-    }
-    outln!(
+    let finished = {
+        let mut sink = |part: &[six_j::SixJEntry]| file::write_six_j_rows(&mut w, rows, part);
+        with_progress(|progress, stop| six_j::values(&numbering, &bits, &mut sink, progress, stop))?
+    };
+    conclude(
         io,
-        "{entries} symmetry-unique 6j symbols{} with j <= {} written to {} ({:?} layout, {} positions) in {:.1} s",
-        if domain.integer_only { " of integer j" } else { "" },
-        a.max_j.trim(),
-        a.output.display(),
-        layout,
-        numbering.len(),
-        started.elapsed().as_secs_f64()
-    )?;
-    Ok(())
+        &a,
+        w,
+        finished,
+        Summary {
+            symbol: "6j",
+            integer_only: domain.integer_only,
+            layout,
+            positions: numbering.len(),
+            entries,
+            started,
+        },
+    )
 }
 
 fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
@@ -266,28 +257,68 @@ fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
             "the table would hold {entries} entries, beyond the limit of {limit} for this layout{hint}"
         )));
     }
-    let created = std::fs::File::create(&a.output)
-        .map_err(|e| Failure::input(format!("cannot write {}: {e}", a.output.display())))?;
-    let mut w = BufWriter::with_capacity(1 << 20, created);
+    let mut w = create(&a.output)?;
     match layout {
         Layout::Indexed => file::write_index(&mut w, &domain, &numbering, &bits)?,
         Layout::Npy => w.write_all(&file::npy_header(entries))?,
         Layout::Csv => w.write_all(file::CSV_HEADER.as_bytes())?,
     }
-    let mut sink = |part: &[Entry]| match layout {
-        Layout::Indexed => file::write_values(&mut w, part),
-        Layout::Npy => file::write_npy_rows(&mut w, &domain, part),
-        Layout::Csv => file::write_csv_rows(&mut w, &domain, part),
+    let finished = {
+        let mut sink = |part: &[Entry]| match layout {
+            Layout::Indexed => file::write_values(&mut w, part),
+            Layout::Npy => file::write_npy_rows(&mut w, &domain, part),
+            Layout::Csv => file::write_csv_rows(&mut w, &domain, part),
+        };
+        with_progress(|progress, stop| build::values(&numbering, &bits, &mut sink, progress, stop))?
     };
+    conclude(
+        io,
+        &a,
+        w,
+        finished,
+        Summary {
+            symbol: "3j",
+            integer_only: domain.integer_only,
+            layout,
+            positions: numbering.len(),
+            entries,
+            started,
+        },
+    )
+}
+
+/// What a finished table holds, for its one-line summary.
+struct Summary {
+    symbol: &'static str,
+    integer_only: bool,
+    layout: Layout,
+    positions: u64,
+    entries: u64,
+    started: Instant,
+}
+
+/// A values pass with a progress bar and the time limit.
+fn with_progress(
+    pass: impl FnOnce(&mut dyn FnMut(u64, u64), &dyn Fn() -> bool) -> std::io::Result<bool>,
+) -> Result<bool, Failure> {
     let mut progress = Progress::new();
-    let finished = build::values(
-        &numbering,
-        &bits,
-        &mut sink,
+    let finished = pass(
         &mut |done, total| progress.update(done, total),
         &past_deadline,
     )?;
     progress.finish();
+    Ok(finished)
+}
+
+/// Flushes the file (removed when the pass did not finish) and prints the
+/// summary.
+fn conclude(
+    io: &mut Io,
+    a: &TabulateArgs,
+    mut w: BufWriter<std::fs::File>,
+    finished: bool,
+    s: Summary,
+) -> Result<(), Failure> {
     w.flush()?;
     if !finished {
         drop(w);
@@ -296,13 +327,15 @@ fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     }
     outln!(
         io,
-        "{entries} symmetry-unique 3j symbols{} with j <= {} written to {} ({:?} layout, {} positions) in {:.1} s",
-        if domain.integer_only { " of integer j" } else { "" },
+        "{} symmetry-unique {} symbols{} with j <= {} written to {} ({:?} layout, {} positions) in {:.1} s",
+        s.entries,
+        s.symbol,
+        if s.integer_only { " of integer j" } else { "" },
         a.max_j.trim(),
         a.output.display(),
-        layout,
-        numbering.len(),
-        started.elapsed().as_secs_f64()
+        s.layout,
+        s.positions,
+        s.started.elapsed().as_secs_f64()
     )?;
     Ok(())
 }

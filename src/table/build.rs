@@ -146,8 +146,34 @@ fn entries_of_sum(numbering: &Numbering, bits: &RankedBits, sum: i64) -> Vec<Ent
     out
 }
 
+/// Runs `work` on every item of each batch in parallel (rayon), and hands
+/// the results to `sink` in order, batch by batch; `progress(done,
+/// total)` after each batch; `stop()` true ends early (returns false).
+pub fn in_batches<T: Sync, E: Send, B: AsRef<[T]>>(
+    batches: impl IntoIterator<Item = B>,
+    work: impl Fn(&T) -> Vec<E> + Sync,
+    total: u64,
+    sink: &mut dyn FnMut(&[E]) -> std::io::Result<()>,
+    progress: &mut dyn FnMut(u64, u64),
+    stop: &dyn Fn() -> bool,
+) -> std::io::Result<bool> {
+    let mut done = 0u64;
+    for batch in batches {
+        if stop() {
+            return Ok(false);
+        }
+        let parts: Vec<Vec<E>> = batch.as_ref().par_iter().map(&work).collect();
+        for part in parts {
+            done += part.len() as u64;
+            sink(&part)?;
+        }
+        progress(done, total);
+    }
+    Ok(true)
+}
+
 /// Computes every entry the bits hold, in position order, and hands them
-/// to `sink` one line sum at a time; `progress(done, total)` is called
+/// to `sink` a few line sums at a time; `progress(done, total)` is called
 /// between batches; `stop()` true ends the work early (returns false).
 pub fn values(
     numbering: &Numbering,
@@ -156,22 +182,13 @@ pub fn values(
     progress: &mut dyn FnMut(u64, u64),
     stop: &dyn Fn() -> bool,
 ) -> std::io::Result<bool> {
-    let total = bits.ones();
-    let mut done = 0u64;
     let sums: Vec<i64> = (0..=numbering.max_sum()).collect();
-    for chunk in sums.chunks(4) {
-        if stop() {
-            return Ok(false);
-        }
-        let parts: Vec<Vec<Entry>> = chunk
-            .par_iter()
-            .map(|&sum| entries_of_sum(numbering, bits, sum))
-            .collect();
-        for part in parts {
-            done += part.len() as u64;
-            sink(&part)?;
-        }
-        progress(done, total);
-    }
-    Ok(true)
+    in_batches(
+        sums.chunks(4),
+        |&sum| entries_of_sum(numbering, bits, sum),
+        bits.ones(),
+        sink,
+        progress,
+        stop,
+    )
 }

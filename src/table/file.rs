@@ -179,11 +179,26 @@ pub struct Parts {
     pub values: Vec<f64>,
 }
 
-/// Reads an indexed table from its bytes, checking every size.
-pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
+/// The fields of a table header, its sizes checked against the bytes.
+struct Header {
+    integer_only: bool,
+    /// the largest doubled j (3j) or entry (6j)
+    bound: i64,
+    /// bytes 24..32 (the 3j's largest line sum)
+    max_sum: i64,
+    positions: u64,
+    entries: u64,
+}
+
+/// Reads and checks a header: magic, version, bound, and the file size the
+/// counts imply (before anything is allocated).
+fn read_header(bytes: &[u8], magic: &[u8; 8]) -> Result<Header, TableFileError> {
     let bad = |m: &str| TableFileError::Format(m.to_string());
-    if bytes.len() < HEADER_BYTES || &bytes[0..8] != MAGIC {
-        return Err(bad("the magic bytes RECOUP3J are missing"));
+    if bytes.len() < HEADER_BYTES || &bytes[0..8] != magic {
+        return Err(bad(&format!(
+            "the magic bytes {} are missing",
+            String::from_utf8_lossy(magic)
+        )));
     }
     let version = u32::from_le_bytes(bytes[8..12].try_into().unwrap_or([0; 4]));
     if version != VERSION {
@@ -192,25 +207,21 @@ pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
         )));
     }
     let flags = u32::from_le_bytes(bytes[12..16].try_into().unwrap_or([0; 4]));
-    let max_tj = u64_at(bytes, 16) as i64;
-    let max_sum = u64_at(bytes, 24) as i64;
-    let positions = u64_at(bytes, 32);
-    let entries = u64_at(bytes, 40);
-    let domain = Domain {
-        max_tj,
+    let h = Header {
         integer_only: flags & 1 == 1,
+        bound: u64_at(bytes, 16) as i64,
+        max_sum: u64_at(bytes, 24) as i64,
+        positions: u64_at(bytes, 32),
+        entries: u64_at(bytes, 40),
     };
-    if !(0..=super::MAX_DOUBLED_J).contains(&max_tj) || max_sum != domain.max_sum() {
-        return Err(bad("the header's bounds do not agree"));
+    if !(0..=super::MAX_DOUBLED_J).contains(&h.bound) {
+        return Err(bad("the header's bound is out of range"));
     }
-    let numbering = Numbering::new(max_sum);
-    if numbering.len() != positions {
-        return Err(bad("the header's position count does not match its bounds"));
-    }
-    let words = positions.div_ceil(64) as usize;
-    let expected = (words as u64)
+    let expected = h
+        .positions
+        .div_ceil(64)
         .checked_mul(8)
-        .and_then(|x| x.checked_add(entries.checked_mul(8)?))
+        .and_then(|x| x.checked_add(h.entries.checked_mul(8)?))
         .and_then(|x| x.checked_add(HEADER_BYTES as u64))
         .ok_or_else(|| bad("the header's sizes overflow"))?;
     if bytes.len() as u64 != expected {
@@ -219,17 +230,47 @@ pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
             bytes.len()
         )));
     }
+    Ok(h)
+}
+
+/// The bitmap and values after a checked header.
+fn read_body(bytes: &[u8], h: &Header) -> Result<(RankedBits, Vec<f64>), TableFileError> {
+    let words = h.positions.div_ceil(64) as usize;
     let word_bytes = &bytes[HEADER_BYTES..HEADER_BYTES + 8 * words];
     let bits = RankedBits::from_words(word_bytes.chunks_exact(8).map(|c| u64_at(c, 0)).collect());
-    if bits.ones() != entries {
-        return Err(bad(
-            "the bitmap does not hold as many entries as the header says",
+    if bits.ones() != h.entries {
+        return Err(TableFileError::Format(
+            "the bitmap does not hold as many entries as the header says".into(),
         ));
     }
     let values = bytes[HEADER_BYTES + 8 * words..]
         .chunks_exact(8)
         .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
         .collect();
+    Ok((bits, values))
+}
+
+fn count_mismatch() -> TableFileError {
+    TableFileError::Format("the header's position count does not match its bounds".into())
+}
+
+/// Reads an indexed 3j table from its bytes, checking every size.
+pub fn parse(bytes: &[u8]) -> Result<Parts, TableFileError> {
+    let h = read_header(bytes, MAGIC)?;
+    let domain = Domain {
+        max_tj: h.bound,
+        integer_only: h.integer_only,
+    };
+    if h.max_sum != domain.max_sum() {
+        return Err(TableFileError::Format(
+            "the header's bounds do not agree".into(),
+        ));
+    }
+    let numbering = Numbering::new(h.max_sum);
+    if numbering.len() != h.positions {
+        return Err(count_mismatch());
+    }
+    let (bits, values) = read_body(bytes, &h)?;
     Ok(Parts {
         domain,
         numbering,
@@ -337,52 +378,15 @@ pub struct SixJParts {
 
 /// Reads a 6j table from its bytes, checking every size.
 pub fn parse_six_j(bytes: &[u8]) -> Result<SixJParts, TableFileError> {
-    let bad = |m: &str| TableFileError::Format(m.to_string());
-    if bytes.len() < HEADER_BYTES || &bytes[0..8] != MAGIC_6J {
-        return Err(bad("the magic bytes RECOUP6J are missing"));
-    }
-    let version = u32::from_le_bytes(bytes[8..12].try_into().unwrap_or([0; 4]));
-    if version != VERSION {
-        return Err(bad(&format!(
-            "layout version {version}, this reader knows {VERSION}"
-        )));
-    }
-    let flags = u32::from_le_bytes(bytes[12..16].try_into().unwrap_or([0; 4]));
-    let max_t = u64_at(bytes, 16) as i64;
-    let (positions, entries) = (u64_at(bytes, 32), u64_at(bytes, 40));
-    if !(0..=super::MAX_DOUBLED_J).contains(&max_t) {
-        return Err(bad("the header's bound is out of range"));
-    }
-    let words = positions.div_ceil(64);
-    let expected = (HEADER_BYTES as u64)
-        .checked_add(words.checked_mul(8).ok_or_else(|| bad("sizes overflow"))?)
-        .and_then(|x| x.checked_add(entries.checked_mul(8)?))
-        .ok_or_else(|| bad("sizes overflow"))?;
-    if bytes.len() as u64 != expected {
-        return Err(bad(&format!(
-            "{} bytes where the header implies {expected}",
-            bytes.len()
-        )));
-    }
+    let h = read_header(bytes, MAGIC_6J)?;
     let numbering = SixJNumbering::new(SixJDomain {
-        max_t,
-        integer_only: flags & 1 == 1,
+        max_t: h.bound,
+        integer_only: h.integer_only,
     });
-    if numbering.len() != positions {
-        return Err(bad("the header's position count does not match its bound"));
+    if numbering.len() != h.positions {
+        return Err(count_mismatch());
     }
-    let words = words as usize;
-    let word_bytes = &bytes[HEADER_BYTES..HEADER_BYTES + 8 * words];
-    let bits = RankedBits::from_words(word_bytes.chunks_exact(8).map(|c| u64_at(c, 0)).collect());
-    if bits.ones() != entries {
-        return Err(bad(
-            "the bitmap does not hold as many entries as the header says",
-        ));
-    }
-    let values = bytes[HEADER_BYTES + 8 * words..]
-        .chunks_exact(8)
-        .map(|c| f64::from_le_bytes(c.try_into().unwrap_or([0; 8])))
-        .collect();
+    let (bits, values) = read_body(bytes, &h)?;
     Ok(SixJParts {
         numbering,
         bits,

@@ -283,20 +283,12 @@ pub fn values(
     progress: &mut dyn FnMut(u64, u64),
     stop: &dyn Fn() -> bool,
 ) -> std::io::Result<bool> {
-    let (mut done, total) = (0u64, bits.ones());
-    for chunk in batches(n, bits) {
-        if stop() {
-            return Ok(false);
-        }
-        let parts: Vec<Vec<SixJEntry>> = chunk
-            .par_iter()
-            .map(|&(a, b)| row_values(n, bits, a, b))
-            .collect();
-        for part in parts {
-            done += part.len() as u64;
-            sink(&part)?;
-        }
-        progress(done, total);
-    }
-    Ok(true)
+    super::build::in_batches(
+        batches(n, bits),
+        |&(a, b)| row_values(n, bits, a, b),
+        bits.ones(),
+        sink,
+        progress,
+        stop,
+    )
 }

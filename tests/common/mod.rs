@@ -136,3 +136,27 @@ pub fn blocks(text: &str) -> Vec<Block> {
     out.extend(cur);
     out
 }
+
+/// Runs the recoup binary with arguments and standard input; exit code,
+/// standard output and standard error.
+pub fn run_binary(args: &[&str], stdin: Option<&str>) -> (i32, String, String) {
+    use std::io::Write;
+    use std::process::{Command, Stdio};
+    let mut child = Command::new(env!("CARGO_BIN_EXE_recoup"))
+        .args(args)
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .expect("run recoup");
+    if let Some(s) = stdin {
+        child.stdin.take().unwrap().write_all(s.as_bytes()).unwrap();
+    }
+    drop(child.stdin.take());
+    let out = child.wait_with_output().unwrap();
+    (
+        out.status.code().unwrap_or(-1),
+        String::from_utf8(out.stdout).unwrap(),
+        String::from_utf8(out.stderr).unwrap(),
+    )
+}
