@@ -153,6 +153,16 @@ fn create(path: &std::path::Path) -> Result<BufWriter<std::fs::File>, Failure> {
     Ok(BufWriter::with_capacity(1 << 20, created))
 }
 
+/// The position limit (the bitmap's size), refused before any work.
+fn check_positions(symbol: &str, max_j: &str, positions: u64) -> Result<(), Failure> {
+    if positions > MAX_POSITIONS {
+        return Err(Failure::limit(format!(
+            "a {symbol} table up to j = {max_j} numbers {positions} positions, beyond the limit of {MAX_POSITIONS}; ask for a smaller --max-j"
+        )));
+    }
+    Ok(())
+}
+
 /// The entry limit of a layout, refused with a hint.
 fn check_entries(entries: u64, layout: Layout) -> Result<(), Failure> {
     let limit = if layout == Layout::Csv {
@@ -182,12 +192,7 @@ fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     let layout = layout_of(&a);
     let started = Instant::now();
     let numbering = SixJNumbering::new(domain);
-    if numbering.len() > MAX_POSITIONS {
-        return Err(Failure::limit(format!(
-            "a 6j table up to j = {} numbers {} positions, beyond the limit of {MAX_POSITIONS}; ask for a smaller --max-j",
-            a.max_j, numbering.len()
-        )));
-    }
+    check_positions("6j", &a.max_j, numbering.len())?;
     let bits = six_j::positions(&numbering, &past_deadline).ok_or_else(time_up)?;
     let entries = bits.ones();
     check_entries(entries, layout)?;
@@ -234,29 +239,10 @@ fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     let layout = layout_of(&a);
     let started = Instant::now();
     let numbering = Numbering::new(domain.max_sum());
-    if numbering.len() > MAX_POSITIONS {
-        return Err(Failure::limit(format!(
-            "a 3j table up to j = {} numbers {} positions, beyond the limit of {MAX_POSITIONS}; ask for a smaller --max-j",
-            a.max_j, numbering.len()
-        )));
-    }
+    check_positions("3j", &a.max_j, numbering.len())?;
     let bits = build::positions(&domain, &numbering, &past_deadline).ok_or_else(time_up)?;
     let entries = bits.ones();
-    let limit = if layout == Layout::Csv {
-        MAX_CSV_ENTRIES
-    } else {
-        MAX_ENTRIES
-    };
-    if entries > limit {
-        let hint = if layout == Layout::Csv {
-            "; write .npy or the indexed layout instead"
-        } else {
-            ""
-        };
-        return Err(Failure::limit(format!(
-            "the table would hold {entries} entries, beyond the limit of {limit} for this layout{hint}"
-        )));
-    }
+    check_entries(entries, layout)?;
     let mut w = create(&a.output)?;
     match layout {
         Layout::Indexed => file::write_index(&mut w, &domain, &numbering, &bits)?,
