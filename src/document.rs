@@ -71,6 +71,10 @@ pub struct DocumentError {
 
 /// Most items a document may hold.
 pub const MAX_ITEMS: usize = 10_000;
+/// Most bytes an item may expand to once its names are replaced (the
+/// parser's own input limit): names defined through each other would
+/// otherwise double at every step.
+pub const MAX_EXPANDED: usize = 1 << 20;
 
 fn is_name_char(c: char) -> bool {
     c.is_ascii_alphanumeric() || c == '_' || c == '\''
@@ -80,8 +84,9 @@ fn valid_name(s: &str) -> bool {
     s.chars().next().is_some_and(|c| c.is_ascii_alphabetic()) && s.chars().all(is_name_char)
 }
 
-/// Replaces each defined name, as a whole word, by its text in parentheses.
-fn expand(text: &str, defined: &[(String, String)]) -> String {
+/// Replaces each defined name, as a whole word, by its text in
+/// parentheses; `None` past `MAX_EXPANDED` bytes.
+fn expand(text: &str, defined: &[(String, String)]) -> Option<String> {
     let mut out = text.to_string();
     for (name, body) in defined.iter().rev() {
         let mut next = String::with_capacity(out.len());
@@ -95,6 +100,9 @@ fn expand(text: &str, defined: &[(String, String)]) -> String {
                     .get(i + name_chars.len())
                     .is_none_or(|c| !is_name_char(*c));
             if fits {
+                if next.len() + body.len() + 2 > MAX_EXPANDED {
+                    return None;
+                }
                 next.push('(');
                 next.push_str(body);
                 next.push(')');
@@ -106,7 +114,7 @@ fn expand(text: &str, defined: &[(String, String)]) -> String {
         }
         out = next;
     }
-    out
+    Some(out)
 }
 
 /// Splits `[LABEL:] REST` (a label is one word followed by `:` and a
@@ -136,6 +144,16 @@ fn sides(rest: &str, line: usize, what: &str) -> Result<(String, Option<String>)
             line,
             message: format!("{what} takes `LEFT = RIGHT` with one `=` and both sides written"),
         }),
+    }
+}
+
+fn too_big(line: usize) -> DocumentError {
+    DocumentError {
+        line,
+        message: format!(
+            "with its named expressions replaced this item is longer than {} bytes",
+            MAX_EXPANDED
+        ),
     }
 }
 
@@ -193,7 +211,7 @@ pub fn read(text: &str) -> Result<Vec<Located>, DocumentError> {
                         ),
                     });
                 }
-                let text = expand(value.trim(), &defined);
+                let text = expand(value.trim(), &defined).ok_or_else(|| too_big(start))?;
                 if text.is_empty() {
                     return Err(DocumentError {
                         line: start,
@@ -213,8 +231,8 @@ pub fn read(text: &str) -> Result<Vec<Located>, DocumentError> {
                 })?;
                 Item::Claim {
                     label,
-                    lhs: expand(&lhs, &defined),
-                    rhs: expand(&rhs, &defined),
+                    lhs: expand(&lhs, &defined).ok_or_else(|| too_big(start))?,
+                    rhs: expand(&rhs, &defined).ok_or_else(|| too_big(start))?,
                 }
             }
             "simplify" => {
@@ -226,10 +244,14 @@ pub fn read(text: &str) -> Result<Vec<Located>, DocumentError> {
                         message: "simplify takes an expression".into(),
                     });
                 }
+                let expected = match expected {
+                    Some(x) => Some(expand(&x, &defined).ok_or_else(|| too_big(start))?),
+                    None => None,
+                };
                 Item::Simplify {
                     label,
-                    expr: expand(&expr, &defined),
-                    expected: expected.map(|x| expand(&x, &defined)),
+                    expr: expand(&expr, &defined).ok_or_else(|| too_big(start))?,
+                    expected,
                 }
             }
             other => {
@@ -292,5 +314,13 @@ mod tests {
         assert_eq!(read("let 2x = 1").unwrap_err().line, 1);
         assert_eq!(read("claim a").unwrap_err().line, 1);
         assert!(read("claim sum(x: (2*x+1) {a, b, x; a, b, c}) = 1").is_ok());
+        // names defined through each other double at every step: refused
+        let mut doubling = String::from("let A0 = x\n");
+        for k in 1..40 {
+            doubling.push_str(&format!("let A{k} = A{} A{}\n", k - 1, k - 1));
+        }
+        let e = read(&doubling).unwrap_err();
+        assert!(e.message.contains("longer than"), "{e}");
+        assert!(e.line < 40);
     }
 }
