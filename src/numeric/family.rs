@@ -107,7 +107,7 @@ impl<T> Family<T> {
     }
 }
 
-use super::dd::Dd;
+use super::dd::{exponent, pow2, Dd};
 
 /// Values beyond this are rescaled during a recursion run.
 const HUGE: f64 = 1e150;
@@ -219,60 +219,207 @@ fn half(x: i64) -> f64 {
     x as f64 / 2.0
 }
 
-/// `(j1, j2, j3; m1, m2, m3)` for every allowed j1 (doubled arguments;
-/// `m1 = -m2 - m3`).
-pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
-    let tm1 = -tm2 - tm3;
-    if tm2.abs() > tj2 || tm3.abs() > tj3 || (tj2 - tm2) % 2 != 0 || (tj3 - tm3) % 2 != 0 {
-        return Family::empty();
+/// The recursion of the 3j over j1 (Schulten and Gordon 1975):
+/// `j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0` with
+/// `A(j)^2 = (j^2 - (j2-j3)^2)((j2+j3+1)^2 - j^2)(j^2 - m1^2)` and
+/// `B(j) = -(2j+1)(j2(j2+1) m1 - j3(j3+1) m1 - j(j+1)(m3 - m2))`, its
+/// coefficients in exact integer arithmetic on doubled values (one
+/// rounding each: their terms cancel heavily at large j).
+struct ThreeJOverJ1 {
+    lo: i64,
+    n: usize,
+    t2: i128,
+    t3: i128,
+    u1: i128,
+    u2: i128,
+    u3: i128,
+}
+
+impl ThreeJOverJ1 {
+    fn new(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Option<ThreeJOverJ1> {
+        let tm1 = -tm2 - tm3;
+        if tm2.abs() > tj2 || tm3.abs() > tj3 || (tj2 - tm2) % 2 != 0 || (tj3 - tm3) % 2 != 0 {
+            return None;
+        }
+        let lo = (tj2 - tj3).abs().max(tm1.abs());
+        let hi = tj2 + tj3;
+        (lo <= hi).then(|| ThreeJOverJ1 {
+            lo,
+            n: ((hi - lo) / 2 + 1) as usize,
+            t2: tj2 as i128,
+            t3: tj3 as i128,
+            u1: tm1 as i128,
+            u2: tm2 as i128,
+            u3: tm3 as i128,
+        })
     }
-    let lo = (tj2 - tj3).abs().max(tm1.abs());
-    let hi = tj2 + tj3;
-    if lo > hi {
-        return Family::empty();
+
+    fn j_of(&self, i: usize) -> f64 {
+        half(self.lo) + i as f64
     }
-    let n = ((hi - lo) / 2 + 1) as usize;
-    let j_of = |i: usize| half(lo) + i as f64;
-    // the coefficients in exact integer arithmetic on doubled values (one
-    // rounding each: their terms cancel heavily at large j)
-    let t_of = |i: usize| (lo + 2 * i as i64) as i128;
-    let (t2, t3, u1, u2, u3) = (
-        tj2 as i128,
-        tj3 as i128,
-        tm1 as i128,
-        tm2 as i128,
-        tm3 as i128,
-    );
-    // 64 A(j)^2 = (t^2 - (t2-t3)^2)((t2+t3+2)^2 - t^2)(t^2 - u1^2): each
-    // factor exact, their product rounded twice (no cancellation there)
-    let big_a = |t: i128| {
+
+    fn t_of(&self, i: usize) -> i128 {
+        (self.lo + 2 * i as i64) as i128
+    }
+
+    /// 8 A(j): each factor exact, their product rounded twice (no
+    /// cancellation there).
+    fn big_a(&self, t: i128) -> f64 {
+        let (t2, t3, u1) = (self.t2, self.t3, self.u1);
         let p = exact_or_rounded(t * t - (t2 - t3) * (t2 - t3));
         let q = exact_or_rounded((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
         let r = exact_or_rounded(t * t - u1 * u1);
         (p * q * r).max(0.0).sqrt() / 8.0
-    };
-    // 8 B(j) / (2j+1) = -(T2 u1 - T3 u1 - T (u3 - u2)) with T = t(t+2)
-    let big_b = |t: i128| {
+    }
+
+    /// B(j), from 8 B(j) / (2j+1) = -(T2 u1 - T3 u1 - T (u3 - u2)) with
+    /// T = t(t+2).
+    fn big_b(&self, t: i128) -> f64 {
+        let (t2, t3) = (self.t2, self.t3);
         let tt = t * (t + 2);
-        let inner = t2 * (t2 + 2) * u1 - t3 * (t3 + 2) * u1 - tt * (u3 - u2);
+        let inner = t2 * (t2 + 2) * self.u1 - t3 * (t3 + 2) * self.u1 - tt * (self.u3 - self.u2);
         -exact_or_rounded((t + 1) * inner) / 8.0
+    }
+
+    /// The coefficients at member i, each A computed where it is used.
+    fn abc(&self, i: usize) -> (f64, f64, f64) {
+        let j = self.j_of(i);
+        let a = if i + 1 < self.n {
+            j * self.big_a(self.t_of(i + 1))
+        } else {
+            0.0
+        };
+        let c = if i > 0 {
+            (j + 1.0) * self.big_a(self.t_of(i))
+        } else {
+            0.0
+        };
+        (a, self.big_b(self.t_of(i)), c)
+    }
+}
+
+/// `(j1, j2, j3; m1, m2, m3)` for every allowed j1 (doubled arguments;
+/// `m1 = -m2 - m3`).
+pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
+    let Some(r) = ThreeJOverJ1::new(tj2, tj3, tm2, tm3) else {
+        return Family::empty();
     };
-    // j A(j+1) f(j+1) + B(j) f(j) + (j+1) A(j) f(j-1) = 0, each A once
-    let a_of: Vec<f64> = (0..=n).map(|i| big_a(t_of(i))).collect();
+    let n = r.n;
+    // each A once
+    let a_of: Vec<f64> = (0..=n).map(|i| r.big_a(r.t_of(i))).collect();
     let abc = |i: usize| {
-        let j = j_of(i);
+        let j = r.j_of(i);
         let a = if i + 1 < n { j * a_of[i + 1] } else { 0.0 };
         let c = if i > 0 { (j + 1.0) * a_of[i] } else { 0.0 };
-        (a, big_b(t_of(i)), c)
+        (a, r.big_b(r.t_of(i)), c)
     };
-    let weight = |i: usize| 2.0 * j_of(i) + 1.0;
+    let weight = |i: usize| 2.0 * r.j_of(i) + 1.0;
     // the stretched member j1 = j2 + j3 has the sign (-1)^(j2-j3-m1)
-    let e = (tj2 - tj3 - tm1) / 2;
+    let e = (tj2 - tj3 + tm2 + tm3) / 2;
     let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
     Family {
-        first: lo,
+        first: r.lo,
         values: solve(n, abc, weight, last_sign),
     }
+}
+
+/// Members on each side of a target whose largest must not exceed ten
+/// times the target for it to be trusted (as `float::trusted_member`).
+const TRUST_WINDOW: usize = 8;
+
+/// One member of a family by backward recursion from its top member,
+/// whose value `top` is known: O(distance from the top). The run is
+/// stable through the upper non-classical region (values grow downward)
+/// and the classical one (`b^2 < 4ac`, oscillation); `None` once it
+/// would enter the lower non-classical region (where the wanted solution
+/// decays downward and the recursion loses it), or when the member is
+/// small beside its neighbours.
+fn member_from_top(
+    n: usize,
+    abc: impl Fn(usize) -> (f64, f64, f64),
+    target: usize,
+    top: f64,
+) -> Option<f64> {
+    if target >= n || top == 0.0 || !top.is_finite() {
+        return None;
+    }
+    if target == n - 1 {
+        return Some(top);
+    }
+    let stop = target.saturating_sub(TRUST_WINDOW);
+    let mut g = vec![0.0f64; n - stop];
+    let at = |i: usize| i - stop;
+    g[at(n - 1)] = 1.0;
+    let (_, bn, cn) = abc(n - 1);
+    if cn == 0.0 {
+        return None;
+    }
+    g[at(n - 2)] = -bn / cn;
+    // rescalings by 2^-RESCALE_BITS, exact, counted
+    let mut rescaled = 0i32;
+    let mut classical = false;
+    let mut i = n - 2;
+    while i > stop {
+        let (a, b, c) = abc(i);
+        if c == 0.0 {
+            return None;
+        }
+        let oscillating = b * b < 4.0 * a * c;
+        if classical && !oscillating && i <= target + TRUST_WINDOW {
+            // left the classical region below: the lower non-classical one
+            return None;
+        }
+        classical |= oscillating;
+        g[at(i - 1)] = -(b * g[at(i)] + a * g[at(i + 1)]) / c;
+        if g[at(i - 1)].abs() > pow2(RESCALE_BITS) {
+            g.iter_mut().for_each(|v| *v *= pow2(-RESCALE_BITS));
+            rescaled += 1;
+        }
+        i -= 1;
+    }
+    let v = g[at(target)];
+    let window =
+        &g[at(target).saturating_sub(TRUST_WINDOW)..(at(target) + TRUST_WINDOW + 1).min(g.len())];
+    let local = window.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+    if v == 0.0 || v.abs() < 0.1 * local {
+        return None;
+    }
+    // g is the family divided by its top member and by 2^(RESCALE_BITS
+    // rescaled): the member is top * v * 2^(RESCALE_BITS rescaled), formed
+    // on mantissas and exponents so that nothing overflows on the way
+    let (et, ev) = (exponent(top), exponent(v));
+    let mantissas = (top * pow2(-et)) * (v * pow2(-ev));
+    let e = et + ev + RESCALE_BITS * rescaled;
+    let out = if e > 1000 {
+        f64::INFINITY
+    } else if e < -1070 {
+        0.0
+    } else {
+        mantissas * pow2((e / 2).clamp(-1022, 1023)) * pow2((e - e / 2).clamp(-1022, 1023))
+    };
+    (out.is_finite() && out != 0.0).then_some(out)
+}
+
+/// Bits of one rescaling in `member_from_top`.
+const RESCALE_BITS: i32 = 500;
+
+/// `(j1, j2, j3; -m2-m3, m2, m3)` for one j1 by the recursion over j1
+/// from its stretched top `j2 + j3` (a single term, `top`); `None` where
+/// `member_from_top` declines.
+pub fn three_j_member_from_top(
+    tj1: i64,
+    tj2: i64,
+    tj3: i64,
+    tm2: i64,
+    tm3: i64,
+    top: f64,
+) -> Option<f64> {
+    let r = ThreeJOverJ1::new(tj2, tj3, tm2, tm3)?;
+    if tj1 < r.lo || (tj1 - r.lo) % 2 != 0 {
+        return None;
+    }
+    let target = ((tj1 - r.lo) / 2) as usize;
+    member_from_top(r.n, |i| r.abc(i), target, top)
 }
 
 /// `(j1, j2, j3; m1, m2, -m1-m2)` for every allowed m2 with the rest
@@ -357,6 +504,81 @@ pub fn six_j_over_j1_dd(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Fam
     six_j_over_j1_in(tj2, tj3, tl1, tl2, tl3)
 }
 
+/// The recursion of the 6j over its first argument (Schulten and Gordon
+/// 1975): `j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0`, its
+/// coefficients exact integers on doubled values before one rounding.
+struct SixJOverJ1 {
+    lo: i64,
+    n: usize,
+    t: [i128; 5],
+    tl1: i64,
+}
+
+impl SixJOverJ1 {
+    fn new(tj2: i64, tj3: i64, tl1: i64, tl2: i64, tl3: i64) -> Option<SixJOverJ1> {
+        let lo = (tj2 - tj3).abs().max((tl2 - tl3).abs());
+        let hi = (tj2 + tj3).min(tl2 + tl3);
+        // the other two triads must hold and every triad be integral
+        let triad =
+            |a: i64, b: i64, c: i64| (a + b + c) % 2 == 0 && c >= (a - b).abs() && c <= a + b;
+        let fails = lo > hi
+            || (tj2 + tj3 + lo) % 2 != 0
+            || (tl2 + tl3 + lo) % 2 != 0
+            || !triad(tl1, tj2, tl3)
+            || !triad(tl1, tl2, tj3);
+        (!fails).then(|| SixJOverJ1 {
+            lo,
+            n: ((hi - lo) / 2 + 1) as usize,
+            t: [tj2, tj3, tl1, tl2, tl3].map(|x| x as i128),
+            tl1,
+        })
+    }
+
+    fn j_of(&self, i: usize) -> f64 {
+        half(self.lo) + i as f64
+    }
+
+    fn t_of(&self, i: usize) -> i128 {
+        (self.lo + 2 * i as i64) as i128
+    }
+
+    /// 256 E(j)^2 = (t^2-(t2-t3)^2)((t2+t3+2)^2-t^2)(t^2-(s2-s3)^2)((s2+s3+2)^2-t^2),
+    /// taken as two square roots so the product stays within i128.
+    fn big_e<T: FamilyNumber>(&self, t: i128) -> T {
+        let [t2, t3, _, s2, s3] = self.t;
+        let p = (t * t - (t2 - t3) * (t2 - t3)) * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
+        let q = (t * t - (s2 - s3) * (s2 - s3)) * ((s2 + s3 + 2) * (s2 + s3 + 2) - t * t);
+        (T::from_i128(p.max(0)).sqrt() * T::from_i128(q.max(0)).sqrt()) / T::from_f64(16.0)
+    }
+
+    /// F(j) = (2j+1) [JJ(-JJ + A2 + A3 - 2 B1) + B2(JJ + A2 - A3) + B3(JJ - A2 + A3)] / 16
+    /// with JJ = t(t+2) = 4 j(j+1) and likewise for the others.
+    fn big_f<T: FamilyNumber>(&self, t: i128) -> T {
+        let [t2, t3, s1, s2, s3] = self.t;
+        let tt = t * (t + 2);
+        let (a2, a3) = (t2 * (t2 + 2), t3 * (t3 + 2));
+        let (b1, b2, b3) = (s1 * (s1 + 2), s2 * (s2 + 2), s3 * (s3 + 2));
+        let inner = tt * (-tt + a2 + a3 - 2 * b1) + b2 * (tt + a2 - a3) + b3 * (tt - a2 + a3);
+        T::from_i128((t + 1) * inner) / T::from_f64(16.0)
+    }
+
+    /// The coefficients at member i, each E computed where it is used.
+    fn abc(&self, i: usize) -> (f64, f64, f64) {
+        let j = self.j_of(i);
+        let a = if i + 1 < self.n {
+            j * self.big_e::<f64>(self.t_of(i + 1))
+        } else {
+            0.0
+        };
+        let c = if i > 0 {
+            (j + 1.0) * self.big_e::<f64>(self.t_of(i))
+        } else {
+            0.0
+        };
+        (a, self.big_f(self.t_of(i)), c)
+    }
+}
+
 fn six_j_over_j1_in<T: FamilyNumber>(
     tj2: i64,
     tj3: i64,
@@ -364,51 +586,15 @@ fn six_j_over_j1_in<T: FamilyNumber>(
     tl2: i64,
     tl3: i64,
 ) -> Family<T> {
-    let lo = (tj2 - tj3).abs().max((tl2 - tl3).abs());
-    let hi = (tj2 + tj3).min(tl2 + tl3);
-    // the other two triads must hold and every triad be integral
-    let triad = |a: i64, b: i64, c: i64| (a + b + c) % 2 == 0 && c >= (a - b).abs() && c <= a + b;
-    if lo > hi
-        || (tj2 + tj3 + lo) % 2 != 0
-        || (tl2 + tl3 + lo) % 2 != 0
-        || !triad(tl1, tj2, tl3)
-        || !triad(tl1, tl2, tj3)
-    {
+    let Some(r) = SixJOverJ1::new(tj2, tj3, tl1, tl2, tl3) else {
         return Family::empty();
-    }
-    let n = ((hi - lo) / 2 + 1) as usize;
-    let num = T::from_f64;
-    let l1 = half(tl1);
-    let j_of = |i: usize| half(lo) + i as f64;
-    // exact integer coefficients on doubled values, one rounding each
-    let t_of = |i: usize| (lo + 2 * i as i64) as i128;
-    let (t2, t3, s1, s2, s3) = (
-        tj2 as i128,
-        tj3 as i128,
-        tl1 as i128,
-        tl2 as i128,
-        tl3 as i128,
-    );
-    // 256 E(j)^2 = (t^2-(t2-t3)^2)((t2+t3+2)^2-t^2)(t^2-(s2-s3)^2)((s2+s3+2)^2-t^2),
-    // taken as two square roots so the product stays within i128
-    let big_e = |t: i128| {
-        let p = (t * t - (t2 - t3) * (t2 - t3)) * ((t2 + t3 + 2) * (t2 + t3 + 2) - t * t);
-        let q = (t * t - (s2 - s3) * (s2 - s3)) * ((s2 + s3 + 2) * (s2 + s3 + 2) - t * t);
-        (T::from_i128(p.max(0)).sqrt() * T::from_i128(q.max(0)).sqrt()) / num(16.0)
     };
-    // F(j) = (2j+1) [JJ(-JJ + A2 + A3 - 2 B1) + B2(JJ + A2 - A3) + B3(JJ - A2 + A3)] / 16
-    // with JJ = t(t+2) = 4 j(j+1) and likewise for the others
-    let big_f = |t: i128| {
-        let tt = t * (t + 2);
-        let (a2, a3) = (t2 * (t2 + 2), t3 * (t3 + 2));
-        let (b1, b2, b3) = (s1 * (s1 + 2), s2 * (s2 + 2), s3 * (s3 + 2));
-        let inner = tt * (-tt + a2 + a3 - 2 * b1) + b2 * (tt + a2 - a3) + b3 * (tt - a2 + a3);
-        T::from_i128((t + 1) * inner) / num(16.0)
-    };
-    // j E(j+1) f(j+1) + F(j) f(j) + (j+1) E(j) f(j-1) = 0, each E once
-    let e_of: Vec<T> = (0..=n).map(|i| big_e(t_of(i))).collect();
+    let (n, num) = (r.n, T::from_f64);
+    let l1 = half(r.tl1);
+    // each E once
+    let e_of: Vec<T> = (0..=n).map(|i| r.big_e(r.t_of(i))).collect();
     let abc = |i: usize| {
-        let j = j_of(i);
+        let j = r.j_of(i);
         let a = if i + 1 < n {
             num(j) * e_of[i + 1]
         } else {
@@ -419,16 +605,33 @@ fn six_j_over_j1_in<T: FamilyNumber>(
         } else {
             num(0.0)
         };
-        (a, big_f(t_of(i)), c)
+        (a, r.big_f(r.t_of(i)), c)
     };
-    let weight = |i: usize| num((2.0 * j_of(i) + 1.0) * (2.0 * l1 + 1.0));
+    let weight = |i: usize| num((2.0 * r.j_of(i) + 1.0) * (2.0 * l1 + 1.0));
     // the last member has the sign (-1)^(j2+j3+l2+l3)
     let e = (tj2 + tj3 + tl2 + tl3) / 2;
     let last_sign = if e.rem_euclid(2) == 0 { 1.0 } else { -1.0 };
     Family {
-        first: lo,
+        first: r.lo,
         values: solve(n, abc, weight, last_sign),
     }
+}
+
+/// `{j1, j2, j3; l1, l2, l3}` for one j1 by the recursion over j1 from the
+/// top of its range, whose value `top` is given; `None` where
+/// `member_from_top` declines. `top_j1` gives the doubled top j1.
+pub fn six_j_member_from_top(t: [i64; 6], top: f64) -> Option<f64> {
+    let r = SixJOverJ1::new(t[1], t[2], t[3], t[4], t[5])?;
+    if t[0] < r.lo || (t[0] - r.lo) % 2 != 0 {
+        return None;
+    }
+    let target = ((t[0] - r.lo) / 2) as usize;
+    member_from_top(r.n, |i| r.abc(i), target, top)
+}
+
+/// The doubled top of the range of the first argument of a 6j.
+pub fn six_j_top_j1(t: [i64; 6]) -> i64 {
+    (t[1] + t[2]).min(t[4] + t[5])
 }
 
 #[cfg(test)]

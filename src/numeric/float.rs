@@ -400,6 +400,19 @@ fn three_j_by_family(tj: [i64; 3], tm: [i64; 3]) -> Option<f64> {
     {
         return None;
     }
+    // first: recursion from the stretched top of the column nearest it
+    // (O(distance), the top a single Racah term)
+    let near = (0..3).min_by_key(|&k| tj[(k + 1) % 3] + tj[(k + 2) % 3] - tj[k])?;
+    let (b, c) = ((near + 1) % 3, (near + 2) % 3);
+    let top = three_j_single_sum_f64(
+        [tj[b] + tj[c], tj[b], tj[c]],
+        [-tm[b] - tm[c], tm[b], tm[c]],
+    );
+    if let Some(v) =
+        super::family::three_j_member_from_top(tj[near], tj[b], tj[c], tm[b], tm[c], top)
+    {
+        return Some(v);
+    }
     let k = (0..3).min_by_key(|&k| {
         let (b, c) = ((k + 1) % 3, (k + 2) % 3);
         tj[b] + tj[c] - (tj[b] - tj[c]).abs().max(tm[k].abs())
@@ -433,6 +446,17 @@ fn six_j_by_family(t: [i64; 6]) -> Option<f64> {
         return None;
     }
     let moved = |p: usize| super::family::six_j_with_first(t, p);
+    // first: recursion from the top of the argument nearest its top
+    // (O(distance), the top a single Racah term)
+    let near = (0..6)
+        .map(moved)
+        .min_by_key(|u| super::family::six_j_top_j1(*u) - u[0])?;
+    let mut top_args = near;
+    top_args[0] = super::family::six_j_top_j1(near);
+    let top = six_j_single_sum_f64(top_args);
+    if let Some(v) = super::family::six_j_member_from_top(near, top) {
+        return Some(v);
+    }
     let length = |u: &[i64; 6]| {
         (u[1] + u[2]).min(u[4] + u[5]) - (u[1] - u[2]).abs().max((u[4] - u[5]).abs())
     };
