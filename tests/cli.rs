@@ -247,6 +247,40 @@ fn graph_dot_and_json() {
 }
 
 #[test]
+fn graph_pictures_through_graphviz() {
+    // two terms: one picture, each term a labelled cluster
+    let input =
+        "sum(m1, m2: (a, b, c; m1, m2, m3) (a, b, c; -m1, -m2, -m3)) + (d, e, f; m4, m5, m6)";
+    let (code, out, _) = run(&["graph", input], None);
+    assert_eq!(code, 0);
+    assert_eq!(out.matches("graph recoup {").count(), 1, "{out}");
+    assert!(
+        out.contains("subgraph cluster_0") && out.contains("subgraph cluster_1"),
+        "{out}"
+    );
+    assert!(
+        out.contains("label=\"term 2: (d, e, f; m4, m5, m6)\""),
+        "{out}"
+    );
+    assert!(out.contains("taillabel=\"1\", headlabel=\"1\""), "{out}");
+    // rendered by Graphviz's dot where it is installed (CI installs
+    // Debian's graphviz), else a message that names the package
+    let has_dot = std::process::Command::new("dot")
+        .arg("-V")
+        .stderr(Stdio::null())
+        .status()
+        .is_ok_and(|s| s.success());
+    let (code, out, err) = run(&["graph", input, "--svg"], None);
+    if has_dot {
+        assert_eq!(code, 0, "{err}");
+        assert!(out.contains("<svg") && out.contains("term 1"), "{out}");
+    } else {
+        assert_eq!(code, 2);
+        assert!(err.contains("graphviz"), "{err}");
+    }
+}
+
+#[test]
 fn simplify_reduces_a_projection_sum_with_a_trace() {
     // three-3j-contraction (Edmonds 6.2.8) written with CGs
     let (code, out, _) = run(

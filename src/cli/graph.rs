@@ -1,5 +1,6 @@
 //! `recoup graph EXPR`: the projection-sum graph of each term, as
-//! Graphviz DOT or JSON.
+//! Graphviz DOT (several terms as clusters of one picture), JSON, or a
+//! picture rendered by Graphviz's `dot` (`--svg`, `--png`).
 
 use super::{out, outln, parse_expr, read_arg, Failure, Io};
 use crate::graph::dot;
@@ -11,8 +12,43 @@ pub struct GraphArgs {
     #[arg(allow_hyphen_values = true)]
     expr: String,
     /// print vertices and lines as JSON instead of DOT
-    #[arg(long)]
+    #[arg(long, conflicts_with_all = ["svg", "png"])]
     json: bool,
+    /// render the picture as SVG through Graphviz's dot program
+    #[arg(long, conflicts_with = "png")]
+    svg: bool,
+    /// render the picture as PNG through Graphviz's dot program
+    #[arg(long)]
+    png: bool,
+}
+
+/// The picture rendered by Graphviz's `dot` in the given format.
+fn render(dot_text: &str, format: &str) -> Result<Vec<u8>, Failure> {
+    use std::io::Write;
+    use std::process::{Command, Stdio};
+    let missing = || {
+        Failure::input(format!(
+            "--{format} needs Graphviz's dot program, which is not installed (Debian: apt-get install graphviz); without it, recoup graph prints the DOT text"
+        ))
+    };
+    let mut child = Command::new("dot")
+        .arg(format!("-T{format}"))
+        .stdin(Stdio::piped())
+        .stdout(Stdio::piped())
+        .stderr(Stdio::piped())
+        .spawn()
+        .map_err(|_| missing())?;
+    if let Some(mut stdin) = child.stdin.take() {
+        stdin.write_all(dot_text.as_bytes())?;
+    }
+    let out = child.wait_with_output()?;
+    if !out.status.success() {
+        return Err(Failure::internal(format!(
+            "Graphviz's dot failed on recoup's picture: {}",
+            String::from_utf8_lossy(&out.stderr).trim()
+        )));
+    }
+    Ok(out.stdout)
 }
 
 pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
@@ -32,13 +68,15 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
     if a.json {
         let terms: Vec<serde_json::Value> = e.terms.iter().map(dot::json).collect();
         outln!(io, "{}", serde_json::json!({ "terms": terms }))?;
+        return Ok(());
+    }
+    // one picture: several terms as labelled clusters
+    let text = dot::dot_terms(&e.terms);
+    if a.svg || a.png {
+        let bytes = render(&text, if a.svg { "svg" } else { "png" })?;
+        io.out.write_all(&bytes)?;
     } else {
-        for (i, t) in e.terms.iter().enumerate() {
-            if e.terms.len() > 1 {
-                outln!(io, "// term {}: {}", i + 1, crate::syntax::print_term(t))?;
-            }
-            out!(io, "{}", dot::dot(t))?;
-        }
+        out!(io, "{text}")?;
     }
     Ok(())
 }

@@ -452,10 +452,12 @@ impl Term {
         if !self.bound.is_empty() || !self.phase.is_zero() || !self.root.is_one() {
             return None;
         }
-        let c = Q::new(self.coef.numer().to_i64()?, self.coef.denom().to_i64()?);
-        if c.numer().abs() > (1 << 40) || *c.denom() > (1 << 40) {
+        // bounds first: Q::new and abs overflow at i64::MIN
+        let (n, d) = (self.coef.numer().to_i64()?, self.coef.denom().to_i64()?);
+        if n.unsigned_abs() > (1 << 40) || d.unsigned_abs() > (1 << 40) {
             return None;
         }
+        let c = Q::new(n, d);
         match self.factors.as_slice() {
             [] => Some(Lin::constant(c)),
             [Factor::Power(l, e)] if *e == Q::one() => Some(l.scale(c)),

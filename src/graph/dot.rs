@@ -1,19 +1,24 @@
 //! Drawing a projection-sum graph: Graphviz DOT with the j of each line as
 //! its label, an arrow from the `+m` end to the `-m` end, vertex signs
-//! (`+` for the written column order) and external legs; and the same as
-//! JSON.
+//! (`+` for the written column order) with the column number (1, 2, 3) at
+//! each line end, external legs, a legend, several terms as clusters of
+//! one picture; and the same as JSON.
 
 use super::Graph;
 use crate::expr::Term;
 
-/// DOT text of the graph of a term.
-pub fn dot(t: &Term) -> String {
+/// The legend drawn under every picture.
+const LEGEND: &str = "each vertex is a 3j symbol; the numbers 1, 2, 3 at its line ends are its columns in the order written (the + sign); a line is a summed projection, labelled j (m), drawn from its +m end to its -m end, dashed where both ends carry the same sign; a dot ends a free leg";
+
+/// The vertices, lines and legs of one term's graph, with node names
+/// prefixed by `p` (so several terms can share a picture).
+fn body(t: &Term, p: &str) -> String {
     let g = Graph::of_term(t);
-    let mut s = String::from("graph recoup {\n  node [shape=circle, fontsize=10];\n");
+    let mut s = String::new();
     for (i, v) in g.vertices.iter().enumerate() {
         let js: Vec<String> = v.cols.iter().map(|(j, _)| j.to_string()).collect();
         s.push_str(&format!(
-            "  v{i} [label=\"+\", xlabel=\"({})\"];\n",
+            "  {p}v{i} [label=\"+\", xlabel=\"({})\"];\n",
             js.join(", ")
         ));
     }
@@ -24,18 +29,61 @@ pub fn dot(t: &Term) -> String {
             "dir=none, style=dashed"
         };
         s.push_str(&format!(
-            "  v{} -- v{} [label=\"{} ({})\", {dir}];\n",
-            l.tail.0, l.head.0, l.j, l.var
+            "  {p}v{} -- {p}v{} [label=\"{} ({})\", taillabel=\"{}\", headlabel=\"{}\", {dir}];\n",
+            l.tail.0,
+            l.head.0,
+            l.j,
+            l.var,
+            l.tail.1 + 1,
+            l.head.1 + 1
         ));
     }
     for (k, leg) in g.legs.iter().enumerate() {
         s.push_str(&format!(
-            "  e{k} [shape=point];\n  v{} -- e{k} [label=\"{} ({})\"];\n",
-            leg.vertex, leg.j, leg.m
+            "  {p}e{k} [shape=point];\n  {p}v{} -- {p}e{k} [label=\"{} ({})\", taillabel=\"{}\"];\n",
+            leg.vertex,
+            leg.j,
+            leg.m,
+            leg.slot + 1
         ));
     }
     for n in &g.notes {
         s.push_str(&format!("  // {n}\n"));
+    }
+    s
+}
+
+fn quoted(text: &str) -> String {
+    text.replace('\\', "\\\\").replace('"', "\\\"")
+}
+
+/// DOT text of the graph of a term.
+pub fn dot(t: &Term) -> String {
+    dot_terms(std::slice::from_ref(t))
+}
+
+/// DOT text of one picture: one term as it is, several terms as labelled
+/// clusters side by side; a legend under it.
+pub fn dot_terms(terms: &[Term]) -> String {
+    let mut s = String::from(
+        "graph recoup {\n  node [shape=circle, fontsize=10];\n  edge [fontsize=10, labelfontsize=9];\n",
+    );
+    s.push_str(&format!(
+        "  label=\"{}\";\n  labelloc=b;\n  fontsize=9;\n",
+        quoted(LEGEND)
+    ));
+    if let [t] = terms {
+        s.push_str(&body(t, ""));
+    } else {
+        for (i, t) in terms.iter().enumerate() {
+            s.push_str(&format!(
+                "  subgraph cluster_{i} {{\n  label=\"term {}: {}\";\n",
+                i + 1,
+                quoted(&crate::syntax::print_term(t))
+            ));
+            s.push_str(&body(t, &format!("t{i}_")));
+            s.push_str("  }\n");
+        }
     }
     s.push_str("}\n");
     s
