@@ -714,19 +714,10 @@ fn the_reported_defects_stay_fixed() {
         ),
         (&["eval", "(47/2, 551/2, 293; -3/2, -273/2, 138)"], "", 0),
         (&["eval", "{32, 21/2, 51/2; 22, 43/2, 33/2}"], "", 0),
-        // a power whose coefficient reached -2^63: its absolute value
-        // overflowed while the term was read as a linear form (exit 4)
-        (
-            &[
-                "eval",
-                "(<a, q-mx; j2, 2*m1 | j1-d, mx+1/2> * <(b, a) J || T[0] @ b || (b, a') J> + delta(j12+2, j12) - <-x, 1; c-j1, m1 | d, 2*m1> * hat(3/2) * tri(-a, y'+1/2, j1))^64 / {c, J, 5/2; j2-y', 2*j2, j12+1/2; j1, 1048577, -j2} / hat(c) + (k-y', d, -j1; 2*m, 1/2, m+2)",
-                "--at",
-                "k=1048577,m=-1/2,d=4294967297",
-                "--float",
-            ],
-            "",
-            2,
-        ),
+        // a coefficient of -2^63: its absolute value overflowed while the
+        // lowering and the linear-form reading checked its size (exit 4)
+        (&["eval", "(-2)^63 * x", "--at", "x=1"], "", 2),
+        (&["eval", "x + (-2)^63 * y", "--at", "x=1,y=1"], "", 2),
     ];
     for (args, stdin, want) in cases {
         let args: Vec<String> = args.iter().map(|s| s.to_string()).collect();

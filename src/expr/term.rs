@@ -748,3 +748,18 @@ pub fn rational_to_i64(q: &BigRational) -> Option<i64> {
 pub fn is_negative(q: &BigRational) -> bool {
     q.is_negative()
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_coefficient_of_minus_two_to_the_63_is_not_linear_and_does_not_overflow() {
+        let x = Lin::var(Name::new("x"));
+        let mut t = Term::factor(Factor::Power(x, Q::one()));
+        t.coef = BigRational::from_integer(num_bigint::BigInt::from(i64::MIN));
+        assert_eq!(t.as_linear(), None);
+        t.coef = BigRational::from_integer(num_bigint::BigInt::from(-3));
+        assert!(t.as_linear().is_some());
+    }
+}

@@ -88,7 +88,8 @@ impl BigLin {
 fn small_q(q: &BigRational) -> Option<Q> {
     let n = q.numer().to_i64()?;
     let d = q.denom().to_i64()?;
-    if n.abs() > LIN_LIMIT || d > LIN_LIMIT {
+    // unsigned magnitudes: abs overflows at i64::MIN
+    if n.unsigned_abs() > LIN_LIMIT.unsigned_abs() || d > LIN_LIMIT {
         return None;
     }
     Some(Q::new(n, d))
