@@ -7,8 +7,12 @@
 use super::Graph;
 use crate::expr::Term;
 
-/// The legend drawn under every picture.
-const LEGEND: &str = "each vertex is a 3j symbol; the numbers 1, 2, 3 at its line ends are its columns in the order written (the + sign); a line is a summed projection, labelled j (m), drawn from its +m end to its -m end, dashed where both ends carry the same sign; a dot ends a free leg";
+/// The legend drawn under every picture, a line each.
+const LEGEND: [&str; 3] = [
+    "each vertex is a 3j symbol; the numbers 1, 2, 3 at its line ends are its columns in the order written (the + sign)",
+    "a line is a summed projection, labelled j (m), drawn from its +m end to its -m end, dashed where both ends carry the same sign",
+    "a dot ends a free leg",
+];
 
 /// The vertices, lines and legs of one term's graph, with node names
 /// prefixed by `p` (so several terms can share a picture).
@@ -68,9 +72,11 @@ pub fn dot_terms(terms: &[Term]) -> String {
     let mut s = String::from(
         "graph recoup {\n  node [shape=circle, fontsize=10];\n  edge [fontsize=10, labelfontsize=9];\n",
     );
+    // one line of the legend each, joined by DOT's line break
+    let legend: Vec<String> = LEGEND.iter().map(|l| quoted(l)).collect();
     s.push_str(&format!(
         "  label=\"{}\";\n  labelloc=b;\n  fontsize=9;\n",
-        quoted(LEGEND)
+        legend.join("\\n")
     ));
     if let [t] = terms {
         s.push_str(&body(t, ""));
