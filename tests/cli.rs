@@ -270,6 +270,16 @@ fn graph_pictures_through_graphviz() {
         .stderr(Stdio::null())
         .status()
         .is_ok_and(|s| s.success());
+    // no summed projection: said, not drawn as lone vertices
+    let (code, out, err) = run(
+        &["graph", "(a, b, c; m1, m2, m3) (d, e, f; m4, m5, m6)"],
+        None,
+    );
+    assert_eq!(code, 2);
+    assert!(
+        out.is_empty() && err.contains("no projection is summed"),
+        "{err}"
+    );
     let (code, out, err) = run(&["graph", input, "--svg"], None);
     if has_dot {
         assert_eq!(code, 0, "{err}");

@@ -65,6 +65,15 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
             "nothing to draw: the expression has no 3j symbol or Clebsch-Gordan coefficient, so it has no projection-sum graph",
         ));
     }
+    let has_line = e
+        .terms
+        .iter()
+        .any(|t| !crate::graph::Graph::of_term(t).lines.is_empty());
+    if !has_line {
+        return Err(Failure::input(
+            "nothing to draw: no projection is summed between two 3j symbols or Clebsch-Gordan coefficients, so the projection-sum graph has no lines (each symbol would be a lone vertex)",
+        ));
+    }
     if a.json {
         let terms: Vec<serde_json::Value> = e.terms.iter().map(dot::json).collect();
         outln!(io, "{}", serde_json::json!({ "terms": terms }))?;
