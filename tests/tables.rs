@@ -456,3 +456,21 @@ fn six_j_files_read_back_and_list_records() {
     );
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+#[test]
+fn a_table_past_its_time_limit_stops_with_exit_3_and_leaves_no_file() {
+    let path = std::env::temp_dir().join(format!("recoup-late-{}.r3j", std::process::id()));
+    let (code, out, err) = run(&[
+        "tabulate",
+        "3j",
+        "--max-j",
+        "60",
+        "--time-limit",
+        "0.05",
+        "-o",
+        path.to_str().unwrap(),
+    ]);
+    assert_eq!(code, 3, "{out} {err}");
+    assert!(out.is_empty() && err.contains("time limit"), "{err}");
+    assert!(!path.exists(), "a partial table was left behind");
+}
