@@ -141,8 +141,8 @@ fn past_deadline() -> bool {
 
 pub fn run(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     match a.symbol {
-        Symbol::ThreeJ => run_three_j(a, io),
-        Symbol::SixJ => run_six_j(a, io),
+        Symbol::ThreeJ => removing_on_failure(a, io, run_three_j),
+        Symbol::SixJ => removing_on_failure(a, io, run_six_j),
     }
 }
 
@@ -183,13 +183,28 @@ fn check_entries(entries: u64, layout: Layout) -> Result<(), Failure> {
     Ok(())
 }
 
-fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
+/// Removes the output file when a run fails after creating it (a write
+/// error, the time limit), so that no partial table is left behind.
+fn removing_on_failure(
+    a: TabulateArgs,
+    io: &mut Io,
+    run: fn(&TabulateArgs, &mut Io) -> Result<(), Failure>,
+) -> Result<(), Failure> {
+    let existed = a.output.exists();
+    let result = run(&a, io);
+    if result.is_err() && !existed && a.output.is_file() {
+        let _ = std::fs::remove_file(&a.output);
+    }
+    result
+}
+
+fn run_six_j(a: &TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     use crate::table::six_j::{self, SixJDomain, SixJNumbering};
     let domain = SixJDomain {
         max_t: max_doubled_j(&a.max_j)?,
         integer_only: a.integer_j,
     };
-    let layout = layout_of(&a);
+    let layout = layout_of(a);
     let started = Instant::now();
     let numbering = SixJNumbering::new(domain);
     check_positions("6j", &a.max_j, numbering.len())?;
@@ -217,7 +232,7 @@ fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     };
     conclude(
         io,
-        &a,
+        a,
         w,
         finished,
         Summary {
@@ -231,12 +246,12 @@ fn run_six_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     )
 }
 
-fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
+fn run_three_j(a: &TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     let domain = Domain {
         max_tj: max_doubled_j(&a.max_j)?,
         integer_only: a.integer_j,
     };
-    let layout = layout_of(&a);
+    let layout = layout_of(a);
     let started = Instant::now();
     let numbering = Numbering::new(domain.max_sum());
     check_positions("3j", &a.max_j, numbering.len())?;
@@ -259,7 +274,7 @@ fn run_three_j(a: TabulateArgs, io: &mut Io) -> Result<(), Failure> {
     };
     conclude(
         io,
-        &a,
+        a,
         w,
         finished,
         Summary {
@@ -307,8 +322,6 @@ fn conclude(
 ) -> Result<(), Failure> {
     w.flush()?;
     if !finished {
-        drop(w);
-        let _ = std::fs::remove_file(&a.output);
         return Err(time_up());
     }
     outln!(
