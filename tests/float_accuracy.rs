@@ -14,6 +14,14 @@ fn rel(f: f64, e: f64) -> f64 {
 }
 
 /// A random admissible 3j with all three j near `j` (doubled values).
+/// Asserts a float within 1e-13 (relative) of its exact value, keeping
+/// the worst error seen.
+fn within_1e_13(what: &dyn std::fmt::Display, float: f64, exact: f64, worst: &mut f64) {
+    let r = rel(float, exact);
+    assert!(r <= 1e-13, "{what}: {float} vs {exact}");
+    *worst = worst.max(r);
+}
+
 fn random_3j(rng: &mut Rng, j: i64) -> ([i64; 3], [i64; 3]) {
     loop {
         let spread = (j / 5).max(1) as u64;
@@ -66,20 +74,13 @@ fn three_j_six_j_and_cg_stay_within_1e_13_up_to_j_10000() {
             let (tj, tm) = random_3j(&mut rng, j);
             let e = exact::three_j(tj, tm).to_f64();
             let f = float::three_j_f64(tj, tm);
-            let r = rel(f, e);
-            assert!(r <= 1e-13, "3j {tj:?} {tm:?}: {f} vs {e}");
-            worst = worst.max(r);
+            within_1e_13(&format!("3j {tj:?} {tm:?}"), f, e, &mut worst);
             let cg_e = exact::clebsch_gordan(tj[0], tm[0], tj[1], tm[1], tj[2], -tm[2]).to_f64();
             let cg_f = float::clebsch_gordan_f64(tj[0], tm[0], tj[1], tm[1], tj[2], -tm[2]);
-            let r = rel(cg_f, cg_e);
-            assert!(r <= 1e-13, "cg {tj:?} {tm:?}: {cg_f} vs {cg_e}");
-            worst = worst.max(r);
+            within_1e_13(&format!("cg {tj:?} {tm:?}"), cg_f, cg_e, &mut worst);
             let s = random_6j(&mut rng, j);
             let e = exact::six_j(s).to_f64();
-            let f = float::six_j_f64(s);
-            let r = rel(f, e);
-            assert!(r <= 1e-13, "6j {s:?}: {f} vs {e}");
-            worst = worst.max(r);
+            within_1e_13(&format!("6j {s:?}"), float::six_j_f64(s), e, &mut worst);
         }
     }
     eprintln!("largest relative error seen (3j, CG, 6j up to j = 10^4): {worst:e}");
@@ -178,10 +179,12 @@ fn three_j_from_the_top_is_within_1e_13() {
         let j = 200 + (n % 6) as i64 * 250;
         let (tj, tm) = random_3j(&mut rng, j);
         let e = exact::three_j(tj, tm).to_f64();
-        let f = float::three_j_f64(tj, tm);
-        let r = rel(f, e);
-        assert!(r <= 1e-13, "3j {tj:?} {tm:?}: {f} vs {e}");
-        worst = worst.max(r);
+        within_1e_13(
+            &format!("3j {tj:?} {tm:?}"),
+            float::three_j_f64(tj, tm),
+            e,
+            &mut worst,
+        );
     }
     eprintln!("largest relative error seen (3j, j ~ 200..1500): {worst:e}");
 }
@@ -198,10 +201,7 @@ fn six_j_from_the_top_is_within_1e_13() {
         let j = 200 + (n % 5) as i64 * 250;
         let t = random_6j(&mut rng, j);
         let e = exact::six_j(t).to_f64();
-        let f = float::six_j_f64(t);
-        let r = rel(f, e);
-        assert!(r <= 1e-13, "6j {t:?}: {f} vs {e}");
-        worst = worst.max(r);
+        within_1e_13(&format!("6j {t:?}"), float::six_j_f64(t), e, &mut worst);
     }
     eprintln!("largest relative error seen (6j, j ~ 200..1200): {worst:e}");
 }

@@ -323,9 +323,28 @@ pub fn three_j_over_j1(tj2: i64, tj3: i64, tm2: i64, tm3: i64) -> Family {
     }
 }
 
-/// Members on each side of a target whose largest must not exceed ten
-/// times the target for it to be trusted (as `float::trusted_member`).
-const TRUST_WINDOW: usize = 8;
+/// Members on each side of a member that set its local amplitude.
+pub const NEIGHBOURS: usize = 8;
+
+/// A member is trusted at this fraction of its local amplitude or more
+/// (members near a zero of the family lose relative accuracy in the
+/// recursion, in proportion to the local amplitude over their own size).
+pub const TRUST_FRACTION: f64 = 0.1;
+
+/// The largest magnitude among member `i` and its `NEIGHBOURS` on each
+/// side.
+pub fn local_amplitude<T: FamilyNumber>(values: &[T], i: usize) -> f64 {
+    values[i.saturating_sub(NEIGHBOURS)..(i + NEIGHBOURS + 1).min(values.len())]
+        .iter()
+        .fold(0.0f64, |m, v| m.max(v.approx().abs()))
+}
+
+/// Whether member `i` is nonzero and at least `TRUST_FRACTION` of its
+/// local amplitude.
+pub fn trusted(values: &[f64], i: usize) -> bool {
+    let v = values[i];
+    v != 0.0 && v.abs() >= TRUST_FRACTION * local_amplitude(values, i)
+}
 
 /// One member of a family by backward recursion from its top member,
 /// whose value `top` is known: O(distance from the top). The run is
@@ -346,7 +365,7 @@ fn member_from_top(
     if target == n - 1 {
         return Some(top);
     }
-    let stop = target.saturating_sub(TRUST_WINDOW);
+    let stop = target.saturating_sub(NEIGHBOURS);
     let mut g = vec![0.0f64; n - stop];
     let at = |i: usize| i - stop;
     g[at(n - 1)] = 1.0;
@@ -365,7 +384,7 @@ fn member_from_top(
             return None;
         }
         let oscillating = b * b < 4.0 * a * c;
-        if classical && !oscillating && i <= target + TRUST_WINDOW {
+        if classical && !oscillating && i <= target + NEIGHBOURS {
             // left the classical region below: the lower non-classical one
             return None;
         }
@@ -378,10 +397,7 @@ fn member_from_top(
         i -= 1;
     }
     let v = g[at(target)];
-    let window =
-        &g[at(target).saturating_sub(TRUST_WINDOW)..(at(target) + TRUST_WINDOW + 1).min(g.len())];
-    let local = window.iter().fold(0.0f64, |m, x| m.max(x.abs()));
-    if v == 0.0 || v.abs() < 0.1 * local {
+    if !trusted(&g, at(target)) {
         return None;
     }
     // g is the family divided by its top member and by 2^(RESCALE_BITS
@@ -619,7 +635,7 @@ fn six_j_over_j1_in<T: FamilyNumber>(
 
 /// `{j1, j2, j3; l1, l2, l3}` for one j1 by the recursion over j1 from the
 /// top of its range, whose value `top` is given; `None` where
-/// `member_from_top` declines. `top_j1` gives the doubled top j1.
+/// `member_from_top` declines.
 pub fn six_j_member_from_top(t: [i64; 6], top: f64) -> Option<f64> {
     let r = SixJOverJ1::new(t[1], t[2], t[3], t[4], t[5])?;
     if t[0] < r.lo || (t[0] - r.lo) % 2 != 0 {

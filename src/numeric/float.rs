@@ -381,15 +381,6 @@ fn three_j_xf(tj: [i64; 3], tm: [i64; 3]) -> Xf {
 /// O(j) big-number work per value there.
 pub const FAMILY_FROM_DOUBLED_J: i64 = 400;
 
-/// A member of its family is trusted when at least this fraction of the
-/// largest magnitude among its neighbours (members near a zero of the
-/// family lose relative accuracy in the recursion, in proportion to the
-/// local amplitude over their own size, and take the single-sum path).
-const FAMILY_TRUST: f64 = 1e-1;
-
-/// Members on each side that set the local amplitude.
-const FAMILY_WINDOW: usize = 8;
-
 /// The 3j from its shortest family over one column (cyclic permutations
 /// are even), or `None` when the member is small in its family or the
 /// symbol is zero by its selection rules.
@@ -427,10 +418,7 @@ fn three_j_by_family(tj: [i64; 3], tm: [i64; 3]) -> Option<f64> {
 pub fn trusted_member(fam: &super::family::Family, t: i64) -> Option<f64> {
     let i = usize::try_from((t - fam.first) / 2).ok()?;
     let v = *fam.values.get(i)?;
-    let window =
-        &fam.values[i.saturating_sub(FAMILY_WINDOW)..(i + FAMILY_WINDOW + 1).min(fam.values.len())];
-    let local = window.iter().fold(0.0f64, |a, x| a.max(x.abs()));
-    (v.abs() >= FAMILY_TRUST * local && v != 0.0).then_some(v)
+    super::family::trusted(&fam.values, i).then_some(v)
 }
 
 /// The 6j from its shortest family over one argument (the argument moved
@@ -607,12 +595,8 @@ fn nine_j_sum<T: FamilyNumber>(
     // each member's error is taken relative to the largest of its
     // neighbours (the family's local amplitude), as `trusted_member` does
     let local = families.each_ref().map(|f| {
-        let n = f.values.len();
-        (0..n)
-            .map(|i| {
-                let w = &f.values[i.saturating_sub(FAMILY_WINDOW)..(i + FAMILY_WINDOW + 1).min(n)];
-                w.iter().fold(0.0f64, |a, v| a.max(v.approx().abs()))
-            })
+        (0..f.values.len())
+            .map(|i| super::family::local_amplitude(&f.values, i))
             .collect::<Vec<f64>>()
     });
     let index = |f: &super::family::Family<T>, x: i64| -> Option<usize> {
