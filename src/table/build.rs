@@ -9,7 +9,9 @@
 //! neighbours) is evaluated on its own (`numeric::float::three_j_f64`).
 
 use super::rank::RankedBits;
-use super::regge::{is_canonical, square_of_key, three_j_of, view_within, Key, Numbering, Square};
+use super::regge::{
+    is_canonical, line_fits, square_of_key, three_j_of, view_within, Key, Numbering, Square,
+};
 use crate::numeric::family::three_j_over_m2;
 use crate::numeric::float::{three_j_f64, trusted_member};
 use rayon::prelude::*;
@@ -44,9 +46,8 @@ impl Domain {
     pub fn holds(&self, sq: &Square) -> bool {
         let sum: i64 = sq[0].iter().sum();
         let (floor, parity) = (self.floor(sum), self.parity(sum));
-        let fits = |x: i64| x >= floor && parity.is_none_or(|p| (x - p).rem_euclid(2) == 0);
-        (0..3).any(|i| (0..3).all(|k| fits(sq[i][k])))
-            || (0..3).any(|k| (0..3).all(|i| fits(sq[i][k])))
+        (0..3).any(|i| line_fits(sq[i], floor, parity))
+            || (0..3).any(|k| line_fits([sq[0][k], sq[1][k], sq[2][k]], floor, parity))
     }
 
     /// A symbol of the orbit within the domain (doubled `j`, `m`) and the

@@ -282,6 +282,15 @@ pub fn is_canonical(k: &Key) -> bool {
     matches!(canonical(&sq), Canonical::At { key, .. } if key == *k)
 }
 
+/// Whether a line of a square reads as a 3j within a bound: every entry
+/// at least `floor` (every doubled j at most `J - floor`) and, with
+/// `parity` `Some(p)`, every entry `≡ p` mod 2 (every j an integer).
+#[inline]
+pub fn line_fits(line: [i64; 3], floor: i64, parity: Option<i64>) -> bool {
+    line.iter()
+        .all(|&x| x >= floor && parity.is_none_or(|p| (x - p).rem_euclid(2) == 0))
+}
+
 /// A view of the orbit as a 3j within a bound: the line whose entries are
 /// all at least `floor` and of `parity` (`Some(p)`: every entry `≡ p`
 /// mod 2), taken as the triangle row, with its columns ordered by
@@ -293,10 +302,7 @@ pub fn view_within(
     parity: Option<i64>,
 ) -> Option<([i64; 3], [i64; 3], i8)> {
     let sum: i64 = sq[0].iter().sum();
-    let fits = |line: [i64; 3]| {
-        line.iter()
-            .all(|&x| x >= floor && parity.is_none_or(|p| (x - p).rem_euclid(2) == 0))
-    };
+    let fits = |line: [i64; 3]| line_fits(line, floor, parity);
     // lines in a fixed order: rows then columns; the first that fits
     for line in 0..6 {
         let transposed = line >= 3;
