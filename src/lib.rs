@@ -19,6 +19,7 @@
 #![allow(clippy::needless_range_loop)]
 
 pub mod algebra;
+pub mod api;
 #[cfg(feature = "cli")]
 pub mod cli;
 pub mod document;

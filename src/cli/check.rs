@@ -73,19 +73,6 @@ pub fn settings(
     })
 }
 
-fn point_json(p: &crate::verify::sample::Point) -> serde_json::Value {
-    let m: serde_json::Map<String, serde_json::Value> = p
-        .iter()
-        .map(|(k, v)| {
-            (
-                k.to_string(),
-                serde_json::Value::String(crate::expr::lin::fmt_q(v)),
-            )
-        })
-        .collect();
-    serde_json::Value::Object(m)
-}
-
 /// How the points were chosen, in words.
 pub fn how(r: &CheckResult, s: &SpotSettings) -> String {
     let domain = if s.triangles_hold {
@@ -126,42 +113,8 @@ pub fn run(a: CheckArgs, io: &mut Io) -> Result<i32, Failure> {
         _ => 1,
     };
     if a.json {
-        let (cx, diag, repaired, side) = match &r.verdict {
-            Verdict::Different {
-                at,
-                lhs,
-                rhs,
-                diagnosis,
-            } => (
-                serde_json::json!({"at": point_json(at), "lhs": lhs.to_string(), "rhs": rhs.to_string()}),
-                diagnosis.as_ref().map(|d| d.text.clone()),
-                diagnosis.as_ref().map(|d| d.repaired.to_string()),
-                diagnosis.as_ref().map(|d| match d.side {
-                    Side::Left => "left",
-                    Side::Right => "right",
-                }),
-            ),
-            _ => (serde_json::Value::Null, None, None, None),
-        };
-        outln!(
-            io,
-            "{}",
-            serde_json::json!({
-                "equal": code == 0,
-                "established": !matches!(r.verdict, Verdict::NotEstablished),
-                "checked": r.checked,
-                "nonzero": r.nonzero,
-                "mismatches": r.mismatches,
-                "broken_triads": r.broken_triads,
-                "exhaustive": r.domain.is_some(),
-                "declared": super::simplify::declared_text(),
-                "domain_points": r.domain,
-                "counterexample": cx,
-                "diagnosis": diag,
-                "repaired": repaired,
-                "repaired_side": side,
-            })
-        )?;
+        let report = crate::api::CheckReport::of(&r, super::simplify::declared_text());
+        outln!(io, "{}", super::json_text(&report)?)?;
         return Ok(code);
     }
     write_verdict(io, &r, &s, "")?;

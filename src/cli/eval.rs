@@ -1,8 +1,6 @@
 //! `recoup eval`: one expression, or `--batch` lines from standard input.
 
-use super::input::{
-    decode, explain_phase, parse_expr, read_arg, summed_declaration_problem, validate_literals,
-};
+use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
 use super::{outln, Failure, Io};
 use crate::expr::{Name, Q};
 use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
@@ -128,11 +126,11 @@ fn values(
 }
 
 fn json_line(exact: &Option<Surd>, f: f64) -> String {
-    serde_json::json!({
-        "exact": exact.as_ref().map(|v| v.to_string()),
-        "float": f,
-    })
-    .to_string()
+    let value = match exact {
+        Some(v) => crate::api::Value::exact(v),
+        None => crate::api::Value::float(f),
+    };
+    serde_json::to_string(&value).unwrap_or_default()
 }
 
 fn text_line(exact: &Option<Surd>, f: f64) -> String {
@@ -225,7 +223,7 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                         .map_err(|c| (false, c.to_string()))?;
                     let line_notes = crate::syntax::literal_zero_notes(&e);
                     crate::algebra::declare::scoped(&declared, || {
-                        if let Some(problem) = summed_declaration_problem(&e) {
+                        if let Some(problem) = crate::api::summed_declaration_problem(&e) {
                             return Err((false, problem));
                         }
                         match answer(&e, at, a.float) {

@@ -4,9 +4,8 @@
 
 use super::{Failure, Io};
 use crate::algebra::declare;
-use crate::expr::{Expr, Name, Q};
+use crate::expr::Expr;
 use crate::numeric::eval::EvalError;
-use std::collections::{BTreeMap, BTreeSet};
 
 /// Decodes bytes as UTF-8, or says where the first invalid byte is.
 pub fn decode(bytes: &[u8], what: &str) -> Result<String, String> {
@@ -88,97 +87,29 @@ pub fn parse_expr(text: &str) -> Result<Expr, Failure> {
             "{c}: the rank of a factor of a scalar product (A . B), and the rank and orbital angular momentum of C[k], are integers"
         ))
     })?;
-    if let Some(problem) = summed_declaration_problem(&e) {
+    if let Some(problem) = crate::api::summed_declaration_problem(&e) {
         return Err(Failure::input(problem));
     }
     Ok(e)
-}
-
-/// A summed name declared with a parity its term does not imply, in words.
-pub fn summed_declaration_problem(e: &Expr) -> Option<String> {
-    let (name, parity, term) = declare::unimplied_summed(e)?;
-    Some(format!(
-        "{name} is summed in {} and is declared {}, but its values there are fixed by the names it couples to, not by a declaration; declare those free names instead (a summed name's declaration must follow from them)",
-        crate::syntax::print_term(&term),
-        parity.word()
-    ))
 }
 
 /// Turns a phase with a non-integer exponent into a message about the
 /// phase as the user wrote it, at the point, with the declaration that
 /// would rule such points out.
 pub fn explain_phase(text: &str, e: &Expr, err: EvalError) -> Failure {
-    let EvalError::PhaseNotInteger { at, .. } = &err else {
+    let Some((msg, names)) = crate::api::explain_phase(text, e, &err) else {
         return err.into();
     };
-    let point: BTreeMap<Name, Q> = at.iter().cloned().collect();
-    let get = |n: &Name| point.get(n).copied();
-    let Some((w, value)) = crate::syntax::written_phases(text)
-        .into_iter()
-        .find_map(|w| {
-            let v = w.exponent.eval(&get)?;
-            (!v.is_integer()).then_some((w, v))
-        })
-    else {
-        return err.into();
-    };
-    let half_odd = |n: &Name| get(n).is_some_and(|v| !v.is_integer());
-    // the names to declare: the exponent's half-odd ones, a summed one
-    // replaced by the free names it couples to
-    let free = e.free_vars();
-    let mut names: BTreeSet<Name> = BTreeSet::new();
-    for v in w.exponent.vars().filter(|v| half_odd(v)) {
-        if free.contains(v) {
-            names.insert(v.clone());
-            continue;
-        }
-        for t in &e.terms {
-            for f in &t.factors {
-                let slots: Vec<&crate::expr::Lin> = f
-                    .columns()
-                    .into_iter()
-                    .filter(|(_, m)| m.has(v))
-                    .map(|(j, _)| j)
-                    .chain(
-                        f.triads()
-                            .into_iter()
-                            .filter(|tr| tr.iter().any(|l| l.has(v)))
-                            .flatten(),
-                    )
-                    .collect();
-                for l in slots {
-                    names.extend(
-                        l.vars()
-                            .filter(|x| free.contains(*x) && half_odd(x))
-                            .cloned(),
-                    );
-                }
-            }
-        }
+    if names.is_empty() {
+        return Failure::input(msg);
     }
-    let mut msg = format!(
-        "at {}, the phase {} (line {}, column {}) has the exponent {}, which is not an integer",
-        crate::numeric::eval::point_text(at),
-        w.text,
-        w.line,
-        w.column,
-        crate::expr::lin::fmt_q(&value)
-    );
-    if !names.is_empty() {
-        let list: Vec<&str> = names.iter().map(|n| n.as_str()).collect();
-        let spoken = match list.split_last() {
-            Some((last, rest)) if !rest.is_empty() => format!("{} and {last}", rest.join(", ")),
-            _ => list.join(""),
-        };
-        msg.push_str(&format!(
-            ". If {} only take{} integer values, declare so: --integer {} (or begin the expression with `integer {};`)",
-            spoken,
-            if list.len() == 1 { "s" } else { "" },
-            list.join(","),
-            list.join(", ")
-        ));
-    }
-    Failure::input(msg)
+    Failure::input(format!(
+        "{msg}. If {} only take{} integer values, declare so: --integer {} (or begin the expression with `integer {};`)",
+        crate::api::spoken_list(&names),
+        if names.len() == 1 { "s" } else { "" },
+        names.join(","),
+        names.join(", ")
+    ))
 }
 
 /// Says on standard error which symbols are 0 because a literal

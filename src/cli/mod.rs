@@ -97,6 +97,9 @@ impl From<crate::numeric::eval::EvalError> for Failure {
                     ""
                 }
             )),
+            EvalError::Unassigned(ref name) => {
+                Failure::Input(format!("{e} (give it with --at {name}=...)"))
+            }
             other => Failure::Input(other.to_string()),
         }
     }
@@ -128,6 +131,11 @@ impl From<crate::recouple::RecoupleError> for Failure {
             other => Failure::Input(other.to_string()),
         }
     }
+}
+
+/// A report as one line of JSON (its serde form).
+pub fn json_text(report: &impl serde::Serialize) -> Result<String, Failure> {
+    serde_json::to_string(report).map_err(|e| Failure::internal(format!("cannot write JSON: {e}")))
 }
 
 /// The three streams a run reads and writes.

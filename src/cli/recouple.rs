@@ -70,40 +70,12 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         None => None,
     };
     if a.json {
-        let sums = result
-            .terms
-            .iter()
-            .map(|t| t.bound.len())
-            .max()
-            .unwrap_or(0);
-        let count = |k: fn(&crate::expr::Factor) -> bool| {
-            result
-                .terms
-                .iter()
-                .map(|t| t.factors.iter().filter(|f| k(f)).count())
-                .max()
-                .unwrap_or(0)
-        };
-        let six = count(|f| matches!(f, crate::expr::Factor::SixJ(_)));
-        let nine = count(|f| matches!(f, crate::expr::Factor::NineJ(_)));
-        let mut j = serde_json::json!({
-            "result": result.to_string(),
-            "latex": latex::expr(&result),
-            "sums": sums,
-            "symbols": {"6j": six, "9j": nine},
-            "verified": {
-                "against": "the overlap of the two coupled states from its definition",
-                "checked": r.outcome.checked,
-                "nonzero": r.outcome.nonzero,
-                "max_j": crate::expr::lin::fmt_q(&r.outcome.certificate.max_j),
-                "whole": r.outcome.certificate.compared,
-            },
-        });
-        if let Some(v) = &value {
-            j["exact"] = serde_json::Value::String(v.to_string());
-            j["float"] = serde_json::json!(v.to_f64());
+        let mut report = crate::api::RecouplingReport::of(&r);
+        if !a.steps {
+            report.steps.clear();
         }
-        outln!(io, "{j}")?;
+        report.value = value.as_ref().map(crate::api::Value::exact);
+        outln!(io, "{}", super::json_text(&report)?)?;
         return Ok(());
     }
     if a.steps {

@@ -46,35 +46,8 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
     opts.final_spot = super::check::settings(&a.max_j, a.samples, false, opts.final_spot.seed)?;
     let out = simplify(&e, &opts)?;
     if a.json {
-        let steps: Vec<serde_json::Value> = out
-            .steps
-            .iter()
-            .map(|s| {
-                serde_json::json!({
-                    "rule": s.rule, "source": s.source.text(), "reference": s.source.json(),
-                    "before": s.before.to_string(), "after": s.after.to_string(),
-                    "checked": s.checked, "nonzero": s.nonzero,
-                })
-            })
-            .collect();
-        outln!(
-            io,
-            "{}",
-            serde_json::json!({
-                "input": out.input.to_string(),
-                "declared": declared_text(),
-                "result": out.result.to_string(),
-                "latex": latex::expr(&out.result),
-                "steps": steps,
-                "verified": {
-                    "checked": out.checked,
-                    "nonzero": out.nonzero,
-                    "max_j": crate::expr::lin::fmt_q(&out.certificate.max_j),
-                    "whole": out.certificate.compared,
-                },
-                "notes": out.notes,
-            })
-        )?;
+        let report = crate::api::Simplification::of(&out, declared_text());
+        outln!(io, "{}", super::json_text(&report)?)?;
         return Ok(());
     }
     if a.latex {

@@ -46,7 +46,7 @@ pub const MAX_FLOAT_J: i64 = 50_000;
 #[derive(Debug, Clone, PartialEq, thiserror::Error)]
 pub enum EvalError {
     /// A free variable without a value.
-    #[error("{0} has no value (give it with --at {0}=...)")]
+    #[error("{0} has no value")]
     Unassigned(Name),
     /// A value that is not a multiple of 1/2.
     #[error("{name} = {value} is not a multiple of 1/2")]
@@ -120,7 +120,7 @@ pub enum EvalError {
     #[error("{0}")]
     ElementTooLarge(String),
     /// A symbol too large to evaluate this way.
-    #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 with eval --float)")]
+    #[error("a symbol with j or m up to {0} is too large to evaluate here (the limit is j = {1}: 20000 exact, 50000 in floating point)")]
     SymbolTooLarge(String, i64),
     /// A symbol that would take longer than the time left.
     #[error(

@@ -135,7 +135,7 @@ pub fn matrices(from: &CouplingTree, to: &CouplingTree) -> Result<Vec<Block>, Re
     for l in from.leaves() {
         if !l.is_constant() {
             return Err(RecoupleError::Label(format!(
-                "{l}: --matrix needs numeric leaves such as (1/2, (1, 1/2) x) J"
+                "{l}: the transformation matrix needs numeric leaves such as (1/2, (1, 1/2) x) J"
             )));
         }
     }

@@ -187,20 +187,6 @@ impl Source {
         }
         out
     }
-
-    /// The source as JSON: the text, and each citation with its work.
-    pub fn json(&self) -> serde_json::Value {
-        serde_json::json!({
-            "text": self.text(),
-            "citations": self.citations.iter().map(|c| serde_json::json!({
-                "work": c.work.key,
-                "short": c.work.short,
-                "reference": c.work.full,
-                "place": c.place,
-            })).collect::<Vec<_>>(),
-            "note": self.note,
-        })
-    }
 }
 
 impl std::fmt::Display for Source {
@@ -221,7 +207,8 @@ mod tests {
             s.text(),
             "Edmonds 1957, eq. 6.2.12; Biedenharn 1953; Elliott 1953 (from memory)"
         );
-        assert_eq!(s.json()["citations"][0]["place"], "eq. 6.2.12");
+        assert_eq!(s.citations[0].place, "eq. 6.2.12");
+        assert_eq!(s.note.as_deref(), Some("from memory"));
         assert!(Source::parse("nobody2001 eq. 1").is_err());
         assert!(Source::parse("").is_err());
     }

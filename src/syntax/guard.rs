@@ -84,7 +84,7 @@ fn split_across_lines(input: &str) -> Result<(), ParseError> {
                     return Err(ParseError::at(
                         input,
                         i,
-                        "a new line starts a second expression here; one expression is read (join the lines, or end the first with * to continue a product; eval --batch reads one expression per line)",
+                        "a new line starts a second expression here; one expression is read (join the lines, or end the first with * to continue a product; a batch of values takes one expression per line)",
                     ));
                 }
             }

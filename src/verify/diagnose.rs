@@ -14,7 +14,7 @@ use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
 use crate::numeric::Surd;
 use num_bigint::BigInt;
 use num_rational::BigRational;
-use num_traits::{One, ToPrimitive};
+use num_traits::{One, Signed, ToPrimitive};
 use std::collections::BTreeMap;
 
 /// Which side of a claim a repair changes.
@@ -26,11 +26,44 @@ pub enum Side {
     Right,
 }
 
+/// What a diagnosis found missing or wrong, one kind per part of the
+/// repair (a missing triangle factor may come with a phase, say).
+#[derive(Clone, Copy, Debug, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Finding {
+    /// a factor `tri(a, b, c)` missing on one side
+    MissingTriangle,
+    /// a phase `(-1)^(...)` (an overall sign included)
+    Phase,
+    /// a constant or a product of hats `(2v+1)^(e/2)`
+    Factor,
+    /// two arguments of one symbol exchanged
+    SwappedArguments,
+}
+
+/// The kinds of a phase-and-factor repair `t`: a phase when its phase is
+/// not even, a factor when its coefficient, radical or factors are not 1.
+fn term_findings(t: &Term) -> Vec<Finding> {
+    let mut out = Vec::new();
+    if !t.phase.is_zero() {
+        out.push(Finding::Phase);
+    }
+    if !t.coef.abs().is_one() || !t.root.is_one() || !t.factors.is_empty() {
+        out.push(Finding::Factor);
+    }
+    if t.coef < BigRational::from_integer(0.into()) && !out.contains(&Finding::Phase) {
+        out.insert(0, Finding::Phase);
+    }
+    out
+}
+
 /// A repair of a failed claim.
 #[derive(Clone, Debug)]
 pub struct Diagnosis {
     /// what was found, in words
     pub text: String,
+    /// what kinds of repair it made, in the order applied
+    pub findings: Vec<Finding>,
     /// the side that was repaired
     pub side: Side,
     /// the corrected side (the right side unless `side` says otherwise)
@@ -163,6 +196,7 @@ fn missing_triangles(
         if let Some(rep) = confirm(&new_lhs, &new_rhs, s) {
             return Some(Diagnosis {
                 text,
+                findings: vec![Finding::MissingTriangle],
                 side,
                 repaired,
                 confirmed: rep,
@@ -178,8 +212,11 @@ fn missing_triangles(
         if more.side != side {
             return None;
         }
+        let mut findings = vec![Finding::MissingTriangle];
+        findings.extend(more.findings.iter().copied());
         return Some(Diagnosis {
             text: format!("{text}; then {}", more.text),
+            findings,
             side,
             repaired: match side {
                 Side::Right => r2,
@@ -538,6 +575,7 @@ fn diagnose_values(
                 let repaired = crate::algebra::normal::canonical_expr(&times(rhs, &t), false);
                 if let Some(rep) = confirm(lhs, &repaired, s) {
                     return Some(Diagnosis {
+                        findings: term_findings(&t),
                         text: format!("the left side is {} times the right side", describe(&t)),
                         side: Side::Right,
                         repaired,
@@ -584,6 +622,7 @@ fn diagnose_values(
                     if rep.agrees() {
                         if let Some(conf) = confirm(lhs, &alt, s) {
                             return Some(Diagnosis {
+                                findings: vec![Finding::SwappedArguments],
                                 text: format!(
                                     "the sides agree after swapping arguments {} and {} of {} on the right (giving {})",
                                     i + 1,
