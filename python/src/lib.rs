@@ -8,7 +8,7 @@
 //! package's exception classes (recoup.errors) with the position of a
 //! parse error.
 
-use numpy::{IntoPyArray, PyArray1, PyReadonlyArray2};
+use numpy::{IntoPyArray, PyArrayDyn, PyArrayMethods, PyReadonlyArray1};
 use pyo3::prelude::*;
 use rayon::prelude::*;
 use recoup::api::{self, symbols, Declarations, Expression, Name, Parity, Q};
@@ -89,33 +89,50 @@ fn kind_width(kind: &str, given: usize) -> PyResult<usize> {
     Ok(k)
 }
 
-/// Float values of many symbols of one kind: `args` holds one row of
-/// doubled arguments per symbol. The GIL is released and large arrays are
-/// spread over all cores; the first bad row (in order) is the error, with
-/// its index.
+/// Float values of many symbols of one kind, over an array of `shape`:
+/// `columns` holds one contiguous array per argument (doubled) with an
+/// element for every entry of `shape` in C order, or a single element that
+/// holds for all of them (the Python layer broadcasts). The GIL is
+/// released and large arrays are spread over all cores; the first bad
+/// entry (in order) is the error, with its flat index.
 #[pyfunction]
 fn float_symbols<'py>(
     py: Python<'py>,
     kind: &str,
-    args: PyReadonlyArray2<'py, i64>,
-) -> PyResult<Bound<'py, PyArray1<f64>>> {
-    let view = args.as_array();
-    let k = kind_width(kind, view.ncols())?;
-    let data: Vec<i64> = match view.as_slice() {
-        Some(s) => s.to_vec(),
-        None => view.iter().copied().collect(),
-    };
-    let kind = kind.to_string();
-    let values = py.allow_threads(move || -> Result<Vec<f64>, (usize, api::Error)> {
-        let one = |(i, row): (usize, &[i64])| float_one(&kind, row).map_err(|e| (i, e));
-        if data.len() / k.max(1) < PARALLEL_FROM_ROWS {
-            data.chunks_exact(k).enumerate().map(one).collect()
+    shape: Vec<usize>,
+    columns: Vec<PyReadonlyArray1<'py, i64>>,
+) -> PyResult<Bound<'py, PyArrayDyn<f64>>> {
+    let k = kind_width(kind, columns.len())?;
+    let n = shape
+        .iter()
+        .try_fold(1usize, |a, &b| a.checked_mul(b))
+        .ok_or_else(|| to_py(api::Error::Limit("the array is too large".into())))?;
+    let slices: Vec<&[i64]> = columns
+        .iter()
+        .map(|c| c.as_slice())
+        .collect::<Result<_, _>>()
+        .map_err(|_| to_py(api::Error::Internal("a column is not contiguous".into())))?;
+    if slices.iter().any(|c| c.len() != n && c.len() != 1) {
+        return Err(to_py(api::Error::Input(
+            "each argument must have one element per entry, or a single one".into(),
+        )));
+    }
+    let values = py.allow_threads(|| -> Result<Vec<f64>, (usize, api::Error)> {
+        let one = |i: usize| {
+            let mut row = [0i64; 9];
+            for (r, col) in row.iter_mut().zip(&slices) {
+                *r = if col.len() == 1 { col[0] } else { col[i] };
+            }
+            float_one(kind, &row[..k]).map_err(|e| (i, e))
+        };
+        if n < PARALLEL_FROM_ROWS {
+            (0..n).map(one).collect()
         } else {
-            data.par_chunks_exact(k).enumerate().map(one).collect()
+            (0..n).into_par_iter().map(one).collect()
         }
     });
     match values {
-        Ok(v) => Ok(v.into_pyarray(py)),
+        Ok(v) => Ok(v.into_pyarray(py).reshape(shape)?),
         Err((i, e)) => Err(to_py(match e {
             api::Error::Input(m) => api::Error::Input(format!("element {i}: {m}")),
             api::Error::Limit(m) => api::Error::Limit(format!("element {i}: {m}")),

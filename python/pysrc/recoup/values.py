@@ -66,14 +66,14 @@ def _doubled_array(x, name, doubled):
     if kind == "b":
         raise InputError(f"{name} must hold numbers, not booleans")
     if kind in "iu":
-        if a.size and np.max(np.abs(a.astype(np.float64))) > _LARGEST:
+        if a.size and (int(a.max()) > _LARGEST or int(a.min()) < -_LARGEST):
             raise LimitError(f"{name} holds a value beyond any recoup evaluates")
-        a = a.astype(np.int64)
+        a = a.astype(np.int64, copy=False)
         return a if doubled else 2 * a
     if kind == "f":
         if not np.all(np.isfinite(a)):
             raise InputError(f"{name} holds a value that is not finite")
-        if a.size and np.max(np.abs(a)) > _LARGEST:
+        if a.size and (a.max() > _LARGEST or a.min() < -_LARGEST):
             raise LimitError(f"{name} holds a value beyond any recoup evaluates")
         t = a if doubled else 2.0 * a
         r = np.rint(t)
@@ -94,8 +94,14 @@ def _floats(kind, names, values, doubled):
     except ValueError as e:
         raise InputError(f"the arguments do not broadcast together: {e}") from None
     shape = arrays[0].shape
-    rows = np.ascontiguousarray(np.stack([a.ravel() for a in arrays], axis=1))
-    out = _native.float_symbols(kind, rows).reshape(shape)
+    # a column that is one value broadcast (all strides 0) goes as that
+    # value; any other as a contiguous copy in C order
+    columns = [
+        a.reshape(-1)[:1].copy() if a.size and not any(a.strides)
+        else np.ascontiguousarray(a).reshape(-1)
+        for a in arrays
+    ]
+    out = _native.float_symbols(kind, list(shape), columns)
     return float(out) if shape == () else out
 
 
