@@ -552,9 +552,15 @@ fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
             if err.trim().is_empty() {
                 return Err(format!("exit 2 without a message: {}", show()));
             }
-            // eval --batch answers every good line before its exit 2
+            // eval --batch answers every good line before its exit 2;
+            // with --json the failure is one JSON document on stdout
             let batch = args[0] == "eval" && args.iter().any(|a| a == "--batch");
-            if !out.is_empty() && !batch {
+            let json = args.iter().any(|a| a == "--json");
+            if json && !batch {
+                if !is_json_error(&out, "input") {
+                    return Err(format!("exit 2 without a JSON error: {}", show()));
+                }
+            } else if !out.is_empty() && !batch {
                 return Err(format!("exit 2 with output: {}", show()));
             }
         }
@@ -562,10 +568,26 @@ fn run_case(args: &[String], stdin: &[u8]) -> Result<i32, String> {
             if !err.contains("limit") && !err.contains("too large") && !err.contains("budget") {
                 return Err(format!("exit 3 without saying which limit: {}", show()));
             }
+            let batch = args.iter().any(|a| a == "--batch");
+            if args.iter().any(|a| a == "--json")
+                && !batch
+                && !out.lines().any(|l| is_json_error(l, "limit"))
+            {
+                return Err(format!("exit 3 without a JSON error: {}", show()));
+            }
         }
         _ => return Err(format!("broken contract: {}", show())),
     }
     Ok(code)
+}
+
+/// True when `out` ends with the JSON error document of `kind`.
+fn is_json_error(out: &str, kind: &str) -> bool {
+    let Some(last) = out.lines().last() else {
+        return false;
+    };
+    serde_json::from_str::<serde_json::Value>(last)
+        .is_ok_and(|v| v["error"]["kind"] == kind && v["error"]["message"].is_string())
 }
 
 fn env_u64(name: &str, default: u64) -> u64 {

@@ -126,7 +126,7 @@ def main():
     print(f"# {n} admissible rows per kind, j <= 20; medians of 3 runs; "
           f"numpy {np.__version__}, sympy {sympy.__version__}")
     print("kind  python Mvalues/s  rust serial Mvalues/s  rust all cores Mvalues/s  "
-          "python/rust(all cores)  sympy values/s (1000 rows)  sympy wrong")
+          "python speed / rust all cores  sympy values/s (1000 rows)  sympy wrong")
     for kind, (rows, t) in python.items():
         serial, parallel = rust_times[kind]
         sample = rows[:: max(1, len(rows) // 1000)][:1000]
@@ -136,7 +136,7 @@ def main():
         ts = time.perf_counter() - t0
         wrong = int(np.sum(np.abs(np.array(ref) - ours) > 1e-12 * np.maximum(1, np.abs(ours))))
         print(f"{kind:4}  {n / t / 1e6:17.2f}  {n / serial / 1e6:21.2f}  "
-              f"{n / parallel / 1e6:24.2f}  {parallel / t:22.2f}  "
+              f"{n / parallel / 1e6:24.2f}  {parallel / t:29.2f}  "
               f"{len(sample) / ts:26.0f}  {wrong:11d}")
 
 

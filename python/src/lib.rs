@@ -144,11 +144,7 @@ fn float_symbols<'py>(
 /// One exact symbol: its text, its float and its parts `(coefficient,
 /// radicand)`.
 #[pyfunction]
-fn exact_symbol(
-    py: Python<'_>,
-    kind: &str,
-    args: Vec<i64>,
-) -> PyResult<ValueParts> {
+fn exact_symbol(py: Python<'_>, kind: &str, args: Vec<i64>) -> PyResult<ValueParts> {
     kind_width(kind, args.len())?;
     let kind = kind.to_string();
     let v = py

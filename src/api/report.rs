@@ -474,3 +474,53 @@ pub fn shape(e: &Expr) -> Vec<TermShape> {
         })
         .collect()
 }
+
+/// One member of a family: the running argument's value and the symbol's.
+#[derive(Clone, Debug, Serialize)]
+pub struct FamilyMember {
+    /// the value of the running argument (`3/2`)
+    pub value: String,
+    /// the symbol in double precision
+    pub float: f64,
+    /// the exact value, when asked for
+    pub exact: Option<String>,
+}
+
+/// A whole family of one symbol over one argument.
+#[derive(Clone, Debug, Serialize)]
+pub struct FamilyReport {
+    /// the running argument
+    pub over: String,
+    /// every admissible member, in increasing order of the argument
+    pub members: Vec<FamilyMember>,
+}
+
+/// One line of a batch of values: its line number and its value, or the
+/// error that line met.
+#[derive(Clone, Debug, Serialize)]
+pub struct BatchLine {
+    /// the one-based line number in the input
+    pub line: usize,
+    /// the value
+    #[serde(flatten, skip_serializing_if = "Option::is_none")]
+    pub value: Option<Value>,
+    /// what went wrong on that line
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub error: Option<String>,
+}
+
+/// An error as JSON: its kind (`input`, `limit`, `internal`) and message.
+#[derive(Clone, Debug, Serialize)]
+pub struct ErrorReport {
+    /// the error
+    pub error: ErrorBody,
+}
+
+/// The body of an `ErrorReport`.
+#[derive(Clone, Debug, Serialize)]
+pub struct ErrorBody {
+    /// `input`, `limit` or `internal`
+    pub kind: &'static str,
+    /// the message
+    pub message: String,
+}

@@ -125,12 +125,11 @@ fn values(
     }
 }
 
-fn json_line(exact: &Option<Surd>, f: f64) -> String {
-    let value = match exact {
+fn value_of(exact: &Option<Surd>, f: f64) -> crate::api::Value {
+    match exact {
         Some(v) => crate::api::Value::exact(v),
         None => crate::api::Value::float(f),
-    };
-    serde_json::to_string(&value).unwrap_or_default()
+    }
 }
 
 fn text_line(exact: &Option<Surd>, f: f64) -> String {
@@ -161,7 +160,7 @@ pub fn run(a: EvalArgs, io: &mut Io, seconds: f64) -> Result<(), Failure> {
     let (exact, f) = answer(&e, &at, a.float).map_err(|err| explain_phase(&text, &e, err))?;
     validate_literals(&e, &text, io)?;
     if a.json {
-        outln!(io, "{}", json_line(&exact, f))?;
+        outln!(io, "{}", super::json_text(&value_of(&exact, f))?)?;
     } else {
         outln!(io, "{}", text_line(&exact, f))?;
     }
@@ -261,7 +260,11 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                 Ok(None) => {}
                 Ok(Some((exact, f))) => {
                     let s = if a.json {
-                        json_line(&exact, f)
+                        super::json_text(&crate::api::report::BatchLine {
+                            line: n,
+                            value: Some(value_of(&exact, f)),
+                            error: None,
+                        })?
                     } else {
                         text_line(&exact, f)
                     };
@@ -271,7 +274,12 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                     failed += 1;
                     let one_line = msg.lines().next().unwrap_or("").to_string();
                     if a.json {
-                        outln!(io, "{}", serde_json::json!({"line": n, "error": one_line}))?;
+                        let line = crate::api::report::BatchLine {
+                            line: n,
+                            value: None,
+                            error: Some(one_line),
+                        };
+                        outln!(io, "{}", super::json_text(&line)?)?;
                     } else {
                         outln!(io, "error\tline {n}: {one_line}")?;
                     }

@@ -284,16 +284,19 @@ pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
         vec![None; members.len()]
     };
     if a.json {
-        let list: Vec<serde_json::Value> = members
-            .iter()
-            .zip(&exact)
-            .map(|((tx, x), ex)| serde_json::json!({"value": q_text(*tx), "float": x, "exact": ex}))
-            .collect();
-        outln!(
-            io,
-            "{}",
-            serde_json::json!({"over": v.to_string(), "members": list})
-        )?;
+        let report = crate::api::report::FamilyReport {
+            over: v.to_string(),
+            members: members
+                .iter()
+                .zip(&exact)
+                .map(|((tx, x), ex)| crate::api::report::FamilyMember {
+                    value: q_text(*tx),
+                    float: *x,
+                    exact: ex.clone(),
+                })
+                .collect(),
+        };
+        outln!(io, "{}", super::json_text(&report)?)?;
     } else {
         for ((tx, x), ex) in members.iter().zip(&exact) {
             let f = crate::render::fmt_float(*x);

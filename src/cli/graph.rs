@@ -75,8 +75,14 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
         ));
     }
     if a.json {
-        let terms: Vec<serde_json::Value> = e.terms.iter().map(dot::json).collect();
-        outln!(io, "{}", serde_json::json!({ "terms": terms }))?;
+        #[derive(serde::Serialize)]
+        struct Terms {
+            terms: Vec<dot::GraphShape>,
+        }
+        let terms = Terms {
+            terms: e.terms.iter().map(dot::shape).collect(),
+        };
+        outln!(io, "{}", super::json_text(&terms)?)?;
         return Ok(());
     }
     // one picture: several terms as labelled clusters

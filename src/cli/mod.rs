@@ -381,7 +381,13 @@ where
     I: IntoIterator<Item = T>,
     T: Into<OsString> + Clone,
 {
-    let cli = match Cli::try_parse_from(args) {
+    let args: Vec<OsString> = args.into_iter().map(Into::into).collect();
+    // with --json, a failure is also a JSON document on standard output
+    // (a batch reports each failed line in its own JSON line instead)
+    let json =
+        args.iter().skip(1).any(|a| a == "--json") && !args.iter().skip(1).any(|a| a == "--batch");
+    let report = |f: Failure, io: &mut Io| report(f, io, json);
+    let cli = match Cli::try_parse_from(&args) {
         Ok(c) => c,
         Err(e) => {
             use clap::error::ErrorKind;
@@ -400,6 +406,9 @@ where
                     let text = e.to_string();
                     let text = text.strip_prefix("error: ").unwrap_or(&text);
                     let _ = write!(io.err, "recoup: {text}");
+                    if json {
+                        json_error(io, "input", text.trim_end());
+                    }
                     EXIT_INPUT
                 }
             };
@@ -449,16 +458,34 @@ where
     }
 }
 
-fn report(f: Failure, io: &mut Io) -> i32 {
-    let (code, msg) = match f {
-        Failure::Input(m) => (EXIT_INPUT, m),
-        Failure::Limit(m) => (EXIT_LIMIT, format!("limit reached: {m}")),
-        Failure::Internal(m) => (EXIT_INTERNAL, m),
+fn report(f: Failure, io: &mut Io, json: bool) -> i32 {
+    let (code, kind, msg) = match f {
+        Failure::Input(m) => (EXIT_INPUT, "input", m),
+        Failure::Limit(m) => (EXIT_LIMIT, "limit", format!("limit reached: {m}")),
+        Failure::Internal(m) => (EXIT_INTERNAL, "internal", m),
         Failure::Closed => return EXIT_OK,
     };
     let _ = writeln!(io.err, "recoup: {msg}");
     let _ = io.err.flush();
+    if json {
+        json_error(io, kind, &msg);
+    }
     code
+}
+
+/// A failure as one JSON line on standard output: `{"error": {"kind",
+/// "message"}}` (the message also goes to standard error).
+fn json_error(io: &mut Io, kind: &'static str, message: &str) {
+    let doc = crate::api::report::ErrorReport {
+        error: crate::api::report::ErrorBody {
+            kind,
+            message: message.to_string(),
+        },
+    };
+    if let Ok(text) = serde_json::to_string(&doc) {
+        let _ = writeln!(io.out, "{text}");
+        let _ = io.out.flush();
+    }
 }
 
 /// The binary's entry: the process's arguments and streams, on a thread

@@ -48,7 +48,7 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     if a.matrix {
         let m = matrix::matrices(&from, &to)?;
         if a.json {
-            outln!(io, "{}", matrix::json(&m))?;
+            outln!(io, "{}", super::json_text(&matrix::shape(&m))?)?;
         } else {
             out!(io, "{}", matrix::text(&m))?;
         }

@@ -46,7 +46,7 @@ pub fn run(a: TableArgs, io: &mut Io) -> Result<(), Failure> {
     let t1 = doubled("j1", &a.j1)?;
     let t2 = doubled("j2", &a.j2)?;
     if a.json {
-        outln!(io, "{}", table::json(t1, t2))?;
+        outln!(io, "{}", super::json_text(&table::shape(t1, t2))?)?;
     } else if a.csv {
         out!(io, "{}", table::csv(t1, t2))?;
     } else {

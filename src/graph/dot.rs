@@ -95,37 +95,115 @@ pub fn dot_terms(terms: &[Term]) -> String {
     s
 }
 
-/// The graph of a term as JSON: vertices (their columns), lines and legs.
-pub fn json(t: &Term) -> serde_json::Value {
+/// One column of a vertex: its angular momentum and projection.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct ColumnShape {
+    /// the angular momentum
+    pub j: String,
+    /// the projection
+    pub m: String,
+}
+
+/// A vertex (one 3j symbol) of a term's graph.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct VertexShape {
+    /// its number
+    pub id: usize,
+    /// its orientation (always `+`: the columns are in the symbol's order)
+    pub sign: &'static str,
+    /// its three columns
+    pub columns: Vec<ColumnShape>,
+}
+
+/// A line: a summed projection joining two columns.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct LineShape {
+    /// the summed projection
+    pub m: String,
+    /// its angular momentum
+    pub j: String,
+    /// the vertex it leaves
+    pub from: usize,
+    /// the column there
+    pub from_slot: usize,
+    /// the vertex it enters
+    pub to: usize,
+    /// the column there
+    pub to_slot: usize,
+    /// true when a phase orients it
+    pub oriented: bool,
+}
+
+/// A leg: a free projection at one column.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct LegShape {
+    /// the vertex
+    pub vertex: usize,
+    /// the column
+    pub slot: usize,
+    /// its angular momentum
+    pub j: String,
+    /// its projection
+    pub m: String,
+}
+
+/// The graph of a term: vertices (their columns), lines and legs.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct GraphShape {
+    /// the vertices
+    pub vertices: Vec<VertexShape>,
+    /// the lines
+    pub lines: Vec<LineShape>,
+    /// the legs
+    pub legs: Vec<LegShape>,
+    /// remarks on factors the graph does not show
+    pub notes: Vec<String>,
+}
+
+/// The graph of a term as a serialisable shape.
+pub fn shape(t: &Term) -> GraphShape {
     let g = Graph::of_term(t);
-    let vertices: Vec<serde_json::Value> = g
-        .vertices
-        .iter()
-        .enumerate()
-        .map(|(i, v)| {
-            serde_json::json!({
-                "id": i,
-                "sign": "+",
-                "columns": v.cols.iter().map(|(j, m)| serde_json::json!({"j": j.to_string(), "m": m.to_string()})).collect::<Vec<_>>(),
+    GraphShape {
+        vertices: g
+            .vertices
+            .iter()
+            .enumerate()
+            .map(|(i, v)| VertexShape {
+                id: i,
+                sign: "+",
+                columns: v
+                    .cols
+                    .iter()
+                    .map(|(j, m)| ColumnShape {
+                        j: j.to_string(),
+                        m: m.to_string(),
+                    })
+                    .collect(),
             })
-        })
-        .collect();
-    let lines: Vec<serde_json::Value> = g
-        .lines
-        .iter()
-        .map(|l| {
-            serde_json::json!({
-                "m": l.var.to_string(), "j": l.j.to_string(),
-                "from": l.tail.0, "from_slot": l.tail.1,
-                "to": l.head.0, "to_slot": l.head.1,
-                "oriented": l.oriented,
+            .collect(),
+        lines: g
+            .lines
+            .iter()
+            .map(|l| LineShape {
+                m: l.var.to_string(),
+                j: l.j.to_string(),
+                from: l.tail.0,
+                from_slot: l.tail.1,
+                to: l.head.0,
+                to_slot: l.head.1,
+                oriented: l.oriented,
             })
-        })
-        .collect();
-    let legs: Vec<serde_json::Value> = g
-        .legs
-        .iter()
-        .map(|l| serde_json::json!({"vertex": l.vertex, "slot": l.slot, "j": l.j.to_string(), "m": l.m.to_string()}))
-        .collect();
-    serde_json::json!({"vertices": vertices, "lines": lines, "legs": legs, "notes": g.notes})
+            .collect(),
+        legs: g
+            .legs
+            .iter()
+            .map(|l| LegShape {
+                vertex: l.vertex,
+                slot: l.slot,
+                j: l.j.to_string(),
+                m: l.m.to_string(),
+            })
+            .collect(),
+        notes: g.notes.clone(),
+    }
 }

@@ -332,18 +332,58 @@ pub fn text(blocks: &[Block]) -> String {
     s
 }
 
-/// The matrices as JSON.
-pub fn json(blocks: &[Block]) -> serde_json::Value {
-    let bs: Vec<serde_json::Value> = blocks
-        .iter()
-        .map(|b| {
-            serde_json::json!({
-                "J": qstr(&b.total),
-                "rows": b.rows.iter().map(|r| b.row_names.iter().zip(r).map(|(n, v)| (n.to_string(), serde_json::Value::String(qstr(v)))).collect::<serde_json::Map<_, _>>()).collect::<Vec<_>>(),
-                "columns": b.cols.iter().map(|r| b.col_names.iter().zip(r).map(|(n, v)| (n.to_string(), serde_json::Value::String(qstr(v)))).collect::<serde_json::Map<_, _>>()).collect::<Vec<_>>(),
-                "entries": b.entries.iter().map(|r| r.iter().map(|v| v.to_string()).collect::<Vec<_>>()).collect::<Vec<_>>(),
+/// One block of the transformation as a serialisable shape: the total,
+/// the labels of each row and column, and the entries.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct BlockShape {
+    /// the total angular momentum
+    #[serde(rename = "J")]
+    pub total: String,
+    /// each row's intermediate values (name to value)
+    pub rows: Vec<std::collections::BTreeMap<String, String>>,
+    /// each column's intermediate values
+    pub columns: Vec<std::collections::BTreeMap<String, String>>,
+    /// the entries, row by row
+    pub entries: Vec<Vec<String>>,
+}
+
+/// The matrices as a serialisable shape.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct MatrixShape {
+    /// one block per total
+    pub blocks: Vec<BlockShape>,
+}
+
+/// The matrices' shape.
+pub fn shape(blocks: &[Block]) -> MatrixShape {
+    fn labels(
+        names: &[Name],
+        values: &[Vec<Q>],
+    ) -> Vec<std::collections::BTreeMap<String, String>> {
+        values
+            .iter()
+            .map(|r| {
+                names
+                    .iter()
+                    .zip(r)
+                    .map(|(n, v)| (n.to_string(), qstr(v)))
+                    .collect()
             })
-        })
-        .collect();
-    serde_json::json!({ "blocks": bs })
+            .collect()
+    }
+    MatrixShape {
+        blocks: blocks
+            .iter()
+            .map(|b| BlockShape {
+                total: qstr(&b.total),
+                rows: labels(&b.row_names, &b.rows),
+                columns: labels(&b.col_names, &b.cols),
+                entries: b
+                    .entries
+                    .iter()
+                    .map(|r| r.iter().map(|v| v.to_string()).collect())
+                    .collect(),
+            })
+            .collect(),
+    }
 }

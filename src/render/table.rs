@@ -189,11 +189,23 @@ pub fn csv(tj1: i64, tj2: i64) -> String {
     s
 }
 
-/// The JSON document `{"j1", "j2", "entries": [...]}`.
-pub fn json(tj1: i64, tj2: i64) -> serde_json::Value {
-    serde_json::json!({
-        "j1": half(tj1),
-        "j2": half(tj2),
-        "entries": entries(tj1, tj2),
-    })
+/// A Clebsch–Gordan table as a serialisable shape: `{"j1", "j2",
+/// "entries": [...]}`.
+#[derive(Clone, Debug, serde::Serialize)]
+pub struct TableShape {
+    /// the first angular momentum
+    pub j1: String,
+    /// the second
+    pub j2: String,
+    /// every coefficient
+    pub entries: Vec<Entry>,
+}
+
+/// The table of `j1 x j2` as its shape.
+pub fn shape(tj1: i64, tj2: i64) -> TableShape {
+    TableShape {
+        j1: half(tj1),
+        j2: half(tj2),
+        entries: entries(tj1, tj2),
+    }
 }
