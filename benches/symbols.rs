@@ -18,7 +18,7 @@ use std::time::Instant;
 mod gsl;
 
 fn tri(a: i64, b: i64, c: i64) -> bool {
-    exact::triangle2(a, b, c)
+    recoup::numeric::selection::triangle2(a, b, c)
 }
 
 fn args_3j(rng: &mut Rng, j: i64, n: usize) -> Vec<[i64; 6]> {
@@ -331,8 +331,8 @@ fn batch_throughput(quick: bool) {
         lines.push(s);
     }
     let t = Instant::now();
-    let ev = recoup::numeric::eval::Evaluator::<recoup::numeric::Surd>::new();
-    let empty = recoup::numeric::eval::Assignment::new();
+    let ev = recoup::evaluate::Evaluator::<recoup::numeric::Surd>::new();
+    let empty = recoup::evaluate::Assignment::new();
     let mut out = String::new();
     for l in &lines {
         let e = recoup::syntax::parse(l).unwrap();

@@ -198,8 +198,9 @@ fn main() {
 /// 6j: a table of every 6j with j <= 20 built in memory, lookups of
 /// random symbols against float evaluation, and accuracy against exact.
 fn six_j_lookups() {
-    use recoup::numeric::exact::{six_j, triangle2};
+    use recoup::numeric::exact::six_j;
     use recoup::numeric::float::six_j_f64;
+    use recoup::numeric::selection::triangle2;
     use recoup::table::six_j::SixJDomain;
     use recoup::table::SixJTable;
     let t = Instant::now();

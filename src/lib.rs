@@ -3,7 +3,7 @@
 //! of Wigner 3j, 6j and 9j symbols and Clebsch–Gordan coefficients.
 //!
 //! ```
-//! use recoup::numeric::eval::{eval_exact, Assignment};
+//! use recoup::evaluate::{eval_exact, Assignment};
 //! use recoup::syntax::parse;
 //!
 //! // 6j-sum-plain: sum over x of (2x+1) {a, b, x; a, b, c} = (-1)^(2a+2b)
@@ -23,6 +23,7 @@ pub mod api;
 #[cfg(feature = "cli")]
 pub mod cli;
 pub mod document;
+pub mod evaluate;
 pub mod expr;
 pub mod graph;
 pub mod limits;

@@ -6,8 +6,8 @@
 
 use recoup::algebra::declare::{scoped, Declarations, Parity};
 use recoup::algebra::normal::canonical_expr;
+use recoup::evaluate::{eval_exact, EvalError};
 use recoup::expr::{Name, Q};
-use recoup::numeric::eval::{eval_exact, EvalError};
 use recoup::syntax::{parse, parse_declared};
 use recoup::verify::check::{check, Verdict};
 use recoup::verify::sample::{Count, Sampler};

@@ -47,7 +47,7 @@ fn random_6j(rng: &mut Rng, j: i64) -> [i64; 6] {
             *x = 2 * j - 2 * rng.below(spread) as i64;
         }
         // fix parities of the four triads by nudging j3 and j6
-        let tri = |a: i64, b: i64, c: i64| exact::triangle2(a, b, c);
+        let tri = |a: i64, b: i64, c: i64| recoup::numeric::selection::triangle2(a, b, c);
         for d3 in [0, 1] {
             for d6 in [0, 1] {
                 let mut u = t;

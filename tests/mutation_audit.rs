@@ -11,8 +11,8 @@
 
 mod common;
 
+use recoup::evaluate::{check_assignment, Assignment, Evaluator};
 use recoup::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
-use recoup::numeric::eval::{check_assignment, Assignment, Evaluator};
 use recoup::numeric::Surd;
 use recoup::syntax::parse;
 use recoup::verify::check::{check, Verdict};

@@ -7,8 +7,8 @@
 mod common;
 
 use common::bare::{fewest_six_j_sums, fewest_sums, Bare};
+use recoup::evaluate::{Assignment, Evaluator};
 use recoup::expr::{CouplingTree, Lin, Name, Q};
-use recoup::numeric::eval::{Assignment, Evaluator};
 use recoup::numeric::float::clebsch_gordan_f64;
 use recoup::numeric::Surd;
 use recoup::recouple::{recouple, recouple_as, Form, Recoupling};

@@ -226,7 +226,7 @@ fn a_root_of_a_product_keeps_its_factors_nonnegative() {
     // (b+c-a-1)(b+c-a) is 2 at a = 0, b = c = 1; the normal form of the
     // product reads (a-b-c+1)(a-b-c), whose factors are negative there: the
     // root must not be split into roots of negative numbers
-    use recoup::numeric::eval::eval_exact;
+    use recoup::evaluate::eval_exact;
     let e = parse("sqrt((b+c-a-1)*(b+c-a))").unwrap();
     let at = [("a", 0), ("b", 1), ("c", 1)]
         .iter()

@@ -309,7 +309,7 @@ fn bad_requests_are_refused_with_their_reason() {
 fn six_js(max_t: i64, integer_only: bool) -> Vec<[i64; 6]> {
     let step = if integer_only { 2 } else { 1 };
     let r: Vec<i64> = (0..=max_t).step_by(step).collect();
-    let tri = recoup::numeric::exact::triangle2;
+    let tri = recoup::numeric::selection::triangle2;
     let mut out = Vec::new();
     for &a in &r {
         for &b in &r {

@@ -7,8 +7,8 @@
 //! `<j m | T[k, q] | j' m'> = (-1)^(j-m) (j, k, j'; -m, q, m') <j || T[k] || j'>`
 //! (Edmonds 1957, eq. 5.4.1, from memory).
 
+use recoup::evaluate::{eval_exact, Assignment};
 use recoup::expr::{Factor, Name, Q};
-use recoup::numeric::eval::{eval_exact, Assignment};
 use recoup::simplify::{simplify, Options};
 use recoup::syntax::parse;
 use recoup::verify::check::{check, Verdict};

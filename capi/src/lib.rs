@@ -7,7 +7,7 @@
 //! a short or null buffer `RECOUP_ERR_BUFFER`, and any defect inside is
 //! caught and reported as `RECOUP_ERR_INTERNAL`.
 
-use recoup::numeric::eval::{MAX_EXACT_J, MAX_FLOAT_J};
+use recoup::evaluate::{MAX_EXACT_J, MAX_FLOAT_J};
 use recoup::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
 use recoup::numeric::{exact, float};
 use std::os::raw::{c_char, c_double, c_int};

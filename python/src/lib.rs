@@ -284,7 +284,7 @@ impl NativeExpression {
         float_only: bool,
         time_limit: Option<f64>,
     ) -> PyResult<ValueParts> {
-        let mut point = recoup::numeric::eval::Assignment::new();
+        let mut point = recoup::evaluate::Assignment::new();
         for (k, v) in at {
             if !api::is_name(&k) {
                 return Err(to_py(api::Error::Input(format!(

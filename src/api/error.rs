@@ -2,7 +2,7 @@
 //! (no command-line options are named), sorted into the four kinds a
 //! caller acts on differently.
 
-use crate::numeric::eval::EvalError;
+use crate::evaluate::EvalError;
 use crate::recouple::RecoupleError;
 use crate::simplify::SimplifyError;
 use crate::syntax::ParseError;

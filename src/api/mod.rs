@@ -37,7 +37,7 @@ pub use report::{
 };
 
 use crate::algebra::declare;
-use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
+use crate::evaluate::{check_assignment, Assignment, EvalError, Evaluator};
 use crate::numeric::Surd;
 use crate::verify::spot::{SpotSettings, DEFAULT_MAX_POINTS};
 use std::collections::{BTreeMap, BTreeSet};
@@ -468,7 +468,7 @@ pub fn explain_phase(text: &str, e: &Expr, err: &EvalError) -> Option<(String, V
     }
     let msg = format!(
         "at {}, the phase {} (line {}, column {}) has the exponent {}, which is not an integer",
-        crate::numeric::eval::point_text(at),
+        crate::evaluate::point_text(at),
         w.text,
         w.line,
         w.column,

@@ -10,7 +10,7 @@
 //! rational for every symbol).
 
 use super::Error;
-use crate::numeric::eval::{MAX_EXACT_J, MAX_FLOAT_J};
+use crate::evaluate::{MAX_EXACT_J, MAX_FLOAT_J};
 use crate::numeric::{exact, float, Surd};
 
 /// Largest doubled argument of a float 3j, 6j or CG.

@@ -2,8 +2,8 @@
 
 use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
 use super::{outln, Failure, Io};
+use crate::evaluate::{check_assignment, Assignment, EvalError, Evaluator};
 use crate::expr::{Name, Q};
-use crate::numeric::eval::{check_assignment, Assignment, EvalError, Evaluator};
 use crate::numeric::Surd;
 use clap::Args;
 

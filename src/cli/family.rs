@@ -8,8 +8,8 @@
 
 use super::input::{parse_expr, read_arg};
 use super::{outln, Failure, Io};
+use crate::evaluate::{check_assignment, Assignment, Evaluator};
 use crate::expr::{Factor, Lin, Name, Q};
-use crate::numeric::eval::{check_assignment, Assignment, Evaluator};
 use crate::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
 use crate::numeric::Surd;
 use clap::Args;
@@ -253,7 +253,7 @@ pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
                         .and_then(crate::expr::term::doubled)
                 };
                 match (val(x), val(y), val(z)) {
-                    (Some(p), Some(q), Some(r)) => crate::numeric::exact::triangle2(p, q, r),
+                    (Some(p), Some(q), Some(r)) => crate::numeric::selection::triangle2(p, q, r),
                     _ => false,
                 }
             }) && f.columns().iter().all(|(j, m)| {
@@ -261,7 +261,7 @@ pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
                     l.eval(&|n: &Name| at.get(n).copied())
                         .and_then(crate::expr::term::doubled)
                 };
-                matches!((val(j), val(m)), (Some(p), Some(q)) if crate::numeric::exact::projection_ok2(p, q))
+                matches!((val(j), val(m)), (Some(p), Some(q)) if crate::numeric::selection::projection_ok2(p, q))
             });
             if !admissible {
                 continue;

@@ -4,8 +4,8 @@
 
 use super::{Failure, Io};
 use crate::algebra::declare;
+use crate::evaluate::EvalError;
 use crate::expr::Expr;
-use crate::numeric::eval::EvalError;
 
 /// Decodes bytes as UTF-8, or says where the first invalid byte is.
 pub fn decode(bytes: &[u8], what: &str) -> Result<String, String> {

@@ -82,9 +82,9 @@ impl From<std::io::Error> for Failure {
     }
 }
 
-impl From<crate::numeric::eval::EvalError> for Failure {
-    fn from(e: crate::numeric::eval::EvalError) -> Self {
-        use crate::numeric::eval::EvalError;
+impl From<crate::evaluate::EvalError> for Failure {
+    fn from(e: crate::evaluate::EvalError) -> Self {
+        use crate::evaluate::EvalError;
         match e {
             EvalError::TooLarge | EvalError::SymbolTooLarge(..) | EvalError::ElementTooLarge(_) => {
                 Failure::Limit(e.to_string())

@@ -4,7 +4,7 @@
 
 use super::eval::parse_assignment;
 use super::{out, outln, read_arg, Failure, Io};
-use crate::numeric::eval::Evaluator;
+use crate::evaluate::Evaluator;
 use crate::numeric::Surd;
 use crate::recouple::{matrix, recouple_as, Form};
 use crate::render::latex;

@@ -361,7 +361,7 @@ impl Term {
                         let v: Option<Vec<i64>> =
                             t.iter().map(|l| doubled(l.constant_part())).collect();
                         if let Some(v) = v {
-                            if crate::numeric::exact::triangle2(v[0], v[1], v[2]) {
+                            if crate::numeric::selection::triangle2(v[0], v[1], v[2]) {
                                 continue;
                             }
                         }

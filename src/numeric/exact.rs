@@ -11,16 +11,7 @@ use super::racah::{
 use super::surd::Surd;
 use num_bigint::BigInt;
 
-/// True when `(a, b, c)` (doubled) satisfy the triangle rule and `a+b+c`
-/// is an integer.
-pub fn triangle2(a: i64, b: i64, c: i64) -> bool {
-    a >= 0 && b >= 0 && c >= 0 && (a + b + c) % 2 == 0 && c <= a + b && c >= (a - b).abs()
-}
-
-/// True when the doubled projection `m` is allowed for the doubled `j`.
-pub fn projection_ok2(j: i64, m: i64) -> bool {
-    j >= 0 && m.abs() <= j && (j - m) % 2 == 0
-}
+use super::selection::triangle2;
 
 /// The 3j symbol `(j1 j2 j3; m1 m2 m3)` as an unreduced raw value.
 pub fn three_j_raw(tj: [i64; 3], tm: [i64; 3]) -> RawValue {

@@ -10,9 +10,10 @@
 //! Values below the f64 range underflow to 0 or a subnormal.
 
 use super::dd::{Dd, Xf};
-use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range, projection_ok2, triangle2};
+use super::exact::{nine_j_six_js, nine_j_triads_ok, nine_j_x_range};
 use super::family::FamilyNumber;
 use super::racah::{six_j_formula, three_j_formula, RacahFormula, RacahSum};
+use super::selection::{projection_ok2, triangle2};
 use super::{exact, Surd};
 use num_traits::Signed;
 use std::cell::RefCell;

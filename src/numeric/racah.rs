@@ -820,7 +820,7 @@ fn half(x: i64) -> i64 {
 /// The Racah formula of the 3j symbol (Edmonds 3.7.3, from memory), or
 /// `None` when a selection rule or a symmetry makes it 0. Doubled arguments.
 pub fn three_j_formula(tj: [i64; 3], tm: [i64; 3]) -> Option<RacahFormula> {
-    use super::exact::{projection_ok2, triangle2};
+    use super::selection::{projection_ok2, triangle2};
     let [a, b, c] = tj;
     let [ma, mb, mc] = tm;
     if ma + mb + mc != 0
@@ -874,7 +874,7 @@ pub fn three_j_formula(tj: [i64; 3], tm: [i64; 3]) -> Option<RacahFormula> {
 /// The Racah formula of the 6j symbol (Edmonds 6.3.7, from memory), or
 /// `None` when a triangle rule makes it 0. Doubled arguments.
 pub fn six_j_formula(t: [i64; 6]) -> Option<RacahFormula> {
-    use super::exact::triangle2;
+    use super::selection::triangle2;
     let [j1, j2, j3, j4, j5, j6] = t;
     let triads = [(j1, j2, j3), (j1, j5, j6), (j4, j2, j6), (j4, j5, j3)];
     if triads.iter().any(|&(a, b, c)| !triangle2(a, b, c)) {

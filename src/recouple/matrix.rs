@@ -5,8 +5,8 @@
 //! before it is shown.
 
 use super::{recouple, RecoupleError};
+use crate::evaluate::{Assignment, Evaluator};
 use crate::expr::{CouplingTree, Name, Q};
-use crate::numeric::eval::{Assignment, Evaluator};
 use crate::numeric::Surd;
 use crate::simplify::{Options, SimplifyError};
 use num_traits::One;

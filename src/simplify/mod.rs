@@ -9,11 +9,11 @@
 //! silently. The result passes the verification gate against the input.
 
 use crate::algebra::normal::{canonical_expr_assuming, free_projection_facts};
+use crate::evaluate::{EvalError, Evaluator};
 use crate::expr::Q;
 use crate::expr::{Expr, Factor, Term};
 use crate::graph::reduce::next_step_skipping;
 use crate::graph::Graph;
-use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
 use crate::rules::apply::Prepared;
 use crate::rules::{catalog, Rule, RuleKind, Source};

@@ -17,9 +17,9 @@
 //! not canonical forms of the domain are holes, skipped by the bitmap.
 
 use super::rank::RankedBits;
-use crate::numeric::exact::triangle2;
 use crate::numeric::family::{six_j_over_j1, six_j_with_first};
 use crate::numeric::float::{six_j_f64, trusted_member};
+use crate::numeric::selection::triangle2;
 use rayon::prelude::*;
 
 /// A canonical 6j (doubled entries) and its value.

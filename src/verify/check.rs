@@ -6,8 +6,8 @@
 use super::diagnose::{diagnose, Diagnosis};
 use super::sample::{Count, Point, Sampler};
 use super::spot::{compare, SpotSettings, SpotValue};
+use crate::evaluate::EvalError;
 use crate::expr::Expr;
-use crate::numeric::eval::EvalError;
 
 /// The verdict on a claim.
 #[derive(Clone, Debug)]

@@ -12,8 +12,8 @@
 
 use super::sample::Point;
 use super::spot::{compare_within, SpotSettings, SpotValue};
+use crate::evaluate::EvalError;
 use crate::expr::{Expr, Name, Q};
-use crate::numeric::eval::EvalError;
 use std::collections::BTreeSet;
 
 /// What the gate established.

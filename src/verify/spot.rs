@@ -17,8 +17,8 @@
 
 use super::rng::Rng;
 use super::sample::{Point, Sampler};
+use crate::evaluate::{EvalError, Evaluator};
 use crate::expr::{Expr, Q};
-use crate::numeric::eval::{EvalError, Evaluator};
 use crate::numeric::Surd;
 
 /// How to choose points.

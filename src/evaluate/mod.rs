@@ -7,11 +7,11 @@
 //! constraints by variable) and symbol values cached; exact products are
 //! kept in factored form so a sum of many products costs vector additions.
 
-use super::exact::{projection_ok2, triangle2};
-use super::factored::{Factored, FactoredSum};
-use super::{exact, float, Surd};
 use crate::expr::term::{big_q, doubled, power_of_rational};
 use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
+use crate::numeric::factored::{Factored, FactoredSum};
+use crate::numeric::selection::{projection_ok2, triangle2};
+use crate::numeric::{exact, float, Surd};
 use num_traits::{Signed, Zero};
 use std::cell::RefCell;
 use std::collections::{BTreeMap, HashMap};
