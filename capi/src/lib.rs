@@ -7,9 +7,8 @@
 //! a short or null buffer `RECOUP_ERR_BUFFER`, and any defect inside is
 //! caught and reported as `RECOUP_ERR_INTERNAL`.
 
-use recoup::evaluate::{MAX_EXACT_J, MAX_FLOAT_J};
-use recoup::numeric::family::{six_j_over_j1, three_j_over_j1, Family};
-use recoup::numeric::{exact, float};
+use recoup::api::families::{six_j_over_j1, three_j_over_j1, Family};
+use recoup::api::symbols::{self, MAX_EXACT_J, MAX_FLOAT_J};
 use std::os::raw::{c_char, c_double, c_int};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
@@ -47,6 +46,16 @@ fn nine_arguments(t: *const c_int) -> Option<[c_int; 9]> {
     }
     // SAFETY: the caller passes nine ints (checked non-null)
     Some(unsafe { std::ptr::read(t as *const [c_int; 9]) })
+}
+
+/// Writes a value the library gave with `write`; an argument it refused
+/// is `RECOUP_ERR_ARGUMENT`.
+fn write_or_refuse<T>(v: Result<T, recoup::api::Error>, write: impl FnOnce(T) -> c_int) -> c_int {
+    match v {
+        Ok(v) => write(v),
+        Err(recoup::api::Error::Internal(_)) => RECOUP_ERR_INTERNAL,
+        Err(_) => RECOUP_ERR_ARGUMENT,
+    }
 }
 
 fn write_f64(out: *mut c_double, v: f64) -> c_int {
@@ -92,11 +101,11 @@ pub extern "C" fn recoup_3j(
         if !arguments_ok(&[tj1, tj2, tj3], &[tm1, tm2, tm3], MAX_FLOAT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        let v = float::three_j_f64(
+        let v = symbols::float_3j(
             [tj1.into(), tj2.into(), tj3.into()],
             [tm1.into(), tm2.into(), tm3.into()],
         );
-        write_f64(out, v)
+        write_or_refuse(v, |v| write_f64(out, v))
     })
 }
 
@@ -116,15 +125,8 @@ pub extern "C" fn recoup_cg(
         if !arguments_ok(&[tj1, tj2, tjj], &[tm1, tm2, tmm], MAX_FLOAT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        let v = float::clebsch_gordan_f64(
-            tj1.into(),
-            tm1.into(),
-            tj2.into(),
-            tm2.into(),
-            tjj.into(),
-            tmm.into(),
-        );
-        write_f64(out, v)
+        let v = symbols::float_cg([tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from));
+        write_or_refuse(v, |v| write_f64(out, v))
     })
 }
 
@@ -144,7 +146,7 @@ pub extern "C" fn recoup_6j(
         if !arguments_ok(&t, &[], MAX_FLOAT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        write_f64(out, float::six_j_f64(t.map(i64::from)))
+        write_or_refuse(symbols::float_6j(t.map(i64::from)), |v| write_f64(out, v))
     })
 }
 
@@ -159,7 +161,7 @@ pub extern "C" fn recoup_9j(t: *const c_int, out: *mut c_double) -> c_int {
         if !arguments_ok(&t, &[], MAX_FLOAT_J / 10) {
             return RECOUP_ERR_ARGUMENT;
         }
-        write_f64(out, float::nine_j_f64(t.map(i64::from)))
+        write_or_refuse(symbols::float_9j(t.map(i64::from)), |v| write_f64(out, v))
     })
 }
 
@@ -181,11 +183,11 @@ pub extern "C" fn recoup_3j_exact(
         if !arguments_ok(&[tj1, tj2, tj3], &[tm1, tm2, tm3], MAX_EXACT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        let v = exact::three_j(
+        let v = symbols::exact_3j(
             [tj1.into(), tj2.into(), tj3.into()],
             [tm1.into(), tm2.into(), tm3.into()],
         );
-        write_text(&v.to_string(), buf, len, needed)
+        write_or_refuse(v, |v| write_text(&v.to_string(), buf, len, needed))
     })
 }
 
@@ -207,12 +209,9 @@ pub extern "C" fn recoup_6j_exact(
         if !arguments_ok(&t, &[], MAX_EXACT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        write_text(
-            &exact::six_j(t.map(i64::from)).to_string(),
-            buf,
-            len,
-            needed,
-        )
+        write_or_refuse(symbols::exact_6j(t.map(i64::from)), |v| {
+            write_text(&v.to_string(), buf, len, needed)
+        })
     })
 }
 
@@ -234,15 +233,8 @@ pub extern "C" fn recoup_cg_exact(
         if !arguments_ok(&[tj1, tj2, tjj], &[tm1, tm2, tmm], MAX_EXACT_J) {
             return RECOUP_ERR_ARGUMENT;
         }
-        let v = exact::clebsch_gordan(
-            tj1.into(),
-            tm1.into(),
-            tj2.into(),
-            tm2.into(),
-            tjj.into(),
-            tmm.into(),
-        );
-        write_text(&v.to_string(), buf, len, needed)
+        let v = symbols::exact_cg([tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from));
+        write_or_refuse(v, |v| write_text(&v.to_string(), buf, len, needed))
     })
 }
 
@@ -262,12 +254,9 @@ pub extern "C" fn recoup_9j_exact(
         if !arguments_ok(&t, &[], MAX_EXACT_J / 100) {
             return RECOUP_ERR_ARGUMENT;
         }
-        write_text(
-            &exact::nine_j(t.map(i64::from)).to_string(),
-            buf,
-            len,
-            needed,
-        )
+        write_or_refuse(symbols::exact_9j(t.map(i64::from)), |v| {
+            write_text(&v.to_string(), buf, len, needed)
+        })
     })
 }
 
@@ -348,9 +337,9 @@ pub extern "C" fn recoup_6j_family(
 /// `recoup tabulate 6j` (indexed layout), opaque to C.
 pub enum RecoupTable {
     /// 3j symbols (and CG coefficients through them)
-    ThreeJ(recoup::table::ThreeJTable),
+    ThreeJ(recoup::api::tables::ThreeJTable),
     /// 6j symbols
-    SixJ(recoup::table::SixJTable),
+    SixJ(recoup::api::tables::SixJTable),
 }
 
 /// Reads a table file (`path` NUL-terminated) into memory; `*table` gets
@@ -376,9 +365,9 @@ pub unsafe extern "C" fn recoup_table_open(
         let Ok(bytes) = std::fs::read(text) else {
             return RECOUP_ERR_FILE;
         };
-        let t = match recoup::table::ThreeJTable::from_bytes(&bytes) {
+        let t = match recoup::api::tables::ThreeJTable::from_bytes(&bytes) {
             Ok(t) => RecoupTable::ThreeJ(t),
-            Err(_) => match recoup::table::SixJTable::from_bytes(&bytes) {
+            Err(_) => match recoup::api::tables::SixJTable::from_bytes(&bytes) {
                 Ok(t) => RecoupTable::SixJ(t),
                 Err(_) => return RECOUP_ERR_FILE,
             },

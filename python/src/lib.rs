@@ -66,7 +66,7 @@ fn float_one(kind: &str, a: &[i64]) -> Result<f64, api::Error> {
 }
 
 /// One exact symbol from its doubled arguments.
-fn exact_one(kind: &str, a: &[i64]) -> Result<recoup::numeric::Surd, api::Error> {
+fn exact_one(kind: &str, a: &[i64]) -> Result<recoup::api::Surd, api::Error> {
     match kind {
         "3j" => symbols::exact_3j([a[0], a[1], a[2]], [a[3], a[4], a[5]]),
         "cg" => symbols::exact_cg(a.try_into().expect("six arguments")),
@@ -284,7 +284,7 @@ impl NativeExpression {
         float_only: bool,
         time_limit: Option<f64>,
     ) -> PyResult<ValueParts> {
-        let mut point = recoup::evaluate::Assignment::new();
+        let mut point = recoup::api::Assignment::new();
         for (k, v) in at {
             if !api::is_name(&k) {
                 return Err(to_py(api::Error::Input(format!(

@@ -26,8 +26,45 @@ pub mod error;
 pub mod report;
 pub mod symbols;
 
+/// Whole families of float symbols by the three-term recursions, by
+/// doubled arguments (see `recoup family` for their use).
+///
+/// ```
+/// use recoup::api::families::three_j_over_j1;
+///
+/// // (j1 1 1; 0 0 0) for every admissible j1: 0, 1, 2 (doubled 0, 2, 4)
+/// let f = three_j_over_j1(2, 2, 0, 0);
+/// assert_eq!((f.first, f.values.len()), (0, 3));
+/// // (1 1 1; 0 0 0) = 0: j1 + j2 + j3 odd with every m zero
+/// assert!(f.values[1].abs() < 1e-15);
+/// ```
+pub mod families {
+    pub use crate::numeric::family::{six_j_over_j1, three_j_over_j1, three_j_over_m2, Family};
+}
+
+/// Bulk tables (written by `recoup tabulate`, or built in memory): lookup
+/// of any 3j, CG or 6j by its symmetries.
+///
+/// ```
+/// use recoup::api::tables::{Domain, ThreeJTable};
+///
+/// let t = ThreeJTable::build(Domain { max_tj: 4, integer_only: false });
+/// // (1 1 0; 0 0 0) = -1/sqrt(3) (Edmonds 1957, Table 2, from memory),
+/// // found through the symmetries from any spelling
+/// let v = t.three_j([0, 2, 2], [0, 0, 0]).unwrap();
+/// assert!((v + 1.0 / 3f64.sqrt()).abs() < 1e-15);
+/// ```
+pub mod tables {
+    pub use crate::table::build::Domain;
+    pub use crate::table::file::TableFileError;
+    pub use crate::table::six_j::SixJDomain;
+    pub use crate::table::{Lookup, SixJTable, ThreeJTable, MAX_DOUBLED_J};
+}
+
 pub use crate::algebra::declare::{Declarations, Parity};
+pub use crate::evaluate::Assignment;
 pub use crate::expr::{Expr, Name, Q};
+pub use crate::numeric::Surd;
 pub use crate::syntax::ParseError;
 pub use crate::verify::diagnose::Finding;
 pub use error::Error;
@@ -37,8 +74,7 @@ pub use report::{
 };
 
 use crate::algebra::declare;
-use crate::evaluate::{check_assignment, Assignment, EvalError, Evaluator};
-use crate::numeric::Surd;
+use crate::evaluate::{check_assignment, EvalError, Evaluator};
 use crate::verify::spot::{SpotSettings, DEFAULT_MAX_POINTS};
 use std::collections::{BTreeMap, BTreeSet};
 
@@ -56,8 +92,18 @@ pub struct Expression {
 
 impl Expression {
     /// Parses `text` (which may begin with declarations such as
-    /// `integer k, q;`). The ranks of scalar-product factors and of C[k]
+    /// `integer k, q;`). The ranks of scalar-product factors and of `C[k]`
     /// are declared integer, as the physics implies.
+    ///
+    /// ```
+    /// use recoup::api::{Error, Expression};
+    ///
+    /// let e = Expression::parse("integer k; (a, k, a; 0, 0, 0)").unwrap();
+    /// assert_eq!(e.declared_text().as_deref(), Some("integer k;"));
+    /// // a mistake comes with its line and column
+    /// let err = Expression::parse("{a, b, c; d, e}").unwrap_err();
+    /// assert!(matches!(err, Error::Parse(_)) && err.position() == Some((1, 1)));
+    /// ```
     pub fn parse(text: &str) -> Result<Expression, Error> {
         Expression::parse_with(text, &Declarations::new())
     }
@@ -178,6 +224,18 @@ impl Expression {
     /// Checks `self = other` by exact evaluation at points; a difference
     /// comes with the smallest counterexample and, where one exists, a
     /// diagnosis with a repaired claim.
+    ///
+    /// ```
+    /// use recoup::api::{CheckSettings, CheckVerdict, Expression, Finding};
+    ///
+    /// // exchanging two columns of a 3j takes the phase (-1)^(a+b+c)
+    /// // (Edmonds 1957, eq. 3.7.5, from memory): without it the claim fails
+    /// let lhs = Expression::parse("(a, b, c; m1, m2, m3)").unwrap();
+    /// let rhs = Expression::parse("(b, a, c; m2, m1, m3)").unwrap();
+    /// let r = lhs.check(&rhs, &CheckSettings::default()).unwrap();
+    /// assert_eq!(r.verdict, CheckVerdict::Different);
+    /// assert!(r.findings.contains(&Finding::Phase));
+    /// ```
     pub fn check(
         &self,
         other: &Expression,
@@ -198,6 +256,17 @@ impl Expression {
     /// The exact value (and its float) at the given values of the free
     /// variables; a name of an opaque operator gives the value of all its
     /// reduced matrix elements.
+    ///
+    /// ```
+    /// use recoup::api::{point, Expression};
+    ///
+    /// let e = Expression::parse("<j1, m1; j2, m2 | J, M>").unwrap();
+    /// let at = point(&[("j1", "1/2"), ("m1", "1/2"), ("j2", "1/2"),
+    ///                  ("m2", "-1/2"), ("J", "1"), ("M", "0")]).unwrap();
+    /// let v = e.evaluate(&at).unwrap();
+    /// assert_eq!(v.exact.as_deref(), Some("sqrt(1/2)"));
+    /// assert!((e.evaluate_float(&at).unwrap() - 0.5f64.sqrt()).abs() < 1e-15);
+    /// ```
     pub fn evaluate(&self, at: &Assignment) -> Result<Value, Error> {
         self.value_at(at, false)
     }
@@ -254,6 +323,27 @@ impl std::fmt::Display for Expression {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         write!(f, "{}", self.expr)
     }
+}
+
+/// A point: values of named variables, each an integer or a fraction
+/// (`[("j", "3/2"), ("m", "-1/2")]`); a bad name or value, or a name given
+/// twice, is `Error::Input`.
+pub fn point(values: &[(&str, &str)]) -> Result<Assignment, Error> {
+    let mut at = Assignment::new();
+    for (name, value) in values {
+        if !is_name(name) {
+            return Err(Error::Input(format!("{name:?} is not a variable name")));
+        }
+        let q = parse_rational(value).ok_or_else(|| {
+            Error::Input(format!(
+                "the value of {name} must be an integer or a fraction like 3/2; got {value:?}"
+            ))
+        })?;
+        if at.insert(Name::new(*name), q).is_some() {
+            return Err(Error::Input(format!("{name} is given more than one value")));
+        }
+    }
+    Ok(at)
 }
 
 /// True for a variable name of the language.
@@ -386,6 +476,15 @@ pub enum RecouplingForm {
 /// The recoupling coefficient `<from | to>` between two coupling schemes
 /// of the same angular momenta (`((j1, j2) j12, j3) J`), verified against
 /// the overlap of the two coupled states.
+///
+/// ```
+/// use recoup::api::{recouple, RecouplingForm};
+///
+/// let r = recouple("((l1, l2) L, (s1, s2) S) J", "((l1, s1) j1, (l2, s2) j2) J",
+///                  RecouplingForm::Symbols).unwrap();
+/// assert_eq!((r.sums, r.symbols.nine_j), (0, 1));
+/// assert!(r.verified.checked > 0);
+/// ```
 pub fn recouple(from: &str, to: &str, form: RecouplingForm) -> Result<RecouplingReport, Error> {
     let from = crate::syntax::parse_tree(from)?;
     let to = crate::syntax::parse_tree(to)?;

@@ -10,7 +10,7 @@
 //! rational for every symbol).
 
 use super::Error;
-use crate::evaluate::{MAX_EXACT_J, MAX_FLOAT_J};
+pub use crate::evaluate::{MAX_EXACT_J, MAX_FLOAT_J};
 use crate::numeric::{exact, float, Surd};
 
 /// Largest doubled argument of a float 3j, 6j or CG.
@@ -40,6 +40,15 @@ pub fn validate(js: &[i64], ms: &[i64], limit: i64, what: &str) -> Result<(), Er
 }
 
 /// The 3j symbol in double precision.
+///
+/// ```
+/// use recoup::api::symbols::{exact_3j, float_3j};
+///
+/// // (1/2 1/2 1; 1/2 -1/2 0) = sqrt(1/6) (Edmonds 1957, Table 2, from
+/// // memory): arguments doubled
+/// assert_eq!(exact_3j([1, 1, 2], [1, -1, 0]).unwrap().to_string(), "sqrt(1/6)");
+/// assert!((float_3j([1, 1, 2], [1, -1, 0]).unwrap() - (1.0f64 / 6.0).sqrt()).abs() < 1e-15);
+/// ```
 pub fn float_3j(tj: [i64; 3], tm: [i64; 3]) -> Result<f64, Error> {
     validate(&tj, &tm, MAX_FLOAT_DOUBLED, "3j symbol")?;
     Ok(float::three_j_f64(tj, tm))

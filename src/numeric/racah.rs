@@ -556,7 +556,7 @@ impl<const N: usize> FastRaw<N> {
     /// several odd primes per pass (one remainder by their product gives
     /// every valuation), 2 by its trailing zeros. `None` beyond the stack
     /// capacity.
-    pub fn to_surd(&self) -> Option<Surd> {
+    pub fn to_surd(self) -> Option<Surd> {
         if self.a.is_zero() {
             return Some(Surd::zero());
         }

@@ -273,7 +273,7 @@ impl<const N: usize> Wide<N> {
     }
 
     /// The value as a `u128`, when it fits.
-    pub fn to_u128(&self) -> Option<u128> {
+    pub fn to_u128(self) -> Option<u128> {
         match self.len {
             0 => Some(0),
             1 => Some(self.limbs[0] as u128),
@@ -283,7 +283,7 @@ impl<const N: usize> Wide<N> {
     }
 
     /// The value as a `BigUint`.
-    pub fn to_biguint(&self) -> BigUint {
+    pub fn to_biguint(self) -> BigUint {
         match self.len {
             0 => BigUint::default(),
             1 => BigUint::from(self.limbs[0]),
