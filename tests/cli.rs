@@ -225,7 +225,7 @@ fn simplify_text_steps_and_json() {
     );
     assert!(out.starts_with("\\begin{align*}"));
     assert!(
-        out.contains("\\text{Edmonds 1957, eq. 6.3.2 (from memory)}"),
+        out.contains("\\footnotesize (Edmonds 1957, eq. 6.3.2 (from memory))}"),
         "{out}"
     );
 }
@@ -582,4 +582,70 @@ fn half_integer_exponents() {
     let (code, _, err) = run(&["eval", "x^(1/3)", "--at", "x=1"], None);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("half an integer"), "{err}");
+}
+
+#[test]
+fn json_errors_documents_and_latex_matrices() {
+    // with --json a failure is a JSON document on stdout, exit 2
+    let (code, out, err) = run(&["simplify", "(a, b", "--json"], None);
+    assert_eq!(code, 2);
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["error"]["kind"], "input");
+    assert!(v["error"]["message"].as_str().unwrap().contains("line 1"));
+    assert!(err.contains("line 1"));
+    // batch JSON lines carry their line numbers
+    let (code, out, _) = run(
+        &["eval", "--batch", "--json"],
+        Some("(1, 1, 0; 0, 0, 0)\n\n(a, b\n"),
+    );
+    assert_eq!(code, 2);
+    let lines: Vec<serde_json::Value> = out
+        .lines()
+        .map(|l| serde_json::from_str(l).unwrap())
+        .collect();
+    assert_eq!(lines[0]["line"], 1);
+    assert_eq!(lines[0]["exact"], "-sqrt(1/3)");
+    assert_eq!(lines[1]["line"], 3);
+    assert!(lines[1]["error"].is_string());
+    // latex --json and --document
+    let (_, out, _) = run(&["latex", "hat(j12)", "--json"], None);
+    let v: serde_json::Value = serde_json::from_str(out.trim()).unwrap();
+    assert_eq!(v["input"], "hat(j12)");
+    assert_eq!(v["latex"], "\\hat{j}_{12}");
+    let (code, out, _) = run(&["latex", "hat(j12)", "--document"], None);
+    assert_eq!(code, 0);
+    assert!(
+        out.starts_with("\\documentclass{article}") && out.trim_end().ends_with("\\end{document}")
+    );
+    assert!(out.contains("\\begin{multline*}\n\\hat{j}_{12}\n\\end{multline*}"));
+    // the recoupling matrix of three spins 1/2 (J = 1/2 block: rows a = 0, 1;
+    // columns b = 0, 1) as a LaTeX array; its entries are exact
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "((1/2, 1/2) a, 1/2) J",
+            "(1/2, (1/2, 1/2) b) J",
+            "--matrix",
+            "--latex",
+        ],
+        None,
+    );
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("J = \\tfrac{1}{2}:\\quad"), "{out}");
+    assert!(out.contains("\\begin{array}{c|cc}"), "{out}");
+    assert!(out.contains("a = 0 &"), "{out}");
+    // a derivation chain as a complete document, each step with its source
+    let (code, out, _) = run(
+        &[
+            "recouple",
+            "((a, b) x, c) J",
+            "(a, (b, c) y) J",
+            "--latex",
+            "--steps",
+            "--document",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert!(out.contains("\\begin{align*}") && out.contains("\\footnotesize (Edmonds 1957"));
 }

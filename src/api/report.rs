@@ -524,3 +524,12 @@ pub struct ErrorBody {
     /// the message
     pub message: String,
 }
+
+/// An expression in LaTeX.
+#[derive(Clone, Debug, Serialize)]
+pub struct LatexReport {
+    /// the text as written
+    pub input: String,
+    /// its LaTeX (math mode, no delimiters)
+    pub latex: String,
+}

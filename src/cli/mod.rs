@@ -292,6 +292,12 @@ enum Command {
         /// the expression (`-` reads standard input)
         #[arg(allow_hyphen_values = true)]
         expr: String,
+        /// a complete article that compiles on its own (pdflatex)
+        #[arg(long)]
+        document: bool,
+        /// print JSON {"input", "latex"}
+        #[arg(long)]
+        json: bool,
     },
 }
 
@@ -353,11 +359,28 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
         Command::Run(a) => run::run(a, io),
         Command::Graph(a) => graph::run(a, io).map(|_| EXIT_OK),
         Command::Recouple(a) => recouple::run(a, io).map(|_| EXIT_OK),
-        Command::Latex { expr } => {
+        Command::Latex {
+            expr,
+            document,
+            json,
+        } => {
             let text = read_arg(&expr, io)?;
             let e = parse_expr(&text)?;
             input::validate_literals(&e, &text, io)?;
-            outln!(io, "{}", crate::render::latex::expr(&e))?;
+            let latex = crate::render::latex::expr(&e);
+            if json {
+                let report = crate::api::report::LatexReport { input: text, latex };
+                outln!(io, "{}", json_text(&report)?)?;
+            } else if document {
+                let body = crate::render::document::equation(None, &e);
+                out!(
+                    io,
+                    "{}",
+                    crate::render::document::article("Expression", &body)
+                )?;
+            } else {
+                outln!(io, "{latex}")?;
+            }
             Ok(EXIT_OK)
         }
     }

@@ -17,9 +17,13 @@ pub struct RecoupleArgs {
     from: String,
     /// the second coupling scheme, e.g. "(j1, (j2, j3) j23) J"
     to: String,
-    /// print LaTeX
+    /// print LaTeX (with --steps: the derivation from the overlap as an
+    /// align* chain)
     #[arg(long)]
     latex: bool,
+    /// with --latex: a complete article that compiles on its own
+    #[arg(long, requires = "latex")]
+    document: bool,
     /// print JSON {"result", "latex", "sums", "symbols"}
     #[arg(long)]
     json: bool,
@@ -49,6 +53,18 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         let m = matrix::matrices(&from, &to)?;
         if a.json {
             outln!(io, "{}", super::json_text(&matrix::shape(&m))?)?;
+        } else if a.latex {
+            let body = matrix::latex(&m);
+            if a.document {
+                let note = "Exact; orthogonality of every block checked (recoup).\n";
+                out!(
+                    io,
+                    "{}",
+                    crate::render::document::article("Recoupling matrix", &(body + note))
+                )?;
+            } else {
+                out!(io, "{body}")?;
+            }
         } else {
             out!(io, "{}", matrix::text(&m))?;
         }
@@ -78,15 +94,37 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         outln!(io, "{}", super::json_text(&report)?)?;
         return Ok(());
     }
+    if a.latex {
+        let body = if a.steps {
+            super::simplify::latex_chain(&r.overlap, &r.outcome.steps)
+        } else if a.document {
+            crate::render::document::equation(Some(&r.overlap), &result)
+        } else {
+            format!("{}\n", latex::expr(&result))
+        };
+        if a.document {
+            let note = format!(
+                "Verified against the overlap of the two coupled states at {} points ({} nonzero; recoup).\n",
+                r.outcome.checked, r.outcome.nonzero
+            );
+            out!(
+                io,
+                "{}",
+                crate::render::document::article("Recoupling coefficient", &(body + &note))
+            )?;
+        } else {
+            out!(io, "{body}")?;
+        }
+        if let Some(v) = value {
+            outln!(io, "% value: {v}\t{}", crate::render::fmt_float(v.to_f64()))?;
+        }
+        return Ok(());
+    }
     if a.steps {
         outln!(io, "overlap: {}", r.overlap)?;
         super::print_steps(io, &r.outcome.steps, &r.outcome.notes)?;
     }
-    if a.latex {
-        outln!(io, "{}", latex::expr(&result))?;
-    } else {
-        outln!(io, "{result}")?;
-    }
+    outln!(io, "{result}")?;
     if let Some(v) = value {
         outln!(io, "{v}\t{}", crate::render::fmt_float(v.to_f64()))?;
     }

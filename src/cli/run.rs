@@ -8,10 +8,9 @@
 
 use super::check::{check_failure, how, settings, write_verdict};
 use super::input::decode;
-use super::{outln, parse_expr, Failure, Io};
+use super::{out, outln, parse_expr, Failure, Io};
 use crate::document::{read, Item, Located};
 use crate::expr::Expr;
-use crate::render::latex;
 use crate::simplify::{simplify, Options};
 use crate::verify::check::{check, Verdict};
 use clap::Args;
@@ -219,76 +218,15 @@ fn run_items(a: &RunArgs, text: &str, io: &mut Io) -> Result<i32, Failure> {
 
 /// The LaTeX text of a label or a line-numbered default.
 fn latex_words(s: &str) -> String {
-    s.chars()
-        .map(|c| match c {
-            '_' | '%' | '&' | '#' | '$' | '{' | '}' => format!("\\{c}"),
-            '\\' => "\\textbackslash{}".into(),
-            '^' | '~' => format!("\\{c}{{}}"),
-            c => c.to_string(),
-        })
-        .collect()
-}
-
-/// Rendered characters a line of a `multline*` may hold before the next
-/// term starts a new line (about a text width of article at 10 pt, with
-/// LaTeX commands counted as their source length: a rough, safe measure).
-const LINE_BUDGET: usize = 90;
-
-/// The LaTeX of an expression as lines of whole terms, each line within
-/// `LINE_BUDGET` where a term allows.
-fn term_lines(e: &Expr) -> Vec<String> {
-    let whole = latex::expr(e);
-    if whole.len() <= LINE_BUDGET || e.terms.len() < 2 {
-        return vec![whole];
-    }
-    let mut lines: Vec<String> = Vec::new();
-    let mut current = String::new();
-    for (i, t) in e.terms.iter().enumerate() {
-        let text = latex::expr(&Expr::from_term(t.clone()));
-        let piece = match (i, text.strip_prefix('-')) {
-            (0, _) => text.clone(),
-            (_, Some(rest)) => format!("- {}", rest.trim_start()),
-            (_, None) => format!("+ {text}"),
-        };
-        if !current.is_empty() && current.len() + piece.len() > LINE_BUDGET {
-            lines.push(std::mem::take(&mut current));
-        }
-        if !current.is_empty() {
-            current.push(' ');
-        }
-        current.push_str(&piece);
-    }
-    lines.push(current);
-    lines
-}
-
-/// `lhs = rhs` as the lines of a `multline*`.
-fn write_equation(io: &mut Io, lhs: &Expr, rhs: &Expr) -> Result<(), Failure> {
-    outln!(io, "\\begin{{multline*}}")?;
-    let left = term_lines(lhs);
-    let right = term_lines(rhs);
-    for l in &left {
-        outln!(io, "{l} \\\\")?;
-    }
-    for (i, r) in right.iter().enumerate() {
-        let lead = if i == 0 { "= " } else { "" };
-        let end = if i + 1 < right.len() { " \\\\" } else { "" };
-        outln!(io, "{lead}{r}{end}")?;
-    }
-    outln!(io, "\\end{{multline*}}")?;
-    Ok(())
+    crate::render::document::text(s)
 }
 
 fn write_document(io: &mut Io, name: &str, items: &[Verified]) -> Result<(), Failure> {
-    outln!(io, "\\documentclass{{article}}")?;
-    outln!(io, "\\usepackage{{amsmath,amssymb}}")?;
-    outln!(io, "\\begin{{document}}")?;
-    outln!(io, "\\section*{{Angular-momentum relations}}")?;
-    outln!(
-        io,
-        "Every relation below was checked by exact evaluation (recoup, derivation file \\texttt{{{}}}).",
+    use crate::render::document::{article, equation};
+    let mut body = format!(
+        "Every relation below was checked by exact evaluation (recoup, derivation file \\texttt{{{}}}).\n",
         latex_words(name)
-    )?;
+    );
     for (n, v) in items.iter().enumerate() {
         let (label, how) = match v {
             Verified::Claim { label, how, .. } | Verified::Simplified { label, how, .. } => {
@@ -299,13 +237,13 @@ fn write_document(io: &mut Io, name: &str, items: &[Verified]) -> Result<(), Fai
             .as_ref()
             .map(|l| latex_words(l))
             .unwrap_or_else(|| format!("Relation {}", n + 1));
-        outln!(io, "\\paragraph{{{title}}}")?;
-        match v {
-            Verified::Claim { lhs, rhs, .. } => write_equation(io, lhs, rhs)?,
-            Verified::Simplified { input, result, .. } => write_equation(io, input, result)?,
-        }
-        outln!(io, "Checked: {}.", latex_words(how))?;
+        body.push_str(&format!("\\paragraph{{{title}}}\n"));
+        body.push_str(&match v {
+            Verified::Claim { lhs, rhs, .. } => equation(Some(lhs), rhs),
+            Verified::Simplified { input, result, .. } => equation(Some(input), result),
+        });
+        body.push_str(&format!("Checked: {}.\n", latex_words(how)));
     }
-    outln!(io, "\\end{{document}}")?;
+    out!(io, "{}", article("Angular-momentum relations", &body))?;
     Ok(())
 }

@@ -1,7 +1,7 @@
 //! `recoup simplify EXPR`: the simplified expression, verified, with the
 //! trace of steps on request.
 
-use super::{outln, parse_expr, read_arg, Failure, Io};
+use super::{out, outln, parse_expr, read_arg, Failure, Io};
 use crate::render::latex;
 use crate::simplify::{simplify, Options};
 use clap::Args;
@@ -17,6 +17,9 @@ pub struct SimplifyArgs {
     /// print LaTeX (with --steps: the derivation as an align* chain)
     #[arg(long)]
     latex: bool,
+    /// with --latex: a complete article that compiles on its own
+    #[arg(long, requires = "latex")]
+    document: bool,
     /// print JSON {"input", "result", "latex", "steps", "verified"}
     #[arg(long)]
     json: bool,
@@ -29,6 +32,23 @@ pub struct SimplifyArgs {
     /// largest value of free variables at the verification points
     #[arg(long, value_name = "J", default_value = "5/2")]
     max_j: String,
+}
+
+/// A derivation as an `align*` chain: the input, then each step's result
+/// labelled with its published source (the rule's name where it has none).
+pub fn latex_chain(input: &crate::expr::Expr, steps: &[crate::simplify::Step]) -> String {
+    let labelled: Vec<(crate::expr::Expr, String)> = steps
+        .iter()
+        .map(|s| {
+            let label = if s.source.citations.is_empty() && s.source.note.is_none() {
+                crate::render::document::text(&s.rule)
+            } else {
+                s.source.latex()
+            };
+            (s.after.clone(), label)
+        })
+        .collect();
+    crate::render::document::chain(input, &labelled)
 }
 
 /// The declarations in force, in the language (`integer k; half-odd s;`).
@@ -51,31 +71,25 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
         return Ok(());
     }
     if a.latex {
-        if a.steps {
-            outln!(io, "\\begin{{align*}}")?;
-            outln!(io, "  & {} \\\\", latex::expr(&out.input))?;
-            for (i, s) in out.steps.iter().enumerate() {
-                let end = if i + 1 == out.steps.len() {
-                    ""
-                } else {
-                    " \\\\"
-                };
-                // each step labelled with its published source (the rule's
-                // name where it has none)
-                let label = if s.source.citations.is_empty() && s.source.note.is_none() {
-                    s.rule.clone()
-                } else {
-                    s.source.latex()
-                };
-                outln!(
-                    io,
-                    "  &= {} && \\text{{{label}}}{end}",
-                    latex::expr(&s.after),
-                )?;
-            }
-            outln!(io, "\\end{{align*}}")?;
+        let body = if a.steps {
+            latex_chain(&out.input, &out.steps)
+        } else if a.document {
+            crate::render::document::equation(Some(&out.input), &out.result)
         } else {
-            outln!(io, "{}", latex::expr(&out.result))?;
+            format!("{}\n", latex::expr(&out.result))
+        };
+        if a.document {
+            let note = format!(
+                "Verified by exact evaluation at {} points ({} nonzero; recoup).\n",
+                out.checked, out.nonzero
+            );
+            out!(
+                io,
+                "{}",
+                crate::render::document::article("Simplification", &(body + &note))
+            )?;
+        } else {
+            out!(io, "{body}")?;
         }
         return Ok(());
     }

@@ -275,6 +275,53 @@ fn label(names: &[Name], vals: &[Q]) -> String {
         .join(" ")
 }
 
+/// A row or column label in LaTeX: `L = 1,\ S = 0`.
+fn latex_label(names: &[Name], vals: &[Q]) -> String {
+    if names.is_empty() {
+        return "\\cdot".into();
+    }
+    names
+        .iter()
+        .zip(vals)
+        .map(|(n, v)| {
+            format!(
+                "{} = {}",
+                crate::render::latex::name(n),
+                crate::render::latex::lin(&crate::expr::Lin::constant(*v))
+            )
+        })
+        .collect::<Vec<_>>()
+        .join(",\\ ")
+}
+
+/// The matrices in LaTeX: one displayed `array` per total, rows labelled
+/// by the first scheme's intermediate values, columns by the second's.
+pub fn latex(blocks: &[Block]) -> String {
+    let mut s = String::new();
+    for b in blocks {
+        s.push_str(&format!(
+            "\\[\n J = {}:\\quad\n\\begin{{array}}{{c|{}}}\n",
+            crate::render::latex::lin(&crate::expr::Lin::constant(b.total)),
+            "c".repeat(b.cols.len())
+        ));
+        let heads: Vec<String> = b.cols.iter().map(|c| latex_label(&b.col_names, c)).collect();
+        s.push_str(&format!("  & {} \\\\ \\hline\n", heads.join(" & ")));
+        for (r, row) in b.rows.iter().zip(&b.entries) {
+            let cells: Vec<String> = row
+                .iter()
+                .map(|v| crate::render::latex::expr(&crate::expr::Expr::constant(v)))
+                .collect();
+            s.push_str(&format!(
+                "  {} & {} \\\\\n",
+                latex_label(&b.row_names, r),
+                cells.join(" & ")
+            ));
+        }
+        s.push_str("\\end{array}\n\\]\n");
+    }
+    s
+}
+
 /// The matrices as text: one block per total, rows and columns labelled.
 pub fn text(blocks: &[Block]) -> String {
     let mut s = String::new();
