@@ -45,6 +45,18 @@ fn the_other_samples() {
     let schemes = include_str!("../samples/toy-schemes.txt");
     let (code, out) = run(&["recouple", &line(schemes, 2), &line(schemes, 3)], None);
     assert_eq!(code, 0);
+    // the LS-jj coefficient in the arrangement of the literature
+    // (Edmonds 1957, eq. 6.4.2, from memory)
+    assert!(
+        out.contains("hat(j1) hat(j2) hat(L) hat(S) {l1, l2, L; s1, s2, S; j1, j2, J}"),
+        "{out}"
+    );
+    // and in recoup's canonical form on request
+    let (code, out) = run(
+        &["recouple", &line(schemes, 2), &line(schemes, 3), "--canonical"],
+        None,
+    );
+    assert_eq!(code, 0);
     assert!(
         out.contains("hat(j1) hat(j2) hat(L) hat(S) {j1, j2, J; l1, l2, L; s1, s2, S}"),
         "{out}"

@@ -466,11 +466,14 @@ fn spot_settings(max_j: &Q, samples: usize, seed: u64) -> Result<SpotSettings, E
 /// The form a recoupling coefficient is written in.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Default)]
 pub enum RecouplingForm {
-    /// 6j and 9j symbols, the fewest sums
+    /// 6j and 9j symbols, the fewest sums, each symbol in the order the
+    /// schemes name their momenta (the literature's arrangement)
     #[default]
     Symbols,
-    /// 6j symbols only (every 9j as its sum of three 6j)
+    /// 6j symbols only (every 9j as its sum of three 6j), arranged alike
     SixJOnly,
+    /// 6j and 9j symbols in recoup's canonical form (for matching)
+    Canonical,
 }
 
 /// The recoupling coefficient `<from | to>` between two coupling schemes
@@ -486,13 +489,19 @@ pub enum RecouplingForm {
 /// assert!(r.verified.checked > 0);
 /// ```
 pub fn recouple(from: &str, to: &str, form: RecouplingForm) -> Result<RecouplingReport, Error> {
+    let (from_text, to_text) = (from, to);
     let from = crate::syntax::parse_tree(from)?;
     let to = crate::syntax::parse_tree(to)?;
-    let form = match form {
-        RecouplingForm::Symbols => crate::recouple::Form::Symbols,
-        RecouplingForm::SixJOnly => crate::recouple::Form::SixJOnly,
+    let (form, canonical) = match form {
+        RecouplingForm::Symbols => (crate::recouple::Form::Symbols, false),
+        RecouplingForm::SixJOnly => (crate::recouple::Form::SixJOnly, false),
+        RecouplingForm::Canonical => (crate::recouple::Form::Symbols, true),
     };
-    let r = crate::recouple::recouple_as(&from, &to, &crate::simplify::Options::default(), form)?;
+    let opts = crate::simplify::Options::default();
+    let mut r = crate::recouple::recouple_as(&from, &to, &opts, form)?;
+    if !canonical {
+        crate::recouple::arrange_for_reading(&mut r, from_text, to_text, &opts)?;
+    }
     Ok(RecouplingReport::of(&r))
 }
 

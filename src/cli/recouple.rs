@@ -30,6 +30,10 @@ pub struct RecoupleArgs {
     /// write every 9j as a sum of three 6j (for codes with 6j routines only)
     #[arg(long)]
     only_6j: bool,
+    /// print each symbol in recoup's canonical form instead of the order
+    /// the two schemes name their momenta
+    #[arg(long)]
+    canonical: bool,
     /// also print the exact value at these values, e.g. --at j1=1/2,j2=1,...
     #[arg(long, value_name = "VALUES")]
     at: Option<String>,
@@ -41,14 +45,17 @@ pub struct RecoupleArgs {
     steps: bool,
 }
 
-fn tree(s: &str, io: &mut Io) -> Result<crate::expr::CouplingTree, Failure> {
-    crate::syntax::parse_tree(&read_arg(s, io)?)
-        .map_err(|e| Failure::input(format!("parse error at {e}")))
+/// A scheme's text (`-` reads standard input) and its tree.
+fn tree(s: &str, io: &mut Io) -> Result<(String, crate::expr::CouplingTree), Failure> {
+    let text = read_arg(s, io)?;
+    let t = crate::syntax::parse_tree(&text)
+        .map_err(|e| Failure::input(format!("parse error at {e}")))?;
+    Ok((text, t))
 }
 
 pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
-    let from = tree(&a.from, io)?;
-    let to = tree(&a.to, io)?;
+    let (from_text, from) = tree(&a.from, io)?;
+    let (to_text, to) = tree(&a.to, io)?;
     if a.matrix {
         let m = matrix::matrices(&from, &to)?;
         if a.json {
@@ -75,7 +82,11 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     } else {
         Form::Symbols
     };
-    let r = recouple_as(&from, &to, &Options::default(), form)?;
+    let opts = Options::default();
+    let mut r = recouple_as(&from, &to, &opts, form)?;
+    if !a.canonical {
+        crate::recouple::arrange_for_reading(&mut r, &from_text, &to_text, &opts)?;
+    }
     let result = r.outcome.result.clone();
     let value = match &a.at {
         Some(s) => {

@@ -403,6 +403,9 @@ pub struct Recoupling {
     /// the derivation: result, steps, and the certificate of the gate
     /// against `definition`
     pub outcome: Outcome,
+    /// the canonical form of the result, when `outcome.result` was
+    /// arranged for reading (`arrange_for_reading`)
+    pub canonical: Option<Expr>,
 }
 
 /// How a recoupling coefficient is written.
@@ -600,8 +603,43 @@ impl Derived {
                 steps: self.steps,
                 notes,
             },
+            canonical: None,
         })
     }
+}
+
+/// Writes the result in the arrangement of the literature: each 6j and
+/// 9j in the order the two schemes' texts (`from`, `to`) name their
+/// momenta (`render::arrange`). The arranged result passes the gate
+/// against the verified canonical one and is recorded as a last step;
+/// the canonical form is kept in `canonical`.
+pub fn arrange_for_reading(
+    r: &mut Recoupling,
+    from: &str,
+    to: &str,
+    opts: &Options,
+) -> Result<(), RecoupleError> {
+    let ranks = crate::render::arrange::ranks(&[from, to]);
+    let arranged = crate::render::arrange::for_reading(&r.outcome.result, &ranks);
+    if arranged == r.outcome.result {
+        return Ok(());
+    }
+    let check = gate(&r.outcome.result, &arranged, &opts.final_spot)?;
+    let source = crate::rules::source::Source::parse(
+        "edmonds1957 sections 6.2 and 6.4 -- the classical symmetries of the 6j and 9j symbols, each written in the order the schemes name their momenta; from memory",
+    )
+    .map_err(|e| RecoupleError::Internal(e.to_string()))?;
+    let canonical = std::mem::replace(&mut r.outcome.result, arranged.clone());
+    r.outcome.steps.push(crate::simplify::Step {
+        rule: "arrangement-for-reading".into(),
+        source,
+        before: canonical.clone(),
+        after: arranged,
+        checked: check.checked,
+        nonzero: check.nonzero,
+    });
+    r.canonical = Some(canonical);
+    Ok(())
 }
 
 /// One derivation of the recoupling coefficient from its overlap.

@@ -1,5 +1,6 @@
 //! Output formats: LaTeX for papers and the text layouts of reports.
 
+pub mod arrange;
 pub mod document;
 pub mod latex;
 pub mod table;
