@@ -648,4 +648,14 @@ fn json_errors_documents_and_latex_matrices() {
     );
     assert_eq!(code, 0);
     assert!(out.contains("\\begin{align*}") && out.contains("\\footnotesize (Edmonds 1957"));
+    // a recoupling coefficient in the arrangement of the literature:
+    // <((j1 j2) J12, j3) J | (j1, (j2 j3) J23) J> = (-1)^(j1+j2+j3+J)
+    // hat(J12) hat(J23) {j1 j2 J12; j3 J J23} (Edmonds 1957, eq. 6.1.5,
+    // from memory), here with j1 = l, j2 = s, J12 = j, j3 = I, J = F
+    let (code, out, _) = run(&["recouple", "((l, s) j, I) F", "(l, (s, I) G) F"], None);
+    assert_eq!(code, 0);
+    assert_eq!(
+        out.trim(),
+        "(-1)^(F+I+l+s) hat(G) hat(j) {l, s, j; I, F, G}"
+    );
 }

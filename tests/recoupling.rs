@@ -163,8 +163,12 @@ fn agree_with_brute(
     let n = leaves.len();
     let from = parse_tree(from_s).unwrap();
     let to = parse_tree(to_s).unwrap();
-    let r = recouple_as(&from, &to, &Options::default(), form)
+    let mut r = recouple_as(&from, &to, &Options::default(), form)
         .unwrap_or_else(|e| panic!("{from_s} | {to_s}: {e}"));
+    // the arrangement for reading (with the phases its spellings cost) is
+    // what is printed: compare that with the brute-force overlap
+    recoup::recouple::arrange_for_reading(&mut r, from_s, to_s, &Options::default())
+        .unwrap_or_else(|e| panic!("{from_s} | {to_s}: arrangement: {e}"));
     // the result names nothing the trees do not (the total projection aside)
     let mut names: Vec<String> = leaves.to_vec();
     for t in [&from, &to] {

@@ -53,7 +53,12 @@ fn the_other_samples() {
     );
     // and in recoup's canonical form on request
     let (code, out) = run(
-        &["recouple", &line(schemes, 2), &line(schemes, 3), "--canonical"],
+        &[
+            "recouple",
+            &line(schemes, 2),
+            &line(schemes, 3),
+            "--canonical",
+        ],
         None,
     );
     assert_eq!(code, 0);

@@ -277,29 +277,8 @@ impl Expression {
     }
 
     fn value_at(&self, at: &Assignment, float_only: bool) -> Result<Value, Error> {
-        let operators = crate::tensor::opaque_names(&self.expr);
-        let variables = self.expr.free_vars();
-        let mut given = BTreeMap::new();
-        let mut rest = Assignment::new();
-        for (k, v) in at {
-            if operators.contains(k.as_str()) && !variables.contains(k) {
-                given.insert(k.as_str().to_string(), *v);
-            } else {
-                rest.insert(k.clone(), *v);
-            }
-        }
-        let e = &self.expr;
-        let result = self.scoped(|| {
-            crate::tensor::opaque::with_given(&given, || -> Result<Value, EvalError> {
-                check_assignment(e, &rest)?;
-                if float_only {
-                    Ok(Value::float(Evaluator::<f64>::new().eval(e, &rest)?))
-                } else {
-                    Ok(Value::exact(&Evaluator::<Surd>::new().eval(e, &rest)?))
-                }
-            })
-        });
-        result.map_err(|err| self.explain(err))
+        self.scoped(|| value_of(&self.expr, at, float_only))
+            .map_err(|err| self.explain(err))
     }
 
     /// An evaluation error in words; a phase with a non-integer exponent is
@@ -344,6 +323,32 @@ pub fn point(values: &[(&str, &str)]) -> Result<Assignment, Error> {
         }
     }
     Ok(at)
+}
+
+/// The value of `e` at `at` (exact and float, or the float only), with the
+/// declarations in force on this thread; a name of an opaque operator (not
+/// also a variable) gives the value of all its reduced matrix elements.
+/// The values are checked for admissibility first.
+pub fn value_of(e: &Expr, at: &Assignment, float_only: bool) -> Result<Value, EvalError> {
+    let operators = crate::tensor::opaque_names(e);
+    let variables = e.free_vars();
+    let mut given = BTreeMap::new();
+    let mut rest = Assignment::new();
+    for (k, v) in at {
+        if operators.contains(k.as_str()) && !variables.contains(k) {
+            given.insert(k.as_str().to_string(), *v);
+        } else {
+            rest.insert(k.clone(), *v);
+        }
+    }
+    crate::tensor::opaque::with_given(&given, || {
+        check_assignment(e, &rest)?;
+        if float_only {
+            Ok(Value::float(Evaluator::<f64>::new().eval(e, &rest)?))
+        } else {
+            Ok(Value::exact(&Evaluator::<Surd>::new().eval(e, &rest)?))
+        }
+    })
 }
 
 /// True for a variable name of the language.

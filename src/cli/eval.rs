@@ -2,9 +2,8 @@
 
 use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
 use super::{outln, Failure, Io};
-use crate::evaluate::{check_assignment, Assignment, EvalError, Evaluator};
+use crate::evaluate::Assignment;
 use crate::expr::{Name, Q};
-use crate::numeric::Surd;
 use clap::Args;
 
 #[derive(Args, Debug)]
@@ -88,54 +87,10 @@ pub fn parse_q(s: &str) -> Option<Q> {
     Some(Q::new(n, d))
 }
 
-fn answer(
-    e: &crate::expr::Expr,
-    at: &Assignment,
-    float_only: bool,
-) -> Result<(Option<Surd>, f64), EvalError> {
-    // a value for the name of an opaque operator (that is not also a
-    // variable) is the value of all its reduced matrix elements
-    let operators = crate::tensor::opaque_names(e);
-    let variables = e.free_vars();
-    let mut given = std::collections::BTreeMap::new();
-    let mut rest = Assignment::new();
-    for (k, v) in at {
-        if operators.contains(k.as_str()) && !variables.contains(k) {
-            given.insert(k.as_str().to_string(), *v);
-        } else {
-            rest.insert(k.clone(), *v);
-        }
-    }
-    crate::tensor::opaque::with_given(&given, || values(e, &rest, float_only))
-}
-
-fn values(
-    e: &crate::expr::Expr,
-    at: &Assignment,
-    float_only: bool,
-) -> Result<(Option<Surd>, f64), EvalError> {
-    check_assignment(e, at)?;
-    if float_only {
-        let v = Evaluator::<f64>::new().eval(e, at)?;
-        Ok((None, v))
-    } else {
-        let v = Evaluator::<Surd>::new().eval(e, at)?;
-        let f = v.to_f64();
-        Ok((Some(v), f))
-    }
-}
-
-fn value_of(exact: &Option<Surd>, f: f64) -> crate::api::Value {
-    match exact {
-        Some(v) => crate::api::Value::exact(v),
-        None => crate::api::Value::float(f),
-    }
-}
-
-fn text_line(exact: &Option<Surd>, f: f64) -> String {
-    match exact {
-        Some(v) => format!("{v}\t{}", crate::render::fmt_float(f)),
-        None => crate::render::fmt_float(f),
+fn text_line(v: &crate::api::Value) -> String {
+    match &v.exact {
+        Some(x) => format!("{x}\t{}", crate::render::fmt_float(v.float)),
+        None => crate::render::fmt_float(v.float),
     }
 }
 
@@ -157,12 +112,13 @@ pub fn run(a: EvalArgs, io: &mut Io, seconds: f64) -> Result<(), Failure> {
     };
     let text = read_arg(text, io)?;
     let e = parse_expr(&text)?;
-    let (exact, f) = answer(&e, &at, a.float).map_err(|err| explain_phase(&text, &e, err))?;
+    let value =
+        crate::api::value_of(&e, &at, a.float).map_err(|err| explain_phase(&text, &e, err))?;
     validate_literals(&e, &text, io)?;
     if a.json {
-        outln!(io, "{}", super::json_text(&value_of(&exact, f))?)?;
+        outln!(io, "{}", super::json_text(&value)?)?;
     } else {
-        outln!(io, "{}", text_line(&exact, f))?;
+        outln!(io, "{}", text_line(&value))?;
     }
     Ok(())
 }
@@ -225,7 +181,7 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
                         if let Some(problem) = crate::api::summed_declaration_problem(&e) {
                             return Err((false, problem));
                         }
-                        match answer(&e, at, a.float) {
+                        match crate::api::value_of(&e, at, a.float) {
                             Ok(v) => Ok((line_notes, v)),
                             Err(e) if matches!(Failure::from(e.clone()), Failure::Limit(_)) => {
                                 Err((true, format!("limit reached: {e}")))
@@ -258,15 +214,15 @@ fn batch(a: &EvalArgs, at: &Assignment, io: &mut Io, seconds: f64) -> Result<(),
             });
             match res {
                 Ok(None) => {}
-                Ok(Some((exact, f))) => {
+                Ok(Some(value)) => {
                     let s = if a.json {
                         super::json_text(&crate::api::report::BatchLine {
                             line: n,
-                            value: Some(value_of(&exact, f)),
+                            value: Some(value),
                             error: None,
                         })?
                     } else {
-                        text_line(&exact, f)
+                        text_line(&value)
                     };
                     outln!(io, "{s}")?;
                 }
