@@ -231,12 +231,14 @@ impl NativeExpression {
         regge: bool,
         samples: usize,
         max_j: &str,
+        canonical: bool,
         time_limit: Option<f64>,
     ) -> PyResult<(String, NativeExpression)> {
         let settings = api::SimplifySettings {
             regge,
             samples,
             max_j: rational("max_j", max_j)?,
+            canonical,
         };
         let e = self.inner.clone();
         let s = py

@@ -210,7 +210,10 @@ impl Expression {
         };
         opts.final_spot = spot_settings(&settings.max_j, settings.samples, opts.final_spot.seed)?;
         self.scoped(|| {
-            let out = crate::simplify::simplify(&self.expr, &opts)?;
+            let mut out = crate::simplify::simplify(&self.expr, &opts)?;
+            if !settings.canonical {
+                crate::simplify::arrange_for_reading(&mut out, &[&self.text], &opts)?;
+            }
             Ok(Simplification::of(&out, self.declared_text()))
         })
     }
@@ -383,6 +386,9 @@ pub struct SimplifySettings {
     /// largest value of a free variable at those points (a positive
     /// multiple of 1/2, at most `MAX_CHECK_J`)
     pub max_j: Q,
+    /// print 6j and 9j symbols in recoup's canonical form rather than in
+    /// the order the input names their entries
+    pub canonical: bool,
 }
 
 impl Default for SimplifySettings {
@@ -391,6 +397,7 @@ impl Default for SimplifySettings {
             regge: false,
             samples: 40,
             max_j: Q::new(5, 2),
+            canonical: false,
         }
     }
 }

@@ -26,6 +26,10 @@ pub struct SimplifyArgs {
     /// let canonical forms use Regge's symmetries
     #[arg(long)]
     regge: bool,
+    /// print 6j and 9j symbols in recoup's canonical form rather than in
+    /// the order the input names their entries
+    #[arg(long)]
+    canonical: bool,
     /// points for the final verification
     #[arg(long, value_name = "N", default_value_t = 40)]
     samples: usize,
@@ -58,13 +62,17 @@ pub fn declared_text() -> Option<String> {
 }
 
 pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
-    let e = parse_expr(&read_arg(&a.expr, io)?)?;
+    let text = read_arg(&a.expr, io)?;
+    let e = parse_expr(&text)?;
     let mut opts = Options {
         regge: a.regge,
         ..Options::default()
     };
     opts.final_spot = super::check::settings(&a.max_j, a.samples, false, opts.final_spot.seed)?;
-    let out = simplify(&e, &opts)?;
+    let mut out = simplify(&e, &opts)?;
+    if !a.canonical {
+        crate::simplify::arrange_for_reading(&mut out, &[&text], &opts)?;
+    }
     if a.json {
         let report = crate::api::Simplification::of(&out, declared_text());
         outln!(io, "{}", super::json_text(&report)?)?;

@@ -619,26 +619,7 @@ pub fn arrange_for_reading(
     to: &str,
     opts: &Options,
 ) -> Result<(), RecoupleError> {
-    let ranks = crate::render::arrange::ranks(&[from, to]);
-    let arranged = crate::render::arrange::for_reading(&r.outcome.result, &ranks);
-    if arranged == r.outcome.result {
-        return Ok(());
-    }
-    let check = gate(&r.outcome.result, &arranged, &opts.final_spot)?;
-    let source = crate::rules::source::Source::parse(
-        "edmonds1957 sections 6.2 and 6.4 -- the classical symmetries of the 6j and 9j symbols, each written in the order the schemes name their momenta; from memory",
-    )
-    .map_err(|e| RecoupleError::Internal(e.to_string()))?;
-    let canonical = std::mem::replace(&mut r.outcome.result, arranged.clone());
-    r.outcome.steps.push(crate::simplify::Step {
-        rule: "arrangement-for-reading".into(),
-        source,
-        before: canonical.clone(),
-        after: arranged,
-        checked: check.checked,
-        nonzero: check.nonzero,
-    });
-    r.canonical = Some(canonical);
+    r.canonical = crate::simplify::arrange_for_reading(&mut r.outcome, &[from, to], opts)?;
     Ok(())
 }
 

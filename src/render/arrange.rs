@@ -16,25 +16,39 @@ use crate::expr::{Expr, Factor, Lin, Name, Term};
 use std::collections::BTreeMap;
 
 /// The order in which `texts` first name each variable (the first text
-/// first): identifiers of the language, keywords and function names
-/// included (they never match a variable of a symbol).
+/// first): names inside braces (the user's own 6j and 9j symbols) first,
+/// in the order written, then every other name in the order written (so a
+/// phase written before the symbols does not lead). Keywords and function
+/// names get ranks too; they never match an argument.
 pub fn ranks(texts: &[&str]) -> BTreeMap<Name, usize> {
     let mut out = BTreeMap::new();
-    for text in texts {
-        let chars: Vec<char> = text.chars().collect();
-        let mut i = 0;
-        while i < chars.len() {
-            if chars[i].is_ascii_alphabetic() {
-                let start = i;
-                while i < chars.len()
-                    && (chars[i].is_ascii_alphanumeric() || chars[i] == '_' || chars[i] == '\'')
-                {
-                    i += 1;
+    for inside_braces_only in [true, false] {
+        for text in texts {
+            let chars: Vec<char> = text.chars().collect();
+            let mut depth = 0usize;
+            let mut i = 0;
+            while i < chars.len() {
+                match chars[i] {
+                    '{' => depth += 1,
+                    '}' => depth = depth.saturating_sub(1),
+                    c if c.is_ascii_alphabetic() => {
+                        let start = i;
+                        while i < chars.len()
+                            && (chars[i].is_ascii_alphanumeric()
+                                || chars[i] == '_'
+                                || chars[i] == '\'')
+                        {
+                            i += 1;
+                        }
+                        if depth > 0 || !inside_braces_only {
+                            let word: String = chars[start..i].iter().collect();
+                            let next = out.len();
+                            out.entry(Name::new(word)).or_insert(next);
+                        }
+                        continue;
+                    }
+                    _ => {}
                 }
-                let word: String = chars[start..i].iter().collect();
-                let next = out.len();
-                out.entry(Name::new(word)).or_insert(next);
-            } else {
                 i += 1;
             }
         }
@@ -106,5 +120,13 @@ mod tests {
             .map(|n| (*n, r[&Name::new(*n)]))
             .collect();
         assert_eq!(order, [("l", 0), ("s", 1), ("j", 2), ("I", 3), ("F", 4), ("G", 5)]);
+        // names inside the user's braces lead; a phase written first does not
+        let r = ranks(&["sum(x: (-1)^(p+q+x) {a, b, x; c, d, p} {c, d, x; b, a, q})"]);
+        let first: Vec<&str> = ["a", "b", "x", "c", "d", "p", "q"]
+            .into_iter()
+            .filter(|n| r[&Name::new(*n)] < 7)
+            .collect();
+        assert_eq!(first, ["a", "b", "x", "c", "d", "p", "q"]);
+        assert!(r[&Name::new("sum")] >= 7);
     }
 }

@@ -875,6 +875,38 @@ pub fn expand_definition(d: &mut Derivation, rule_name: &str) -> Result<(), Simp
 
 /// The verification gate (see `verify::gate`) with the driver's budget,
 /// its failures as simplification errors.
+/// Writes `out.result` in the arrangement for reading: each 6j and 9j in
+/// the spelling whose entries follow the order in which `texts` name them
+/// (`render::arrange`). The arranged result passes the gate against the
+/// verified canonical one and is recorded as a last step; returns the
+/// canonical form it replaced (`None` when nothing moved).
+pub fn arrange_for_reading(
+    out: &mut Outcome,
+    texts: &[&str],
+    opts: &Options,
+) -> Result<Option<Expr>, SimplifyError> {
+    let ranks = crate::render::arrange::ranks(texts);
+    let arranged = crate::render::arrange::for_reading(&out.result, &ranks);
+    if arranged == out.result {
+        return Ok(None);
+    }
+    let check = gate(&out.result, &arranged, &opts.final_spot)?;
+    let source = Source::parse(
+        "edmonds1957 sections 6.2 and 6.4 -- the classical symmetries of the 6j and 9j symbols, each written in the order the input names its entries; from memory",
+    )
+    .map_err(|e| SimplifyError::Internal(e.to_string()))?;
+    let canonical = std::mem::replace(&mut out.result, arranged.clone());
+    out.steps.push(Step {
+        rule: "arrangement-for-reading".into(),
+        source,
+        before: canonical.clone(),
+        after: arranged,
+        checked: check.checked,
+        nonzero: check.nonzero,
+    });
+    Ok(Some(canonical))
+}
+
 pub fn gate(
     reference: &Expr,
     result: &Expr,

@@ -97,11 +97,14 @@ class Expression:
         d = self.declared
         return Expression(f"{d} {text}" if d else text)
 
-    def simplify(self, *, regge=False, samples=40, max_j="5/2",
+    def simplify(self, *, regge=False, samples=40, max_j="5/2", canonical=False,
                  time_limit=DEFAULT_TIME_LIMIT):
-        """The simplified expression with the verified steps to it."""
+        """The simplified expression with the verified steps to it; 6j and
+        9j symbols are written in the order this text names their entries
+        (``canonical=True``: recoup's canonical form)."""
         report, result = self._native.simplify(
-            bool(regge), int(samples), _value_text("max_j", max_j), time_limit)
+            bool(regge), int(samples), _value_text("max_j", max_j), bool(canonical),
+            time_limit)
         return Simplification._from(json.loads(report), Expression._wrap(result))
 
     def check(self, other, *, max_j=3, samples=60, exhaustive=False,
