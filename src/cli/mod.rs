@@ -133,6 +133,23 @@ impl From<crate::recouple::RecoupleError> for Failure {
     }
 }
 
+/// LaTeX output: `body` as it is, or with `document` a complete article
+/// titled `title` with `note` (how it was verified) after the body.
+pub fn write_latex(
+    io: &mut Io,
+    body: &str,
+    document: bool,
+    title: &str,
+    note: &str,
+) -> Result<(), Failure> {
+    if document {
+        let text = format!("{body}{note}\n");
+        out!(io, "{}", crate::render::document::article(title, &text))
+    } else {
+        out!(io, "{body}")
+    }
+}
+
 /// A report as one line of JSON (its serde form).
 pub fn json_text(report: &impl serde::Serialize) -> Result<String, Failure> {
     serde_json::to_string(report).map_err(|e| Failure::internal(format!("cannot write JSON: {e}")))

@@ -61,17 +61,13 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         if a.json {
             outln!(io, "{}", super::json_text(&matrix::shape(&m))?)?;
         } else if a.latex {
-            let body = matrix::latex(&m);
-            if a.document {
-                let note = "Exact; orthogonality of every block checked (recoup).\n";
-                out!(
-                    io,
-                    "{}",
-                    crate::render::document::article("Recoupling matrix", &(body + note))
-                )?;
-            } else {
-                out!(io, "{body}")?;
-            }
+            super::write_latex(
+                io,
+                &matrix::latex(&m),
+                a.document,
+                "Recoupling matrix",
+                "Exact; orthogonality of every block checked (recoup).",
+            )?;
         } else {
             out!(io, "{}", matrix::text(&m))?;
         }
@@ -113,19 +109,11 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         } else {
             format!("{}\n", latex::expr(&result))
         };
-        if a.document {
-            let note = format!(
-                "Verified against the overlap of the two coupled states at {} points ({} nonzero; recoup).\n",
-                r.outcome.checked, r.outcome.nonzero
-            );
-            out!(
-                io,
-                "{}",
-                crate::render::document::article("Recoupling coefficient", &(body + &note))
-            )?;
-        } else {
-            out!(io, "{body}")?;
-        }
+        let note = format!(
+            "Verified against the overlap of the two coupled states at {} points ({} nonzero; recoup).",
+            r.outcome.checked, r.outcome.nonzero
+        );
+        super::write_latex(io, &body, a.document, "Recoupling coefficient", &note)?;
         if let Some(v) = value {
             outln!(io, "% value: {v}\t{}", crate::render::fmt_float(v.to_f64()))?;
         }

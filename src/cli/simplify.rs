@@ -1,7 +1,7 @@
 //! `recoup simplify EXPR`: the simplified expression, verified, with the
 //! trace of steps on request.
 
-use super::{out, outln, parse_expr, read_arg, Failure, Io};
+use super::{outln, parse_expr, read_arg, Failure, Io};
 use crate::render::latex;
 use crate::simplify::{simplify, Options};
 use clap::Args;
@@ -86,20 +86,11 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
         } else {
             format!("{}\n", latex::expr(&out.result))
         };
-        if a.document {
-            let note = format!(
-                "Verified by exact evaluation at {} points ({} nonzero; recoup).\n",
-                out.checked, out.nonzero
-            );
-            out!(
-                io,
-                "{}",
-                crate::render::document::article("Simplification", &(body + &note))
-            )?;
-        } else {
-            out!(io, "{body}")?;
-        }
-        return Ok(());
+        let note = format!(
+            "Verified by exact evaluation at {} points ({} nonzero; recoup).",
+            out.checked, out.nonzero
+        );
+        return super::write_latex(io, &body, a.document, "Simplification", &note);
     }
     if a.steps {
         outln!(io, "input: {}", out.input)?;
