@@ -4,6 +4,7 @@ evaluation, LaTeX, SymPy conversion and the exceptions."""
 
 from fractions import Fraction
 
+import numpy as np
 import pytest
 import sympy
 import sympy.physics.wigner
@@ -116,6 +117,25 @@ def test_errors_carry_kind_and_position():
             "((((((g, f) u, e) v, d) w, c) y, b) z, a) J",
             time_limit=0.01,
         )
+
+
+def test_bad_settings_are_refused():
+    e = recoup.Expression("a")
+    for bad in (-1, 0, float("nan"), float("inf"), "10", True):
+        with pytest.raises(recoup.InputError, match="time_limit"):
+            e.value(a=1, time_limit=bad)
+    with pytest.raises(recoup.InputError, match="time_limit"):
+        recoup.recouple("((a, b) x, c) J", "(a, (b, c) y) J", time_limit=-1)
+    with pytest.raises(recoup.InputError, match="at most 20"):
+        e.check("a", max_j=100)
+    with pytest.raises(recoup.InputError):
+        recoup.float_3j(np.array([1 + 2j]), 1, 1, 0, 0, 0)
+    with pytest.raises(recoup.InputError, match="got 'x'"):
+        recoup.float_3j(np.array(["1/2", "x"], dtype=object), 1, 1, 0, 0, 0)
+    with pytest.raises(recoup.ParseError, match="deeper than 200"):
+        recoup.Expression("(" * 5000 + "a" + ")" * 5000)
+    with pytest.raises(recoup.ParseError, match="longer than"):
+        recoup.Expression("x" * 2_000_000)
 
 
 def test_primed_names_through_a_dict():

@@ -32,6 +32,18 @@ def _value_text(name, v):
     return f"{q.numerator}/{q.denominator}" if q.denominator != 1 else str(q.numerator)
 
 
+def _time_limit(seconds):
+    """A time limit in seconds (positive and finite), or None for none."""
+    if seconds is None:
+        return None
+    if isinstance(seconds, bool) or not isinstance(seconds, numbers.Real):
+        raise InputError(f"time_limit must be a number of seconds or None; got {seconds!r}")
+    seconds = float(seconds)
+    if not (seconds > 0 and seconds < float("inf")):
+        raise InputError(f"time_limit must be positive and finite; got {seconds!r}")
+    return seconds
+
+
 def _names(names):
     if isinstance(names, str):
         names = [n for n in names.replace(",", " ").split() if n]
@@ -104,7 +116,7 @@ class Expression:
         (``canonical=True``: recoup's canonical form)."""
         report, result = self._native.simplify(
             bool(regge), int(samples), _value_text("max_j", max_j), bool(canonical),
-            time_limit)
+            _time_limit(time_limit))
         return Simplification._from(json.loads(report), Expression._wrap(result))
 
     def check(self, other, *, max_j=3, samples=60, exhaustive=False,
@@ -116,7 +128,7 @@ class Expression:
         report = self._native.check(
             other._native, _value_text("max_j", max_j), int(samples),
             bool(exhaustive), int(max_points), bool(triangles_hold), int(seed),
-            time_limit)
+            _time_limit(time_limit))
         return CheckReport._from(json.loads(report), self, other)
 
     def _point(self, at, kw):
@@ -127,12 +139,13 @@ class Expression:
     def value(self, at=None, *, time_limit=DEFAULT_TIME_LIMIT, **values):
         """The exact value at the given values of the free variables
         (keywords, or a dict for names such as ``j'``)."""
-        text, f, parts = self._native.evaluate(self._point(at, values), False, time_limit)
+        text, f, parts = self._native.evaluate(
+            self._point(at, values), False, _time_limit(time_limit))
         return Exact(text, parts, f)
 
     def value_float(self, at=None, *, time_limit=DEFAULT_TIME_LIMIT, **values):
         """The value in floating point only (fast at large quantum numbers)."""
-        _, f, _ = self._native.evaluate(self._point(at, values), True, time_limit)
+        _, f, _ = self._native.evaluate(self._point(at, values), True, _time_limit(time_limit))
         return f
 
     def to_sympy(self):
@@ -149,7 +162,8 @@ def recouple(first, second, *, only_6j=False, time_limit=DEFAULT_TIME_LIMIT):
     """The recoupling coefficient ``<first | second>`` between two coupling
     schemes of the same angular momenta, e.g.
     ``recouple("((j1, j2) j12, j3) J", "(j1, (j2, j3) j23) J")``."""
-    report, result = _native.recouple(str(first), str(second), bool(only_6j), time_limit)
+    report, result = _native.recouple(
+        str(first), str(second), bool(only_6j), _time_limit(time_limit))
     return Recoupling._from(json.loads(report), Expression._wrap(result))
 
 
