@@ -14,6 +14,13 @@ pub const MAX_INPUT: usize = 1 << 20;
 
 /// Checks the text of an expression (or a coupling tree).
 pub fn check(input: &str) -> Result<(), ParseError> {
+    if input.trim().is_empty() {
+        return Err(ParseError::at(
+            input,
+            input.len(),
+            "the text is empty (nothing to read)",
+        ));
+    }
     if input.len() > MAX_INPUT {
         return Err(ParseError::at(
             input,
