@@ -8,7 +8,7 @@
 //! caught and reported as `RECOUP_ERR_INTERNAL`.
 
 use recoup::api::families::{six_j_over_j1, three_j_over_j1, Family};
-use recoup::api::symbols::{self, MAX_EXACT_J, MAX_FLOAT_J};
+use recoup::api::symbols::{self, MAX_FLOAT_J};
 use std::os::raw::{c_char, c_double, c_int};
 use std::panic::{catch_unwind, AssertUnwindSafe};
 
@@ -98,9 +98,6 @@ pub extern "C" fn recoup_3j(
     out: *mut c_double,
 ) -> c_int {
     guarded(|| {
-        if !arguments_ok(&[tj1, tj2, tj3], &[tm1, tm2, tm3], MAX_FLOAT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         let v = symbols::float_3j(
             [tj1.into(), tj2.into(), tj3.into()],
             [tm1.into(), tm2.into(), tm3.into()],
@@ -122,9 +119,6 @@ pub extern "C" fn recoup_cg(
     out: *mut c_double,
 ) -> c_int {
     guarded(|| {
-        if !arguments_ok(&[tj1, tj2, tjj], &[tm1, tm2, tmm], MAX_FLOAT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         let v = symbols::float_cg([tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from));
         write_or_refuse(v, |v| write_f64(out, v))
     })
@@ -143,9 +137,6 @@ pub extern "C" fn recoup_6j(
 ) -> c_int {
     guarded(|| {
         let t = [tj1, tj2, tj3, tj4, tj5, tj6];
-        if !arguments_ok(&t, &[], MAX_FLOAT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         write_or_refuse(symbols::float_6j(t.map(i64::from)), |v| write_f64(out, v))
     })
 }
@@ -158,9 +149,6 @@ pub extern "C" fn recoup_9j(t: *const c_int, out: *mut c_double) -> c_int {
         let Some(t) = nine_arguments(t) else {
             return RECOUP_ERR_BUFFER;
         };
-        if !arguments_ok(&t, &[], MAX_FLOAT_J / 10) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         write_or_refuse(symbols::float_9j(t.map(i64::from)), |v| write_f64(out, v))
     })
 }
@@ -180,9 +168,6 @@ pub extern "C" fn recoup_3j_exact(
     needed: *mut usize,
 ) -> c_int {
     guarded(|| {
-        if !arguments_ok(&[tj1, tj2, tj3], &[tm1, tm2, tm3], MAX_EXACT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         let v = symbols::exact_3j(
             [tj1.into(), tj2.into(), tj3.into()],
             [tm1.into(), tm2.into(), tm3.into()],
@@ -206,9 +191,6 @@ pub extern "C" fn recoup_6j_exact(
 ) -> c_int {
     guarded(|| {
         let t = [tj1, tj2, tj3, tj4, tj5, tj6];
-        if !arguments_ok(&t, &[], MAX_EXACT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         write_or_refuse(symbols::exact_6j(t.map(i64::from)), |v| {
             write_text(&v.to_string(), buf, len, needed)
         })
@@ -230,9 +212,6 @@ pub extern "C" fn recoup_cg_exact(
     needed: *mut usize,
 ) -> c_int {
     guarded(|| {
-        if !arguments_ok(&[tj1, tj2, tjj], &[tm1, tm2, tmm], MAX_EXACT_J) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         let v = symbols::exact_cg([tj1, tm1, tj2, tm2, tjj, tmm].map(i64::from));
         write_or_refuse(v, |v| write_text(&v.to_string(), buf, len, needed))
     })
@@ -251,9 +230,6 @@ pub extern "C" fn recoup_9j_exact(
         let Some(t) = nine_arguments(t) else {
             return RECOUP_ERR_BUFFER;
         };
-        if !arguments_ok(&t, &[], MAX_EXACT_J / 100) {
-            return RECOUP_ERR_ARGUMENT;
-        }
         write_or_refuse(symbols::exact_9j(t.map(i64::from)), |v| {
             write_text(&v.to_string(), buf, len, needed)
         })

@@ -362,11 +362,12 @@ pub fn is_name(n: &str) -> bool {
             .all(|c| c.is_ascii_alphanumeric() || c == '_')
 }
 
-/// `3`, `-1/2`: a rational written as an integer or a fraction.
+/// `3`, `-1/2`: a rational written as an integer or a fraction (spaces
+/// around the `/` allowed, not around the whole).
 pub fn parse_rational(s: &str) -> Option<Q> {
-    let (n, d) = match s.trim().split_once('/') {
+    let (n, d) = match s.split_once('/') {
         Some((n, d)) => (n.trim(), d.trim()),
-        None => (s.trim(), "1"),
+        None => (s, "1"),
     };
     let n: i64 = n.parse().ok()?;
     let d: i64 = d.parse().ok()?;

@@ -1,7 +1,7 @@
 //! Typed, serialisable results of the API: a simplification with its
 //! steps, a check report with its verdict and diagnosis, a recoupling, a
 //! value. The command line's `--json` is the serde form of these types, so
-//! their field names are the JSON keys DESIGN.md lists.
+//! their field names are the JSON keys the README documents.
 
 use crate::expr::lin::fmt_q;
 use crate::expr::Expr;

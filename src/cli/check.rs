@@ -49,7 +49,7 @@ pub fn settings(
     exhaustive: bool,
     seed: u64,
 ) -> Result<SpotSettings, Failure> {
-    let q = super::eval::parse_q(max_j)
+    let q = crate::api::parse_rational(max_j)
         .filter(|q| (*q * Q::from_integer(2)).is_integer() && *q > Q::from_integer(0))
         .ok_or_else(|| {
             Failure::input(format!(

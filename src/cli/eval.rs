@@ -3,7 +3,7 @@
 use super::input::{decode, explain_phase, parse_expr, read_arg, validate_literals};
 use super::{outln, Failure, Io};
 use crate::evaluate::Assignment;
-use crate::expr::{Name, Q};
+use crate::expr::Name;
 use clap::Args;
 
 #[derive(Args, Debug)]
@@ -49,16 +49,12 @@ pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
             )));
         };
         let k = k.trim();
-        let valid_name = k.chars().next().is_some_and(|c| c.is_ascii_alphabetic())
-            && k.trim_end_matches('\'')
-                .chars()
-                .all(|c| c.is_ascii_alphanumeric() || c == '_');
-        if !valid_name {
+        if !crate::api::is_name(k) {
             return Err(Failure::input(format!(
                 "--at: '{k}' is not a variable name"
             )));
         }
-        let q = parse_q(v.trim()).ok_or_else(|| {
+        let q = crate::api::parse_rational(v.trim()).ok_or_else(|| {
             Failure::input(format!(
                 "--at: the value of {k} must be an integer or a fraction like 3/2; got '{}'",
                 v.trim()
@@ -71,20 +67,6 @@ pub fn parse_assignment(s: &str) -> Result<Assignment, Failure> {
         }
     }
     Ok(out)
-}
-
-/// `3`, `-1/2`.
-pub fn parse_q(s: &str) -> Option<Q> {
-    let (n, d) = match s.split_once('/') {
-        Some((n, d)) => (n.trim(), d.trim()),
-        None => (s, "1"),
-    };
-    let n: i64 = n.parse().ok()?;
-    let d: i64 = d.parse().ok()?;
-    if d <= 0 || n.abs() > (1 << 40) || d > (1 << 40) {
-        return None;
-    }
-    Some(Q::new(n, d))
 }
 
 fn text_line(v: &crate::api::Value) -> String {

@@ -203,11 +203,7 @@ fn declarations_of(cli: &Cli) -> Result<Declarations, Failure> {
     ] {
         for n in names {
             let n = n.trim();
-            let ok = n.chars().next().is_some_and(|c| c.is_ascii_alphabetic())
-                && n.trim_end_matches('\'')
-                    .chars()
-                    .all(|c| c.is_ascii_alphanumeric() || c == '_');
-            if !ok {
+            if !crate::api::is_name(n) {
                 return Err(Failure::input(format!(
                     "{option} takes names separated by commas (letters, digits, _, trailing primes); got {n:?}"
                 )));

@@ -1,7 +1,7 @@
 //! `recoup table J1 J2`: the Clebsch–Gordan table for numeric j1, j2.
 
-use super::eval::parse_q;
 use super::{out, outln, Failure, Io};
+use crate::api::parse_rational;
 use crate::render::table;
 use clap::Args;
 
@@ -25,7 +25,7 @@ pub struct TableArgs {
 }
 
 fn doubled(name: &str, s: &str) -> Result<i64, Failure> {
-    let q = parse_q(s)
+    let q = parse_rational(s)
         .ok_or_else(|| Failure::input(format!("{name} must be a number like 1, 3/2; got '{s}'")))?;
     let d = q * crate::expr::Q::from_integer(2);
     if !d.is_integer() || d < crate::expr::Q::from_integer(0) {

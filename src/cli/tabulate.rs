@@ -6,8 +6,8 @@
 //! appears on standard error when it is a terminal and the job runs past
 //! a second. The time limit applies only when --time-limit is given.
 
-use super::eval::parse_q;
 use super::{outln, Failure, Io};
+use crate::api::parse_rational;
 use crate::table::build::{self, Domain, Entry};
 use crate::table::file;
 use crate::table::regge::Numbering;
@@ -73,7 +73,7 @@ fn layout_of(a: &TabulateArgs) -> Layout {
 }
 
 fn max_doubled_j(text: &str) -> Result<i64, Failure> {
-    let q = parse_q(text.trim())
+    let q = parse_rational(text.trim())
         .filter(|q| *q.denom() <= 2 && *q.numer() >= 0)
         .ok_or_else(|| {
             Failure::input(format!(
