@@ -26,9 +26,9 @@ fn main() {
             times.push(t.elapsed().as_secs_f64());
             sums.push(
                 out.result
-                    .terms
+                    .terms()
                     .iter()
-                    .map(|t| t.bound.len())
+                    .map(|t| t.bound().len())
                     .max()
                     .unwrap_or(0),
             );

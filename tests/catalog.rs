@@ -12,7 +12,7 @@ fn every_catalog_entry_holds() {
     let all = catalog();
     assert!(all.len() >= 20, "{} entries", all.len());
     for r in all {
-        let heavy = r.lhs.terms[0].bound.len() > 5;
+        let heavy = r.lhs.terms()[0].bound().len() > 5;
         let s = SpotSettings {
             max_j: Q::from_integer(if heavy { 2 } else { 3 }),
             samples: if heavy { 10 } else { 30 },

@@ -105,8 +105,8 @@ fn the_standard_projection_sums_reduce_in_any_disguise() {
                 want
             );
             if variant == 0 {
-                let symbols: usize = out.result.terms[0]
-                    .factors
+                let symbols: usize = out.result.terms()[0]
+                    .factors()
                     .iter()
                     .filter(|f| f.is_symbol())
                     .count();
@@ -157,9 +157,9 @@ fn the_12j_graphs_reduce_to_at_most_one_sum() {
             "{name}: verified at {} points",
             out.checked
         );
-        for t in &out.result.terms {
+        for t in out.result.terms() {
             assert!(
-                t.factors
+                t.factors()
                     .iter()
                     .filter(|f| f.is_symbol())
                     .all(|f| matches!(f, recoup::expr::Factor::SixJ(_))),
@@ -306,8 +306,8 @@ fn sums_of_6j_match_the_fewest_over_every_order_up_to_12_vertices() {
                 out.result
             );
             assert!(
-                out.result.terms.iter().all(|t| !t
-                    .factors
+                out.result.terms().iter().all(|t| !t
+                    .factors()
                     .iter()
                     .any(|f| matches!(f, recoup::expr::Factor::NineJ(_)))),
                 "V={n}: {}",

@@ -115,9 +115,9 @@ fn each_identity_with_spectators_and_inside_an_outer_sum() {
             simplify(&input, &Options::default()).unwrap_or_else(|e| panic!("{name} wrapped: {e}"));
         let inner_left = out
             .result
-            .terms
+            .terms()
             .iter()
-            .any(|t| t.bound.iter().any(|b| b.as_str() != "y"));
+            .any(|t| t.bound().iter().any(|b| b.as_str() != "y"));
         assert!(!inner_left, "{name} wrapped: {}", out.result);
         assert!(
             used_rule(&out, name),

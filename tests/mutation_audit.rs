@@ -85,7 +85,7 @@ fn witness(mutated: &Expr, pts: &[(Assignment, Surd)]) -> Option<Assignment> {
 
 fn times(e: &Expr, t: &Term) -> Expr {
     let mut out = Expr::zero();
-    for u in &e.terms {
+    for u in e.terms() {
         out.push(u.mul(t));
     }
     out
@@ -100,11 +100,11 @@ fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
         let lv = Lin::var(v.clone());
         out.push((
             format!("phase (-1)^(2*{v})"),
-            times(rhs, &Term::phase(lv.scale(Q::from_integer(2)))),
+            times(rhs, &Term::minus_one_to(lv.scale(Q::from_integer(2)))),
         ));
         out.push((
             format!("phase (-1)^({v})"),
-            times(rhs, &Term::phase(lv.clone())),
+            times(rhs, &Term::minus_one_to(lv.clone())),
         ));
         if *k == Kind::AngularMomentum {
             let base = lv
@@ -119,16 +119,16 @@ fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
     // swaps and dropped triangle factors, on the right side (or the left
     // when the right has no symbol)
     let (side_is_rhs, side) = if rhs
-        .terms
+        .terms()
         .iter()
-        .any(|t| t.factors.iter().any(Factor::is_symbol))
+        .any(|t| t.factors().iter().any(Factor::is_symbol))
     {
         (true, rhs)
     } else {
         (false, lhs)
     };
-    for (ti, t) in side.terms.iter().enumerate() {
-        for (fi, f) in t.factors.iter().enumerate() {
+    for (ti, t) in side.terms().iter().enumerate() {
+        for (fi, f) in t.factors().iter().enumerate() {
             let n = f.lins().len();
             if f.is_symbol() {
                 for i in 0..n {
@@ -137,9 +137,7 @@ fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
                         if g == *f {
                             continue;
                         }
-                        let mut alt = side.clone();
-                        alt.terms[ti].factors[fi] = g.clone();
-                        alt.terms[ti] = alt.terms[ti].clone().normalized();
+                        let alt = side.with_term_edited(ti, |p| p.factors[fi] = g.clone());
                         out.push((
                             format!(
                                 "swap {} and {} of {}",
@@ -168,12 +166,12 @@ fn candidates(lhs: &Expr, rhs: &Expr) -> Vec<(String, Expr)> {
             .collect();
     }
     // a triangle factor of the right side dropped
-    for (ti, t) in rhs.terms.iter().enumerate() {
-        for (fi, f) in t.factors.iter().enumerate() {
+    for (ti, t) in rhs.terms().iter().enumerate() {
+        for (fi, f) in t.factors().iter().enumerate() {
             if matches!(f, Factor::Tri(_)) {
-                let mut alt = rhs.clone();
-                alt.terms[ti].factors.remove(fi);
-                alt.terms[ti] = alt.terms[ti].clone().normalized();
+                let alt = rhs.with_term_edited(ti, |p| {
+                    p.factors.remove(fi);
+                });
                 out.push((format!("drop {}", recoup::syntax::print_factor(f)), alt));
             }
         }

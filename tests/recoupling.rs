@@ -185,9 +185,9 @@ fn agree_with_brute(
         let nine = r
             .outcome
             .result
-            .terms
+            .terms()
             .iter()
-            .flat_map(|t| &t.factors)
+            .flat_map(|t| t.factors())
             .any(|f| matches!(f, recoup::expr::Factor::NineJ(_)));
         assert!(
             !nine,
@@ -351,7 +351,7 @@ fn permuted(tree: &str, n: usize, rng: &mut Rng) -> String {
 
 fn bare_of(r: &Recoupling) -> Bare {
     let e = recoup::graph::reduce::with_cg_as_3j(&r.overlap);
-    let t = &e.terms[0];
+    let t = &e.terms()[0];
     let g = recoup::graph::Graph::of_term(t);
     let mut slots = vec![[None; 3]; g.vertices.len()];
     for (li, l) in g.lines.iter().enumerate() {

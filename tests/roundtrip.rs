@@ -5,8 +5,7 @@
 use num_bigint::BigInt;
 use num_rational::BigRational;
 use proptest::prelude::*;
-use recoup::expr::{Expr, Factor, Lin, Name, Term, Q};
-use recoup::numeric::Surd;
+use recoup::expr::{Expr, Factor, Lin, Name, Term, TermParts, Q};
 use recoup::syntax::parse;
 
 const VARS: &[&str] = &["a", "b", "j1", "j12", "J'", "m", "m_a", "x"];
@@ -68,14 +67,14 @@ fn term() -> impl Strategy<Value = Term> {
     )
         .prop_map(|(n, d, root, phase, factors, bound)| {
             let n = if n == 0 { 1 } else { n };
-            let mut t = Term::one();
-            let c = BigRational::new(BigInt::from(n), BigInt::from(d));
-            let s = Surd::monomial_squarefree(c, root.into());
-            t.set_scalar(&s);
-            t.phase = phase;
-            t.factors = factors;
-            t.bound = bound.into_iter().map(|i| Name::from(VARS[i])).collect();
-            t.normalized()
+            TermParts {
+                coef: BigRational::new(BigInt::from(n), BigInt::from(d)),
+                root: root.into(),
+                phase,
+                factors,
+                bound: bound.into_iter().map(|i| Name::from(VARS[i])).collect(),
+            }
+            .normalized()
         })
 }
 
@@ -84,7 +83,7 @@ fn term() -> impl Strategy<Value = Term> {
 fn expr() -> impl Strategy<Value = Expr> {
     proptest::collection::vec(
         term().prop_filter("literal arguments that are not physics do not parse", |t| {
-            t.factors
+            t.factors()
                 .iter()
                 .all(|f| recoup::syntax::literal_problem(f).is_none())
         }),

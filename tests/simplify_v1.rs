@@ -18,13 +18,12 @@ fn simp(s: &str) -> String {
 /// Every image of the symbol, with its phase, as a spelling of the same value.
 fn spellings(symbol: &str) -> Vec<String> {
     let e = parse(symbol).unwrap();
-    let f = e.terms[0].factors[0].clone();
+    let f = e.terms()[0].factors()[0].clone();
     classical_images(&f)
         .into_iter()
         .map(|img| {
-            let mut t = Term::factor(img.factor);
-            t.phase = img.phase;
-            Expr::from_term(t.normalized()).to_string()
+            let t = Term::factor(img.factor).mul(&Term::minus_one_to(img.phase));
+            Expr::from_term(t).to_string()
         })
         .collect()
 }

@@ -16,16 +16,15 @@ fn check_all(
     expect: usize,
 ) {
     let e = parse(symbol).unwrap();
-    let f = e.terms[0].factors[0].clone();
+    let f = e.terms()[0].factors()[0].clone();
     let imgs = images(&f);
     let mut distinct: Vec<_> = imgs.iter().map(|i| i.factor.clone()).collect();
     distinct.sort();
     distinct.dedup();
     assert_eq!(distinct.len(), expect, "{symbol}: group size");
     for (k, img) in imgs.iter().enumerate() {
-        let mut t = Term::factor(img.factor.clone());
-        t.phase = img.phase.clone();
-        let rhs = Expr::from_term(t.normalized());
+        let t = Term::factor(img.factor.clone()).mul(&Term::minus_one_to(img.phase.clone()));
+        let rhs = Expr::from_term(t);
         let s = SpotSettings {
             max_j: Q::from_integer(3),
             samples: 12,

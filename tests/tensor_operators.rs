@@ -33,8 +33,8 @@ fn derives(input: &str, published: &str, physical: bool) -> String {
     let e = parse(input).unwrap_or_else(|err| panic!("{input}: {err}"));
     let out = simplify(&e, &Options::default()).unwrap_or_else(|err| panic!("{input}: {err}"));
     let result = out.result.to_string();
-    let reduced = out.result.terms.iter().all(|t| {
-        t.factors.iter().all(|f| match f {
+    let reduced = out.result.terms().iter().all(|t| {
+        t.factors().iter().all(|f| match f {
             Factor::Element(m) => m.is_irreducible(),
             _ => true,
         })

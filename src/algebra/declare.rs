@@ -221,8 +221,8 @@ pub fn unimplied_summed(e: &Expr) -> Option<(Name, Parity, Term)> {
     if nothing_declared() {
         return None;
     }
-    for t in &e.terms {
-        for b in &t.bound {
+    for t in e.terms() {
+        for b in t.bound() {
             let Some(p) = parity_of(b) else { continue };
             let (ints, zeros) = integral_forms_except(t, Some(b));
             let lattice = PhaseLattice::new(&t.kinds(), &ints, &zeros);

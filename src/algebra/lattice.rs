@@ -48,7 +48,7 @@ pub fn integral_forms_except(t: &Term, skip: Option<&Name>) -> (Vec<Lin>, Vec<Li
         ));
     }
     let mut zeros = Vec::new();
-    for f in &t.factors {
+    for f in t.factors() {
         for [a, b, c] in f.triads() {
             ints.push(&(a + b) + c);
         }
@@ -144,8 +144,8 @@ impl PhaseLattice {
     /// The lattice of a term with extra forms known to be integers.
     pub fn of_term_with(t: &Term, extra: &[Lin]) -> PhaseLattice {
         let (mut ints, zeros) = integral_forms(t);
-        if !t.phase.is_zero() {
-            ints.push(t.phase.clone());
+        if !t.phase().is_zero() {
+            ints.push(t.phase().clone());
         }
         ints.extend(extra.iter().cloned());
         let kinds = t.kinds();
@@ -157,8 +157,8 @@ impl PhaseLattice {
     pub fn of_term_eliminating(t: &Term, first: &[Name]) -> PhaseLattice {
         let (mut ints, zeros) = integral_forms(t);
         // the phase exponent itself is an integer wherever it means anything
-        if !t.phase.is_zero() {
-            ints.push(t.phase.clone());
+        if !t.phase().is_zero() {
+            ints.push(t.phase().clone());
         }
         let kinds = t.kinds();
         PhaseLattice::with_order(&kinds, &ints, &zeros, first)
@@ -432,9 +432,9 @@ mod tests {
 
     fn reduced(text: &str) -> String {
         let e = parse(text).unwrap();
-        let t = &e.terms[0];
+        let t = &e.terms()[0];
         let l = PhaseLattice::of_term(t);
-        l.reduce(&t.phase).to_string()
+        l.reduce(t.phase()).to_string()
     }
 
     #[test]

@@ -29,7 +29,7 @@ fn never_integer(l: &Lin) -> bool {
 
 /// True when a selection rule makes the term vanish for every assignment.
 pub fn selection_zero(t: &Term) -> bool {
-    for f in &t.factors {
+    for f in t.factors() {
         if let Some(c) = f.conservation() {
             if c.is_constant() && !c.is_zero() {
                 return true;
@@ -66,7 +66,7 @@ pub fn selection_zero(t: &Term) -> bool {
     // a symmetry that maps a symbol to itself with the phase -1 (the
     // lattice is built only when some symmetry maps a symbol to itself)
     let fixed: Vec<Lin> = t
-        .factors
+        .factors()
         .iter()
         .filter(|f| f.is_symbol())
         .flat_map(|f| {
@@ -95,10 +95,9 @@ pub fn canonical_term_assuming(t: &Term, regge: bool, facts: &[Lin]) -> Option<T
     if t.is_zero() || selection_zero(t) {
         return None;
     }
-    let mut out = t.clone();
-    let mut phase = out.phase.clone();
-    let mut factors = Vec::with_capacity(out.factors.len());
-    for f in &out.factors {
+    let mut phase = t.phase().clone();
+    let mut factors = Vec::with_capacity(t.factors().len());
+    for f in t.factors() {
         if f.is_symbol() {
             let img = canonical(f, regge);
             phase = &phase + &img.phase;
@@ -127,17 +126,20 @@ pub fn canonical_term_assuming(t: &Term, regge: bool, facts: &[Lin]) -> Option<T
         }
         _ => true,
     });
-    out.factors = factors;
-    out.phase = phase;
+    let mut parts = t.parts();
+    parts.factors = factors;
+    parts.phase = phase;
+    let out = parts.normalized();
     let vars = out.all_vars();
     let relevant: Vec<Lin> = facts
         .iter()
-        .filter(|l| l.vars().all(|v| vars.contains(v) && !out.bound.contains(v)))
+        .filter(|l| l.vars().all(|v| vars.contains(v) && !out.bound().contains(v)))
         .cloned()
         .collect();
     let lattice = PhaseLattice::of_term_with(&out, &relevant);
-    out.phase = lattice.reduce(&out.phase);
-    let out = out.normalized();
+    let mut parts = out.into_parts();
+    parts.phase = lattice.reduce(&parts.phase);
+    let out = parts.normalized();
     if out.is_zero() {
         None
     } else {
@@ -152,11 +154,11 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
     let mut changed = false;
     loop {
         let mut did = false;
-        for (i, f) in cur.factors.iter().enumerate() {
+        for (i, f) in cur.factors().iter().enumerate() {
             let Factor::Delta(a, b) = f else { continue };
             let d = a - b;
             let pick = cur
-                .bound
+                .bound()
                 .iter()
                 .find(|v| {
                     let c = d.coeff(v);
@@ -168,10 +170,10 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
                 let c = d.coeff(&v);
                 let rest = d.substitute(&v, &Lin::zero());
                 let by = rest.scale(-c.recip());
-                let mut next = cur.clone();
+                let mut next = cur.parts();
                 next.factors.remove(i);
                 next.bound.retain(|x| *x != v);
-                next = next.substitute(&v, &by);
+                let next = next.normalized().substitute(&v, &by);
                 cur = next;
                 did = true;
                 changed = true;
@@ -197,9 +199,9 @@ pub fn eliminate_deltas(t: &Term) -> (Term, bool) {
 pub fn eliminate_pinned_projections(t: &Term, facts: &[Lin]) -> Term {
     let mut cur = t.clone();
     'again: loop {
-        for v in cur.bound.clone() {
+        for v in cur.bound().to_vec() {
             let holders: Vec<&Factor> = cur
-                .factors
+                .factors()
                 .iter()
                 .filter(|f| f.is_symbol() && f.has(&v))
                 .collect();
@@ -207,14 +209,14 @@ pub fn eliminate_pinned_projections(t: &Term, facts: &[Lin]) -> Term {
             let pinned = holders.iter().find_map(|f| {
                 let c = f.conservation()?;
                 let k = c.coeff(&v);
-                let free = c.vars().all(|x| *x == v || !cur.bound.contains(x));
+                let free = c.vars().all(|x| *x == v || !cur.bound().contains(x));
                 (k.abs() == Q::from_integer(1) && free)
                     .then(|| c.substitute(&v, &Lin::zero()).scale(-k.recip()))
             });
             let Some(by) = pinned else { continue };
-            let mut next = cur.clone();
+            let mut next = cur.parts();
             next.bound.retain(|x| *x != v);
-            let next = next.substitute(&v, &by);
+            let next = next.normalized().substitute(&v, &by);
             // the integer forms of the new term, without the columns the
             // substitution made
             let made: Vec<Lin> = holders
@@ -250,8 +252,8 @@ pub fn substitute_free_deltas(t: &Term) -> Term {
     let mut done: Vec<Name> = Vec::new();
     loop {
         let mut changed = false;
-        for i in 0..cur.factors.len() {
-            let Factor::Delta(a, b) = &cur.factors[i] else {
+        for i in 0..cur.factors().len() {
+            let Factor::Delta(a, b) = &cur.factors()[i] else {
                 continue;
             };
             let d = a - b;
@@ -259,7 +261,7 @@ pub fn substitute_free_deltas(t: &Term) -> Term {
             let v = d
                 .terms()
                 .filter(|(n, c)| {
-                    !cur.bound.contains(n)
+                    !cur.bound().contains(n)
                         && !done.contains(n)
                         && (**c == Q::from_integer(1) || **c == Q::from_integer(-1))
                 })
@@ -267,20 +269,20 @@ pub fn substitute_free_deltas(t: &Term) -> Term {
                 .max();
             let Some(v) = v else { continue };
             let uses = cur
-                .factors
+                .factors()
                 .iter()
                 .enumerate()
                 .any(|(k, f)| k != i && f.has(&v))
-                || cur.phase.has(&v);
+                || cur.phase().has(&v);
             if !uses {
                 continue;
             }
             let c = d.coeff(&v);
             let by = d.substitute(&v, &Lin::zero()).scale(-c.recip());
-            let delta = cur.factors[i].clone();
-            let mut next = cur.clone();
+            let delta = cur.factors()[i].clone();
+            let mut next = cur.parts();
             next.factors.remove(i);
-            next = next.substitute(&v, &by);
+            let mut next = next.normalized().substitute(&v, &by).into_parts();
             next.factors.push(delta);
             cur = next.normalized();
             // every variable of this delta is settled now (no ping-pong)
@@ -300,19 +302,19 @@ pub fn same_shape_alpha(a: &Term, b: &Term) -> bool {
     if a.same_shape(b) {
         return true;
     }
-    if a.bound.len() != b.bound.len()
-        || a.bound.is_empty()
-        || a.bound.len() > 5
-        || a.factors.len() != b.factors.len()
-        || a.root != b.root
+    if a.bound().len() != b.bound().len()
+        || a.bound().is_empty()
+        || a.bound().len() > 5
+        || a.factors().len() != b.factors().len()
+        || a.root() != b.root()
     {
         return false;
     }
-    let n = a.bound.len();
+    let n = a.bound().len();
     let mut perm: Vec<usize> = (0..n).collect();
     loop {
         let map: BTreeMap<Name, Name> = (0..n)
-            .map(|i| (b.bound[perm[i]].clone(), a.bound[i].clone()))
+            .map(|i| (b.bound()[perm[i]].clone(), a.bound()[i].clone()))
             .collect();
         // rename b's bound vars through fresh names to avoid collisions
         let renamed = rename_bound(b, &map);
@@ -362,19 +364,19 @@ fn next_perm(p: &mut [usize]) -> bool {
 /// Adds a term to an expression, merging it into an alpha-equivalent term.
 pub fn push_merging(e: &mut Expr, t: Term) {
     if let Some(pos) = e
-        .terms
+        .terms()
         .iter()
         .position(|u| !u.same_shape(&t) && same_shape_alpha(u, &t))
     {
         let renamed = {
             // bring t's bound names to u's
-            let u = &e.terms[pos];
+            let u = &e.terms()[pos];
             let mut found = None;
-            let n = u.bound.len();
+            let n = u.bound().len();
             let mut perm: Vec<usize> = (0..n).collect();
             loop {
                 let map: BTreeMap<Name, Name> = (0..n)
-                    .map(|i| (t.bound[perm[i]].clone(), u.bound[i].clone()))
+                    .map(|i| (t.bound()[perm[i]].clone(), u.bound()[i].clone()))
                     .collect();
                 let r = rename_bound(&t, &map);
                 if r.same_shape(u) {
@@ -407,14 +409,14 @@ pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
     // a fact shown by one term says nothing where another term is nonzero:
     // only the facts every term shows hold wherever the input is nonzero
     let mut common: Option<Vec<Lin>> = None;
-    for t in &e.terms {
+    for t in e.terms() {
         let mut out: Vec<Lin> = Vec::new();
-        for f in &t.factors {
+        for f in t.factors() {
             for (j, m) in f.columns() {
                 let Some((v, _)) = m.as_signed_var() else {
                     continue;
                 };
-                if t.bound.contains(v) || j.vars().any(|x| t.bound.contains(x)) {
+                if t.bound().contains(v) || j.vars().any(|x| t.bound().contains(x)) {
                     continue;
                 }
                 let l = j - m;
@@ -435,7 +437,7 @@ pub fn free_projection_facts(e: &Expr) -> Vec<Lin> {
 /// admissibility of the input's free projections).
 pub fn canonical_expr_assuming(e: &Expr, regge: bool, facts: &[Lin]) -> Expr {
     let mut out = Expr::zero();
-    for t in &e.terms {
+    for t in e.terms() {
         let (t, _) = eliminate_deltas(t);
         let t = eliminate_pinned_projections(&t, facts);
         let t = substitute_free_deltas(&t);

@@ -563,8 +563,8 @@ pub fn explain_phase(text: &str, e: &Expr, err: &EvalError) -> Option<(String, V
             names.insert(v.clone());
             continue;
         }
-        for t in &e.terms {
-            for f in &t.factors {
+        for t in e.terms() {
+            for f in t.factors() {
                 let slots: Vec<&crate::expr::Lin> = f
                     .columns()
                     .into_iter()

@@ -318,9 +318,9 @@ impl RecouplingReport {
         let result = &r.outcome.result;
         let most = |k: fn(&crate::expr::Factor) -> bool| {
             result
-                .terms
+                .terms()
                 .iter()
-                .map(|t| t.factors.iter().filter(|f| k(f)).count())
+                .map(|t| t.factors().iter().filter(|f| k(f)).count())
                 .max()
                 .unwrap_or(0)
         };
@@ -328,9 +328,9 @@ impl RecouplingReport {
             result: result.to_string(),
             latex: latex::expr(result),
             sums: result
-                .terms
+                .terms()
                 .iter()
-                .map(|t| t.bound.len())
+                .map(|t| t.bound().len())
                 .max()
                 .unwrap_or(0),
             symbols: SymbolCounts {
@@ -438,14 +438,14 @@ pub struct TermShape {
 /// other algebra systems.
 pub fn shape(e: &Expr) -> Vec<TermShape> {
     use crate::expr::Factor;
-    e.terms
+    e.terms()
         .iter()
         .map(|t| TermShape {
-            coefficient: crate::numeric::surd::fmt_rational(&t.coef),
-            root: t.root.to_string(),
-            phase: LinearShape::from(&t.phase),
+            coefficient: crate::numeric::surd::fmt_rational(t.coef()),
+            root: t.root().to_string(),
+            phase: LinearShape::from(t.phase()),
             factors: t
-                .factors
+                .factors()
                 .iter()
                 .map(|f| {
                     let kind = match f {
@@ -470,7 +470,7 @@ pub fn shape(e: &Expr) -> Vec<TermShape> {
                     }
                 })
                 .collect(),
-            summed: t.bound.iter().map(|n| n.to_string()).collect(),
+            summed: t.bound().iter().map(|n| n.to_string()).collect(),
         })
         .collect()
 }

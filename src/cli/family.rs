@@ -200,16 +200,16 @@ pub fn run(a: FamilyArgs, io: &mut Io) -> Result<(), Failure> {
             }
         )));
     }
-    let [t] = e.terms.as_slice() else {
+    let [t] = e.terms() else {
         return Err(Failure::input(
             "family takes one symbol (a 3j, a Clebsch-Gordan coefficient or a 6j), not a sum",
         ));
     };
-    let symbols: Vec<&Factor> = t.factors.iter().filter(|f| f.is_symbol()).collect();
+    let symbols: Vec<&Factor> = t.factors().iter().filter(|f| f.is_symbol()).collect();
     let one_symbol = symbols.len() == 1
-        && t.factors.len() == 1
-        && t.bound.is_empty()
-        && t.phase.is_zero()
+        && t.factors().len() == 1
+        && t.bound().is_empty()
+        && t.phase().is_zero()
         && t.scalar() == Surd::one()
         && !matches!(symbols[0], Factor::NineJ(_));
     if !one_symbol {

@@ -55,8 +55,8 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
     let e = parse_expr(&read_arg(&a.expr, io)?)?;
     // Clebsch-Gordan coefficients are drawn as the 3j they stand for
     let e = crate::graph::reduce::with_cg_as_3j(&e);
-    let has_vertex = e.terms.iter().any(|t| {
-        t.factors
+    let has_vertex = e.terms().iter().any(|t| {
+        t.factors()
             .iter()
             .any(|f| matches!(f, crate::expr::Factor::ThreeJ(_)))
     });
@@ -66,7 +66,7 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
         ));
     }
     let has_line = e
-        .terms
+        .terms()
         .iter()
         .any(|t| !crate::graph::Graph::of_term(t).lines.is_empty());
     if !has_line {
@@ -80,13 +80,13 @@ pub fn run(a: GraphArgs, io: &mut Io) -> Result<(), Failure> {
             terms: Vec<dot::GraphShape>,
         }
         let terms = Terms {
-            terms: e.terms.iter().map(dot::shape).collect(),
+            terms: e.terms().iter().map(dot::shape).collect(),
         };
         outln!(io, "{}", super::json_text(&terms)?)?;
         return Ok(());
     }
     // one picture: several terms as labelled clusters
-    let text = dot::dot_terms(&e.terms);
+    let text = dot::dot_terms(e.terms());
     if a.svg || a.png {
         let bytes = render(&text, if a.svg { "svg" } else { "png" })?;
         io.out.write_all(&bytes)?;

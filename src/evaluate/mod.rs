@@ -550,7 +550,7 @@ impl CTerm {
         let mut cheap = Vec::new();
         let mut powers = Vec::new();
         let mut symbols = Vec::new();
-        for f in &t.factors {
+        for f in t.factors() {
             let args = || f.lins().iter().map(|l| cl(l)).collect::<Vec<_>>();
             match f {
                 Factor::Delta(a, b) => cheap.push(CFactor::Delta(cl(a), cl(b))),
@@ -567,18 +567,18 @@ impl CTerm {
         factors.extend(powers);
         factors.extend(symbols);
         let n = names.len();
-        let bound: Vec<usize> = t.bound.iter().map(|b| index[b]).collect();
+        let bound: Vec<usize> = t.bound().iter().map(|b| index[b]).collect();
         let free: Vec<usize> = (0..n).filter(|i| !bound.contains(i)).collect();
         let order = if bound.is_empty() {
             Ok(Vec::new())
         } else {
-            let c = crate::algebra::selection::Constraints::of(&t.factors);
+            let c = crate::algebra::selection::Constraints::of(t.factors());
             let all_eq: Vec<CLin> = c.eq.iter().map(&cl).collect();
             let all_ge: Vec<CLin> = c.ge.iter().map(&cl).collect();
             let all_int: Vec<CLin> = c.integral.iter().map(&cl).collect();
             static_order(n, &free, &bound, &all_eq, &all_ge, &all_int)
         };
-        let phase = (!t.phase.is_zero()).then(|| (cl(&t.phase), t.phase.to_string()));
+        let phase = (!t.phase().is_zero()).then(|| (cl(t.phase()), t.phase().to_string()));
         CTerm {
             order,
             free,
@@ -770,13 +770,13 @@ pub fn check_assignment(e: &Expr, at: &Assignment) -> Result<(), EvalError> {
         }
     }
     let get = |n: &Name| at.get(n).copied();
-    for t in &e.terms {
-        for f in &t.factors {
+    for t in e.terms() {
+        for f in t.factors() {
             for (j, m) in f.columns() {
                 let Some((mv, _)) = m.as_signed_var() else {
                     continue;
                 };
-                if t.bound.contains(mv) || j.vars().any(|x| t.bound.contains(x)) {
+                if t.bound().contains(mv) || j.vars().any(|x| t.bound().contains(x)) {
                     continue;
                 }
                 let (Some(jval), Some(mval)) = (j.eval(&get), m.eval(&get)) else {
@@ -821,7 +821,7 @@ impl<F: Field> Evaluator<F> {
     pub fn eval(&self, e: &Expr, at: &Assignment) -> Result<F, EvalError> {
         *self.points.borrow_mut() = 0;
         let mut acc = F::zero();
-        for t in &e.terms {
+        for t in e.terms() {
             let v = self.eval_term(t, at)?;
             acc = acc.add(&v);
         }

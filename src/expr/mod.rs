@@ -12,5 +12,5 @@ pub use element::{MatrixElement, Operator, OperatorName, State};
 pub use factor::{Factor, Kind};
 pub use lin::{Lin, Q};
 pub use name::Name;
-pub use term::{Expr, Term};
+pub use term::{Expr, Term, TermParts};
 pub use tree::{CouplingTree, TreeLeaf};

@@ -4,6 +4,12 @@
 //! relies on: factors sorted, equal power bases merged, constant powers and
 //! constant deltas folded, integer constant phases folded into the sign,
 //! identical terms merged.
+//!
+//! The normal form is an invariant: the fields of `Term` and `Expr` are
+//! private, every constructor and every changing method returns a term in
+//! normal form. Code that assembles a term piece by piece works on
+//! `TermParts` (public fields, no invariant) and ends with
+//! `TermParts::normalized`.
 
 use super::factor::{Factor, Kind};
 use super::lin::{Lin, Q};
@@ -14,26 +20,69 @@ use num_rational::BigRational;
 use num_traits::{One, Signed, ToPrimitive, Zero};
 use std::collections::{BTreeMap, BTreeSet};
 
-/// `coef · sqrt(root) · (-1)^phase · Π factors`, summed over `bound`.
+/// `coef · sqrt(root) · (-1)^phase · Π factors`, summed over `bound`,
+/// always in normal form (see the module comment).
 #[derive(Clone, PartialEq, Eq, Hash, Debug)]
 pub struct Term {
     /// rational coefficient
-    pub coef: BigRational,
+    coef: BigRational,
     /// square-free radicand of the constant (1 for none)
+    root: BigUint,
+    /// the exponent of the phase `(-1)^phase`
+    phase: Lin,
+    /// the factors, in canonical order
+    factors: Vec<Factor>,
+    /// summed variables, sorted
+    bound: Vec<Name>,
+}
+
+/// The pieces of a term while it is being assembled: no invariant holds
+/// until `normalized` turns them into a `Term`.
+#[derive(Clone, Debug)]
+pub struct TermParts {
+    /// rational coefficient
+    pub coef: BigRational,
+    /// radicand of the constant (1 for none; any positive integer here)
     pub root: BigUint,
     /// the exponent of the phase `(-1)^phase`
     pub phase: Lin,
-    /// the factors, in canonical order
+    /// the factors, in any order
     pub factors: Vec<Factor>,
-    /// summed variables, sorted
+    /// summed variables, in any order
     pub bound: Vec<Name>,
 }
 
-/// A sum of terms (the empty sum is 0).
+impl TermParts {
+    /// The term these parts make, in normal form.
+    pub fn normalized(self) -> Term {
+        let mut t = Term {
+            coef: self.coef,
+            root: BigUint::one(),
+            phase: self.phase,
+            factors: self.factors,
+            bound: self.bound,
+        };
+        if !self.root.is_one() {
+            // the radicand need not be square-free here
+            let s = &t.scalar() * &Surd::signed_sqrt(false, &BigRational::from(BigInt::from(self.root)))
+                .expect("a positive radicand has a square root");
+            t.set_scalar(&s);
+        }
+        t.normalized()
+    }
+}
+
+impl Default for TermParts {
+    fn default() -> Self {
+        Term::one().into_parts()
+    }
+}
+
+/// A sum of terms (the empty sum is 0): no zero term, like terms merged.
 #[derive(Clone, PartialEq, Eq, Hash, Debug, Default)]
 pub struct Expr {
     /// the terms, in the order written (like terms merged)
-    pub terms: Vec<Term>,
+    terms: Vec<Term>,
 }
 
 /// Converts a small rational to a big one.
@@ -79,10 +128,75 @@ impl Term {
     }
 
     /// A phase `(-1)^e`.
-    pub fn phase(e: Lin) -> Term {
+    pub fn minus_one_to(e: Lin) -> Term {
         let mut t = Term::one();
         t.phase = e;
         t.normalized()
+    }
+
+    /// The rational coefficient.
+    pub fn coef(&self) -> &BigRational {
+        &self.coef
+    }
+
+    /// The square-free radicand of the constant (1 for none).
+    pub fn root(&self) -> &BigUint {
+        &self.root
+    }
+
+    /// The exponent of the phase `(-1)^phase`.
+    pub fn phase(&self) -> &Lin {
+        &self.phase
+    }
+
+    /// The factors, in canonical order.
+    pub fn factors(&self) -> &[Factor] {
+        &self.factors
+    }
+
+    /// The summed variables, sorted.
+    pub fn bound(&self) -> &[Name] {
+        &self.bound
+    }
+
+    /// The pieces of this term, to assemble a changed one.
+    pub fn parts(&self) -> TermParts {
+        self.clone().into_parts()
+    }
+
+    /// The pieces of this term, to assemble a changed one.
+    pub fn into_parts(self) -> TermParts {
+        TermParts {
+            coef: self.coef,
+            root: self.root,
+            phase: self.phase,
+            factors: self.factors,
+            bound: self.bound,
+        }
+    }
+
+    /// The same term with the rational coefficient `c`.
+    pub fn with_coef(&self, c: BigRational) -> Term {
+        if c.is_zero() {
+            return self.clone().zeroed();
+        }
+        let mut t = self.clone();
+        t.coef = c;
+        t
+    }
+
+    /// The negated term.
+    pub fn negated(&self) -> Term {
+        let mut t = self.clone();
+        t.coef = -t.coef;
+        t
+    }
+
+    /// The same term with these factors (normalized again).
+    pub fn with_factors(&self, factors: Vec<Factor>) -> Term {
+        let mut p = self.parts();
+        p.factors = factors;
+        p.normalized()
     }
 
     /// True when the coefficient is 0.
@@ -95,8 +209,9 @@ impl Term {
         Surd::monomial_squarefree(self.coef.clone(), self.root.clone())
     }
 
-    /// Sets the constant part from a monomial value.
-    pub fn set_scalar(&mut self, v: &Surd) {
+    /// Sets the constant part from a monomial value (the caller
+    /// normalizes: a zero value leaves the other parts in place).
+    fn set_scalar(&mut self, v: &Surd) {
         match Term::constant(v) {
             Some(c) => {
                 self.coef = c.coef;
@@ -110,6 +225,16 @@ impl Term {
     pub fn scale(&mut self, v: &Surd) {
         let s = &self.scalar() * v;
         self.set_scalar(&s);
+        if self.coef.is_zero() {
+            *self = std::mem::replace(self, Term::one()).zeroed();
+        }
+    }
+
+    /// The term times a monomial value.
+    pub fn scaled(&self, v: &Surd) -> Term {
+        let mut t = self.clone();
+        t.scale(v);
+        t
     }
 
     /// Every variable that occurs (free or bound).
@@ -280,7 +405,7 @@ impl Term {
     }
 
     /// The light normal form (see the module comment).
-    pub fn normalized(mut self) -> Term {
+    fn normalized(mut self) -> Term {
         crate::limits::tick();
         if self.coef.is_zero() {
             return self.zeroed();
@@ -542,6 +667,40 @@ impl Expr {
         e
     }
 
+    /// The sum of these terms (like terms merged, zeros dropped).
+    pub fn from_terms(terms: impl IntoIterator<Item = Term>) -> Expr {
+        let mut e = Expr::zero();
+        for t in terms {
+            e.push(t);
+        }
+        e
+    }
+
+    /// The terms.
+    pub fn terms(&self) -> &[Term] {
+        &self.terms
+    }
+
+    /// The terms, by value.
+    pub fn into_terms(self) -> Vec<Term> {
+        self.terms
+    }
+
+    /// The same sum with term `i` changed by `edit` (then normalized and
+    /// merged again).
+    pub fn with_term_edited(&self, i: usize, edit: impl FnOnce(&mut TermParts)) -> Expr {
+        let mut parts = self.terms[i].parts();
+        edit(&mut parts);
+        let mut edit = Some(parts);
+        Expr::from_terms(self.terms.iter().enumerate().map(|(k, t)| {
+            if k == i {
+                edit.take().expect("edited once").normalized()
+            } else {
+                t.clone()
+            }
+        }))
+    }
+
     /// A constant.
     pub fn constant(v: &Surd) -> Expr {
         let mut e = Expr::zero();
@@ -594,11 +753,9 @@ impl Expr {
 
     /// The negation.
     pub fn neg(&self) -> Expr {
-        let mut e = self.clone();
-        for t in &mut e.terms {
-            t.coef = -t.coef.clone();
+        Expr {
+            terms: self.terms.iter().map(Term::negated).collect(),
         }
-        e
     }
 
     /// The product (expanded).

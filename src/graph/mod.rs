@@ -68,7 +68,7 @@ impl Graph {
     /// The graph of a term's 3j symbols and summed projections.
     pub fn of_term(t: &Term) -> Graph {
         let mut g = Graph::default();
-        for (i, f) in t.factors.iter().enumerate() {
+        for (i, f) in t.factors().iter().enumerate() {
             if let Factor::ThreeJ(a) = f {
                 g.vertices.push(Vertex {
                     factor: i,
@@ -82,7 +82,7 @@ impl Graph {
         }
         let kinds = t.kinds();
         let mut on_line: Vec<[bool; 3]> = vec![[false; 3]; g.vertices.len()];
-        for v in &t.bound {
+        for v in t.bound() {
             if kinds.get(v) != Some(&Kind::Projection) {
                 continue;
             }
@@ -100,7 +100,7 @@ impl Graph {
                 }
             }
             let elsewhere = t
-                .factors
+                .factors()
                 .iter()
                 .any(|f| !matches!(f, Factor::ThreeJ(_) | Factor::Power(..)) && f.has(v));
             if compound || elsewhere {

@@ -530,7 +530,7 @@ mod tests {
 
     fn fewest(n: usize, edges: &[(usize, usize)], nine_j_is_a_sum: bool) -> Option<usize> {
         let e = parse(&cubic_graph_sum(n, edges)).unwrap();
-        let g = Graph::of_term(&e.terms[0]);
+        let g = Graph::of_term(&e.terms()[0]);
         fewest_sums(
             &g,
             &Measure {
@@ -556,7 +556,7 @@ mod tests {
     #[test]
     fn a_choice_is_offered_only_where_an_interchange_is_next() {
         let e = parse(&cubic_graph_sum(6, &PRISM)).unwrap();
-        let g = Graph::of_term(&e.terms[0]);
+        let g = Graph::of_term(&e.terms()[0]);
         let m = Measure {
             nine_j_is_a_sum: true,
             budget: 1000,

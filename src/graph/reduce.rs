@@ -83,7 +83,7 @@ fn rewrite_in(
 /// True when the term sums over a projection.
 pub fn has_projection_sum(t: &Term) -> bool {
     let k = t.kinds();
-    t.bound.iter().any(|b| k.get(b) == Some(&Kind::Projection))
+    t.bound().iter().any(|b| k.get(b) == Some(&Kind::Projection))
 }
 
 /// Converts the first Clebsch–Gordan coefficient that shares a summed
@@ -91,11 +91,11 @@ pub fn has_projection_sum(t: &Term) -> bool {
 fn cg_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
     let k = t.kinds();
     let summed: Vec<_> = t
-        .bound
+        .bound()
         .iter()
         .filter(|b| k.get(*b) == Some(&Kind::Projection))
         .collect();
-    let idx = t.factors.iter().position(|f| {
+    let idx = t.factors().iter().position(|f| {
         matches!(f, Factor::Cg(_)) && f.m_slots().iter().any(|l| summed.iter().any(|b| l.has(b)))
     })?;
     cg_to_3j_at(t, idx, regge)
@@ -105,15 +105,15 @@ fn cg_step(t: &Term, regge: bool) -> Option<GraphRewrite> {
 /// variable into a 3j (cg-to-3j): the sum identities are stated with 3j.
 pub fn cg_in_sum_step(t: &Term) -> Option<GraphRewrite> {
     let idx = t
-        .factors
+        .factors()
         .iter()
-        .position(|f| matches!(f, Factor::Cg(_)) && t.bound.iter().any(|b| f.has(b)))?;
+        .position(|f| matches!(f, Factor::Cg(_)) && t.bound().iter().any(|b| f.has(b)))?;
     cg_to_3j_at(t, idx, false)
 }
 
 fn cg_to_3j_at(t: &Term, idx: usize, regge: bool) -> Option<GraphRewrite> {
     // bind the pattern to this CG's arguments exactly
-    let Factor::Cg(a) = &t.factors[idx] else {
+    let Factor::Cg(a) = &t.factors()[idx] else {
         return None;
     };
     let p = &patterns().cg;
@@ -286,18 +286,18 @@ fn interchange_at(
 pub fn with_cg_as_3j(e: &Expr) -> Expr {
     let p = &patterns().cg;
     let mut out = Expr::zero();
-    for t in &e.terms {
+    for t in e.terms() {
         let mut cur = Expr::from_term(t.clone());
         loop {
             let mut next = Expr::zero();
             let mut changed = false;
-            for u in &cur.terms {
-                let idx = u.factors.iter().position(|f| matches!(f, Factor::Cg(_)));
+            for u in cur.terms() {
+                let idx = u.factors().iter().position(|f| matches!(f, Factor::Cg(_)));
                 let Some(idx) = idx else {
                     next.push(u.clone());
                     continue;
                 };
-                let Factor::Cg(a) = &u.factors[idx] else {
+                let Factor::Cg(a) = &u.factors()[idx] else {
                     unreachable!()
                 };
                 let mut req = Subst::new();
@@ -306,7 +306,7 @@ pub fn with_cg_as_3j(e: &Expr) -> Expr {
                 }
                 match p.apply_first(u, &req, false) {
                     Some((_, r)) => {
-                        for x in r.terms {
+                        for x in r.into_terms() {
                             next.push(x);
                         }
                         changed = true;
@@ -319,7 +319,7 @@ pub fn with_cg_as_3j(e: &Expr) -> Expr {
                 break;
             }
         }
-        for x in cur.terms {
+        for x in cur.into_terms() {
             out.push(x);
         }
     }
@@ -332,17 +332,17 @@ pub fn with_3j_as_cg(e: &Expr) -> Option<Expr> {
     let p = Pattern::new(rule("3j-to-cg"))?;
     let mut out = Expr::zero();
     let mut changed = false;
-    for t in &e.terms {
+    for t in e.terms() {
         let mut cur = t.clone();
         loop {
-            let idx = cur.factors.iter().position(|f| {
+            let idx = cur.factors().iter().position(|f| {
                 matches!(f, Factor::ThreeJ(_))
                     && f.m_slots()
                         .iter()
-                        .all(|l| !l.has_any(&cur.bound.iter().cloned().collect()))
+                        .all(|l| !l.has_any(&cur.bound().iter().cloned().collect()))
             });
             let Some(idx) = idx else { break };
-            let Factor::ThreeJ(a) = &cur.factors[idx] else {
+            let Factor::ThreeJ(a) = &cur.factors()[idx] else {
                 unreachable!()
             };
             let mut req = Subst::new();
@@ -351,7 +351,7 @@ pub fn with_3j_as_cg(e: &Expr) -> Option<Expr> {
             }
             match p.apply_first(&cur, &req, false) {
                 Some((_, r)) if r.len() == 1 => {
-                    cur = r.terms[0].clone();
+                    cur = r.terms()[0].clone();
                     changed = true;
                 }
                 _ => break,

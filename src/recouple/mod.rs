@@ -10,7 +10,7 @@
 pub mod matrix;
 
 use crate::algebra::normal::canonical_expr;
-use crate::expr::{CouplingTree, Expr, Factor, Lin, Name, Term, Q};
+use crate::expr::{CouplingTree, Expr, Factor, Lin, Name, Term, TermParts, Q};
 use crate::simplify::{
     expand_definition, gate, simplify, Derivation, Options, Outcome, Proposal, SimplifyError,
 };
@@ -174,7 +174,7 @@ fn labelled_subtrees(t: &CouplingTree) -> BTreeMap<String, String> {
 /// tree's label; the factor collects `delta` of the two labels, the
 /// triangle factors of its couplings and the phase of swapped children.
 fn cancel_common(from: &CouplingTree, to: &CouplingTree) -> (CouplingTree, CouplingTree, Term) {
-    let mut factor = Term::one();
+    let mut factor = TermParts::default();
     let mut common: BTreeMap<String, (Lin, CouplingTree)> = BTreeMap::new();
     fn collect(t: &CouplingTree, acc: &mut Vec<(String, CouplingTree)>) {
         if let CouplingTree::Node(a, b, _) = t {
@@ -224,7 +224,7 @@ fn cancel_common(from: &CouplingTree, to: &CouplingTree) -> (CouplingTree, Coupl
     (f2, t2, factor.normalized())
 }
 
-fn add_common_factors(a: &CouplingTree, b: &CouplingTree, acc: &mut Term) {
+fn add_common_factors(a: &CouplingTree, b: &CouplingTree, acc: &mut TermParts) {
     if let (CouplingTree::Node(a1, a2, la), CouplingTree::Node(b1, b2, _lb)) = (a, b) {
         acc.factors.push(Factor::Tri([
             a1.label().clone(),
@@ -385,7 +385,7 @@ fn overlap_of(
             );
         }
     }
-    let mut term = factor;
+    let mut term = factor.into_parts();
     term.factors.extend(cgs);
     term.bound.extend(bound);
     Expr::from_term(term.normalized())
@@ -432,15 +432,15 @@ impl Recoupling {
 
 /// Number of sums over angular momenta (in the term with the most).
 fn sums_of(e: &Expr) -> usize {
-    e.terms.iter().map(|t| t.bound.len()).max().unwrap_or(0)
+    e.terms().iter().map(|t| t.bound().len()).max().unwrap_or(0)
 }
 
 /// Number of 6j and 9j symbols (in the term with the most).
 fn symbols_of(e: &Expr) -> (usize, usize) {
     let mut best = (0, 0);
-    for t in &e.terms {
+    for t in e.terms() {
         let count = |six: bool| {
-            t.factors
+            t.factors()
                 .iter()
                 .filter(|f| match f {
                     Factor::SixJ(_) => six,

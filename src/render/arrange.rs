@@ -12,7 +12,7 @@
 
 use crate::algebra::lattice::PhaseLattice;
 use crate::algebra::symmetry::classical_images;
-use crate::expr::{Expr, Factor, Lin, Name, Term};
+use crate::expr::{Expr, Factor, Lin, Name};
 use std::collections::BTreeMap;
 
 /// The order in which `texts` first name each variable (the first text
@@ -86,11 +86,11 @@ fn arrange_factor(f: &Factor, ranks: &BTreeMap<Name, usize>) -> (Factor, Lin) {
 /// `e` with every 6j and 9j arranged for reading by `ranks` (equal in
 /// value; phases reduced modulo integrality).
 pub fn for_reading(e: &Expr, ranks: &BTreeMap<Name, usize>) -> Expr {
-    let terms = e.terms.iter().map(|t| {
-        let mut out: Term = t.clone();
-        let mut phase = t.phase.clone();
-        out.factors = t
-            .factors
+    Expr::from_terms(e.terms().iter().map(|t| {
+        let mut parts = t.parts();
+        let mut phase = t.phase().clone();
+        parts.factors = t
+            .factors()
             .iter()
             .map(|f| {
                 let (g, p) = arrange_factor(f, ranks);
@@ -98,14 +98,13 @@ pub fn for_reading(e: &Expr, ranks: &BTreeMap<Name, usize>) -> Expr {
                 g
             })
             .collect();
-        out.phase = phase;
-        let lattice = PhaseLattice::of_term(&out);
-        out.phase = lattice.reduce(&out.phase);
-        out.normalized()
-    });
-    Expr {
-        terms: terms.collect(),
-    }
+        parts.phase = phase;
+        let arranged = parts.normalized();
+        let lattice = PhaseLattice::of_term(&arranged);
+        let mut parts = arranged.into_parts();
+        parts.phase = lattice.reduce(&parts.phase);
+        parts.normalized()
+    }))
 }
 
 #[cfg(test)]

@@ -125,12 +125,12 @@ pub fn term_lines(e: &Expr) -> Vec<String> {
     if fits(&whole, LINE_BUDGET) {
         return vec![whole];
     }
-    if e.terms.len() < 2 {
+    if e.terms().len() < 2 {
         return packed_lines(&whole, LINE_BUDGET);
     }
     let mut lines: Vec<String> = Vec::new();
     let mut current = String::new();
-    for (i, t) in e.terms.iter().enumerate() {
+    for (i, t) in e.terms().iter().enumerate() {
         let text = latex::expr(&Expr::from_term(t.clone()));
         let piece = match (i, text.strip_prefix('-')) {
             (0, _) => text.clone(),

@@ -359,7 +359,7 @@ pub fn expr(e: &Expr) -> String {
         return "0".into();
     }
     let mut s = String::new();
-    for (i, t) in e.terms.iter().enumerate() {
+    for (i, t) in e.terms().iter().enumerate() {
         let x = term(t);
         if i == 0 {
             s.push_str(&x);

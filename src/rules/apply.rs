@@ -36,15 +36,16 @@ impl<'a> Prepared<'a> {
             .map(|v| (v.clone(), internal(v)))
             .collect();
         let lhs = rule.lhs.rename(&map);
-        let t = &lhs.terms[0];
-        if !t.bound.is_empty() || t.factors.len() != 1 || !t.factors[0].is_symbol() {
+        let t = &lhs.terms()[0];
+        if !t.bound().is_empty() || t.factors().len() != 1 || !t.factors()[0].is_symbol() {
             return None;
         }
-        let mut coef_term = t.clone();
+        let mut coef_term = t.parts();
         coef_term.factors.clear();
+        let coef_term = coef_term.normalized();
         Some(Prepared {
             rule,
-            pattern: t.factors[0].clone(),
+            pattern: t.factors()[0].clone(),
             coef_term,
             rhs: rule.rhs.rename(&map),
             vars: map.values().cloned().collect(),
@@ -55,11 +56,11 @@ impl<'a> Prepared<'a> {
     /// The first rewrite of a term by this rule: the expression that
     /// replaces the term, or `None`.
     pub fn rewrite(&self, t: &Term, regge: bool) -> Option<Expr> {
-        for (i, f) in t.factors.iter().enumerate() {
+        for (i, f) in t.factors().iter().enumerate() {
             if std::mem::discriminant(f) != std::mem::discriminant(&self.pattern) {
                 continue;
             }
-            if self.outside_sums && t.bound.iter().any(|b| f.has(b)) {
+            if self.outside_sums && t.bound().iter().any(|b| f.has(b)) {
                 continue;
             }
             let images = if regge {
@@ -74,9 +75,10 @@ impl<'a> Prepared<'a> {
                     continue;
                 };
                 // t = (-1)^phase img ... and img = coef_term * rhs / pattern coef
-                let mut rest = t.clone();
+                let mut rest = t.parts();
                 rest.factors.remove(i);
                 rest.phase = &rest.phase + &img.phase;
+                let rest = rest.normalized();
                 let mut rhs = self.rhs.clone();
                 for (v, by) in &s {
                     rhs = rhs.substitute(v, by);
@@ -87,12 +89,13 @@ impl<'a> Prepared<'a> {
                     .scalar()
                     .recip()
                     .expect("nonzero pattern coefficient");
-                let mut scale = Term::one();
-                scale.set_scalar(&inv);
-                scale.phase = -&substitute_lin(&self.coef_term.phase, &s);
+                let mut scale = Term::constant(&inv)
+                    .expect("a monomial pattern coefficient")
+                    .into_parts();
+                scale.phase = -&substitute_lin(self.coef_term.phase(), &s);
                 let rest = rest.mul_inside(&scale.normalized());
                 let mut out = Expr::zero();
-                for r in &rhs.terms {
+                for r in rhs.terms() {
                     out.push(rest.mul_inside(r));
                 }
                 return Some(out);

@@ -38,7 +38,7 @@ pub fn readable_bound(t: &Term) -> Term {
 fn unguarded_projections(lhs: &Term, rhs: &Expr, free: &BTreeSet<Name>) -> Vec<(Name, Lin)> {
     let kinds = lhs.kinds();
     let mut out: Vec<(Name, Lin)> = Vec::new();
-    for f in &lhs.factors {
+    for f in lhs.factors() {
         for (j, m) in f.columns() {
             let Some((p, _)) = m.as_signed_var() else {
                 continue;
@@ -48,19 +48,19 @@ fn unguarded_projections(lhs: &Term, rhs: &Expr, free: &BTreeSet<Name>) -> Vec<(
             }
             // held in a column, or pinned with its j to 0 by deltas
             let zero = |t: &Term, l: &Lin| {
-                t.factors.iter().any(|g| match g {
+                t.factors().iter().any(|g| match g {
                     Factor::Delta(a, b) => (a == l && b.is_zero()) || (b == l && a.is_zero()),
                     _ => false,
                 })
             };
             let held = |t: &Term| {
-                t.factors.iter().any(|g| {
+                t.factors().iter().any(|g| {
                     g.columns()
                         .iter()
                         .any(|(cj, cm)| *cj == j && cm.as_signed_var().map(|x| x.0) == Some(p))
                 }) || (zero(t, m) && zero(t, j))
             };
-            if !rhs.terms.iter().all(held) && !out.iter().any(|(q, _)| q == p) {
+            if !rhs.terms().iter().all(held) && !out.iter().any(|(q, _)| q == p) {
                 out.push((p.clone(), j.clone()));
             }
         }
@@ -178,20 +178,20 @@ impl Pattern {
     /// Prepares a rule whose left side is one term of symbols, powers and a
     /// phase (`None` for other shapes).
     pub fn new(rule: &Rule) -> Option<Pattern> {
-        let t0 = &rule.lhs.terms[0];
+        let t0 = &rule.lhs.terms()[0];
         // every name of the rule goes internal, the right side's own
         // summed variables too: no substituted value can be captured
         let mut lhs_names: BTreeSet<Name> = rule.lhs.free_vars();
-        lhs_names.extend(t0.bound.iter().cloned());
+        lhs_names.extend(t0.bound().iter().cloned());
         let mut names = lhs_names.clone();
-        for t in &rule.rhs.terms {
-            names.extend(t.bound.iter().cloned());
+        for t in rule.rhs.terms() {
+            names.extend(t.bound().iter().cloned());
         }
         let map: BTreeMap<Name, Name> = names.iter().map(|v| (v.clone(), internal(v))).collect();
         let t = t0.rename(&map);
         let mut symbols = Vec::new();
         let mut powers = Vec::new();
-        for f in &t.factors {
+        for f in t.factors() {
             match f {
                 Factor::Power(b, e) => powers.push((b.clone(), *e)),
                 f if f.is_symbol() => symbols.push(f.clone()),
@@ -202,7 +202,7 @@ impl Pattern {
             return None;
         }
         // order the symbols so each shares a summed variable with earlier ones
-        let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+        let bound: BTreeSet<Name> = t.bound().iter().cloned().collect();
         let mut ordered: Vec<Factor> = vec![symbols.remove(0)];
         while !symbols.is_empty() {
             let pos = symbols
@@ -217,7 +217,7 @@ impl Pattern {
         }
         let kinds = t.kinds();
         let bound_kinds = t
-            .bound
+            .bound()
             .iter()
             .map(|b| (b.clone(), kinds.get(b).copied().unwrap_or(Kind::Other)))
             .collect();
@@ -231,9 +231,9 @@ impl Pattern {
             source: rule.source.clone(),
             symbols: ordered,
             powers,
-            phase: t.phase.clone(),
+            phase: t.phase().clone(),
             scalar: t.scalar(),
-            bound: t.bound.clone(),
+            bound: t.bound().to_vec(),
             bound_kinds,
             vars,
             free,
@@ -258,10 +258,10 @@ impl Pattern {
                 // input's facts); with a summed j the sum runs over values
                 // of j that the projection does not fit, which the dropped
                 // column was zeroing: another column must still say so
-                if !t.bound.contains(v) && !jv.vars().any(|x| t.bound.contains(x)) {
+                if !t.bound().contains(v) && !jv.vars().any(|x| t.bound().contains(x)) {
                     return true;
                 }
-                return t.factors.iter().enumerate().any(|(i, f)| {
+                return t.factors().iter().enumerate().any(|(i, f)| {
                     !m.factors.contains(&i)
                         && f.columns().iter().any(|(cj, cm)| {
                             **cj == jv && cm.as_signed_var().map(|x| x.0) == Some(v)
@@ -281,15 +281,16 @@ impl Pattern {
             c.is_zero()
                 && lattice
                     .get_or_insert_with(|| {
-                        let mut rest = t.clone();
+                        let mut rest = t.parts();
                         rest.phase = Lin::zero();
                         rest.factors = t
-                            .factors
+                            .factors()
                             .iter()
                             .enumerate()
                             .filter(|(i, _)| !m.factors.contains(i))
                             .map(|(_, f)| f.clone())
                             .collect();
+                        let rest = rest.normalized();
                         let (mut ints, zeros) = crate::algebra::lattice::integral_forms(&rest);
                         let all = t.all_vars();
                         ints.extend(crate::algebra::declare::declared_forms(&all));
@@ -340,7 +341,7 @@ impl Pattern {
         allowed: Option<&[usize]>,
         accept: &mut dyn FnMut(Match) -> bool,
     ) {
-        let mut used = vec![false; t.factors.len()];
+        let mut used = vec![false; t.factors().len()];
         if let Some(a) = allowed {
             for (i, u) in used.iter_mut().enumerate() {
                 *u = !a.contains(&i);
@@ -355,7 +356,7 @@ impl Pattern {
                 .filter(|p| std::mem::discriminant(*p) == std::mem::discriminant(pat))
                 .count();
             let have = t
-                .factors
+                .factors()
                 .iter()
                 .enumerate()
                 .filter(|(i, f)| {
@@ -374,10 +375,10 @@ impl Pattern {
             .map(|b| self.symbols.iter().filter(|f| f.has(b)).count())
             .collect();
         let mut have: Vec<usize> = t
-            .bound
+            .bound()
             .iter()
             .map(|b| {
-                t.factors
+                t.factors()
                     .iter()
                     .filter(|f| f.is_symbol() && f.has(b))
                     .count()
@@ -404,7 +405,7 @@ impl Pattern {
         let kinds: Vec<std::mem::Discriminant<Factor>> =
             self.symbols.iter().map(std::mem::discriminant).collect();
         let images: Vec<Vec<Image>> = t
-            .factors
+            .factors()
             .iter()
             .enumerate()
             .map(|(i, f)| {
@@ -455,7 +456,7 @@ impl Pattern {
             return;
         }
         let pat = &self.symbols[k];
-        for (i, f) in t.factors.iter().enumerate() {
+        for (i, f) in t.factors().iter().enumerate() {
             if used[i] || std::mem::discriminant(f) != std::mem::discriminant(pat) {
                 continue;
             }
@@ -492,7 +493,7 @@ impl Pattern {
             if let Some((b, _)) = p.as_signed_var() {
                 if self.bound_kinds.contains_key(b) {
                     match x.as_signed_var() {
-                        Some((v, _)) if t.bound.contains(v) => {}
+                        Some((v, _)) if t.bound().contains(v) => {}
                         _ => return false,
                     }
                 }
@@ -518,7 +519,7 @@ impl Pattern {
             let Some((v, neg)) = l.as_signed_var() else {
                 return false;
             };
-            if !t.bound.contains(v) || !seen.insert(v.clone()) {
+            if !t.bound().contains(v) || !seen.insert(v.clone()) {
                 return false;
             }
             if neg && self.bound_kinds.get(b) != Some(&Kind::Projection) {
@@ -551,7 +552,7 @@ impl Pattern {
         // the summed variables must not appear in unmatched symbols, deltas
         // or triangle factors
         let matched: BTreeSet<usize> = chosen.iter().map(|(i, _)| *i).collect();
-        for (i, f) in t.factors.iter().enumerate() {
+        for (i, f) in t.factors().iter().enumerate() {
             if matched.contains(&i) || matches!(f, Factor::Power(..)) {
                 continue;
             }
@@ -589,13 +590,13 @@ impl Pattern {
         // normalise the needed bases the way terms store them
         let norm = |b: &Lin, e: Q| -> (Lin, Q) {
             let t = Term::factor(Factor::Power(b.clone(), e));
-            match t.factors.as_slice() {
+            match t.factors() {
                 [Factor::Power(nb, ne)] => (nb.clone(), *ne),
                 _ => (b.clone(), e),
             }
         };
         let mut needed: Vec<(Lin, Q)> = needed.iter().map(|(b, e)| norm(b, *e)).collect();
-        for (i, f) in t.factors.iter().enumerate() {
+        for (i, f) in t.factors().iter().enumerate() {
             if matched.contains(&i) {
                 continue;
             }
@@ -612,7 +613,7 @@ impl Pattern {
             return None;
         }
         // phase: term = (-1)^(e_T + Σ img) Π images; pattern brings σ(e_P)
-        let mut d = t.phase.clone();
+        let mut d = t.phase().clone();
         for img in &m.images {
             d = &d + &img.phase;
         }
@@ -621,16 +622,15 @@ impl Pattern {
         let lattice = PhaseLattice::of_term_eliminating(t, &first);
         let d = lattice.eliminate(&d, &first)?;
         // the rest of the term, with the compensations
-        let mut rest = t.clone();
+        let mut rest = t.parts();
         rest.factors = rest_factors;
         rest.bound.retain(|b| !summed.contains(b));
         rest.phase = d;
-        let inv = self.scalar.recip()?;
-        rest.scale(&inv);
         for (b, e) in compensate {
             rest.factors.push(Factor::Power(b, -e));
         }
-        let rest = rest.normalized();
+        let inv = self.scalar.recip()?;
+        let rest = rest.normalized().scaled(&inv);
         let mut rhs = self.rhs.clone();
         for (v, by) in s {
             if self.free.contains(v) {
@@ -638,7 +638,7 @@ impl Pattern {
             }
         }
         let mut out = Expr::zero();
-        for r in &rhs.terms {
+        for r in rhs.terms() {
             out.push(readable_bound(&rest.mul_inside(r)));
         }
         Some(out)
@@ -712,12 +712,13 @@ impl Pattern {
     /// matched factors with the pattern's sums, and its right side.
     pub fn instance(&self, t: &Term, m: &Match) -> (Expr, Expr) {
         let s = &m.subst;
-        let mut lhs = Term::one();
-        lhs.set_scalar(&self.scalar);
+        let mut lhs = Term::constant(&self.scalar)
+            .expect("a monomial pattern coefficient")
+            .into_parts();
         lhs.phase = apply(&self.phase, s);
         for (k, _) in self.symbols.iter().enumerate() {
             let i = m.factors[k];
-            lhs.factors.push(t.factors[i].clone());
+            lhs.factors.push(t.factors()[i].clone());
             lhs.phase = &lhs.phase - &m.images[k].phase;
         }
         for (b, e) in &self.powers {
@@ -730,7 +731,7 @@ impl Pattern {
                 rhs = rhs.substitute(v, by);
             }
         }
-        let rhs = Expr::merged(rhs.terms.iter().map(readable_bound));
+        let rhs = Expr::merged(rhs.terms().iter().map(readable_bound));
         (Expr::from_term(lhs.normalized()), rhs)
     }
 }

@@ -67,7 +67,7 @@ pub const MAX_TERM_VARS: usize = 800;
 
 /// Refuses, before any work, a term too large for the normal form.
 fn check_size(e: &Expr) -> Result<(), SimplifyError> {
-    for t in &e.terms {
+    for t in e.terms() {
         let n = t.all_vars().len();
         if n > MAX_TERM_VARS {
             return Err(SimplifyError::Limit(format!(
@@ -297,9 +297,9 @@ impl<'a> Derivation<'a> {
 /// The expression with term `i` replaced by the terms of `by`.
 fn replace_term(e: &Expr, i: usize, by: &Expr) -> Expr {
     let mut next = Expr::zero();
-    for (k, u) in e.terms.iter().enumerate() {
+    for (k, u) in e.terms().iter().enumerate() {
         if k == i {
-            for x in &by.terms {
+            for x in by.terms() {
                 next.push(x.clone());
             }
         } else {
@@ -334,10 +334,10 @@ fn exact_values(e: &Expr) -> Option<Expr> {
     let ev = Evaluator::<Surd>::new();
     let mut changed = false;
     let mut out = Expr::zero();
-    for t in &e.terms {
-        let mut nt = t.clone();
+    for t in e.terms() {
+        let mut values = Vec::new();
         let mut keep = Vec::new();
-        for f in &t.factors {
+        for f in t.factors() {
             // numeric symbols of moderate size become numbers (larger ones
             // stay symbols: their exact values are long and slow)
             let small = f.lins().iter().all(|l| {
@@ -347,7 +347,7 @@ fn exact_values(e: &Expr) -> Option<Expr> {
                 let single = Expr::from_term(Term::factor(f.clone()));
                 match ev.eval(&single, &Default::default()) {
                     Ok(v) if v.terms().count() <= 1 => {
-                        nt.scale(&v);
+                        values.push(v);
                         changed = true;
                         continue;
                     }
@@ -357,17 +357,20 @@ fn exact_values(e: &Expr) -> Option<Expr> {
                 keep.push(f.clone());
             }
         }
-        nt.factors = keep;
-        out.push(nt.normalized());
+        let mut nt = t.with_factors(keep);
+        for v in &values {
+            nt.scale(v);
+        }
+        out.push(nt);
     }
     changed.then_some(out)
 }
 
 /// True when every summed variable still appears in a factor that bounds it.
 fn sums_stay_bounded(e: &Expr) -> bool {
-    e.terms.iter().all(|t| {
-        t.bound.iter().all(|v| {
-            t.factors.iter().any(|f| {
+    e.terms().iter().all(|t| {
+        t.bound().iter().all(|v| {
+            t.factors().iter().any(|f| {
                 (f.is_symbol() || matches!(f, Factor::Tri(_) | Factor::Delta(..))) && f.has(v)
             })
         })
@@ -418,14 +421,14 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             if d.len() > 20_000 {
                 d.clear();
             }
-            for t in ts.iter().filter(|t| !t.bound.is_empty()) {
+            for t in ts.iter().filter(|t| !t.bound().is_empty()) {
                 d.insert(term_key(t, key));
             }
         })
     };
     for regge in [false, true] {
-        for (i, t) in cur.terms.iter().enumerate() {
-            if t.bound.is_empty() || dead(t) {
+        for (i, t) in cur.terms().iter().enumerate() {
+            if t.bound().is_empty() || dead(t) {
                 continue;
             }
             for p in usable() {
@@ -435,7 +438,7 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
                 };
                 let source = if regge {
                     // the terms before it fit nothing in either pass
-                    bury(&cur.terms[..i]);
+                    bury(&cur.terms()[..i]);
                     p.source.clone().noted("matched through a Regge symmetry")
                 } else {
                     p.source.clone()
@@ -449,16 +452,16 @@ fn momentum_sum_step(cur: &Expr, opts: &Options) -> Option<Proposal> {
             }
         }
     }
-    bury(&cur.terms);
+    bury(cur.terms());
     // the identities are stated with 3j: a sum whose Clebsch-Gordan
     // coefficients hold a summed variable has them written as 3j first,
     // one at a time, when an identity fits the term so written
-    for (i, t) in cur.terms.iter().enumerate() {
+    for (i, t) in cur.terms().iter().enumerate() {
         let Some(first) = crate::graph::reduce::cg_in_sum_step(t) else {
             continue;
         };
         let single =
-            |e: &Expr| -> Option<Term> { (e.terms.len() == 1).then(|| e.terms[0].clone()) };
+            |e: &Expr| -> Option<Term> { (e.terms().len() == 1).then(|| e.terms()[0].clone()) };
         let mut written = first.replacement.clone();
         while let Some(next) = single(&written)
             .as_ref()
@@ -533,12 +536,12 @@ fn no_identity_key(opts: &Options) -> u64 {
 
 /// Number of sums and of symbols of the most complex term.
 fn weight(e: &Expr) -> (usize, usize) {
-    e.terms
+    e.terms()
         .iter()
         .map(|t| {
             (
-                t.bound.len(),
-                t.factors.iter().filter(|f| f.is_symbol()).count(),
+                t.bound().len(),
+                t.factors().iter().filter(|f| f.is_symbol()).count(),
             )
         })
         .max()
@@ -551,10 +554,10 @@ fn weight(e: &Expr) -> (usize, usize) {
 /// x.
 fn graphical_route_may_fit(t: &Term, x: &crate::expr::Name, with_x: &[usize]) -> bool {
     let entries =
-        |k: usize| -> Vec<crate::expr::Lin> { t.factors[k].lins().into_iter().cloned().collect() };
+        |k: usize| -> Vec<crate::expr::Lin> { t.factors()[k].lins().into_iter().cloned().collect() };
     match with_x {
         [k] => {
-            let f = &t.factors[*k];
+            let f = &t.factors()[*k];
             let triads: Vec<Vec<crate::expr::Lin>> = f
                 .triads()
                 .into_iter()
@@ -601,31 +604,31 @@ fn graphical_route(
 ) -> Option<Proposal> {
     let expand = crate::rules::matcher::Pattern::new(crate::rules::rule("6j-as-projection-sum"))
         .expect("the 6j definition is a pattern");
-    for (i, t) in cur.terms.iter().enumerate() {
+    for (i, t) in cur.terms().iter().enumerate() {
         if !tried.insert(t.clone()) {
             continue;
         }
         // small pure sums over angular momenta only (the route simplifies a
         // whole term again, which is worth it only there)
         if crate::graph::reduce::has_projection_sum(t)
-            || t.factors.iter().filter(|f| f.is_symbol()).count() > 4
+            || t.factors().iter().filter(|f| f.is_symbol()).count() > 4
         {
             continue;
         }
         let kinds = t.kinds();
         for x in t
-            .bound
+            .bound()
             .iter()
             .filter(|b| kinds.get(*b) == Some(&crate::expr::Kind::AngularMomentum))
         {
-            let with_x: Vec<usize> = (0..t.factors.len())
-                .filter(|&k| t.factors[k].is_symbol() && t.factors[k].has(x))
+            let with_x: Vec<usize> = (0..t.factors().len())
+                .filter(|&k| t.factors()[k].is_symbol() && t.factors()[k].has(x))
                 .collect();
             if with_x.is_empty()
                 || with_x.len() > 2
                 || with_x
                     .iter()
-                    .any(|&k| !matches!(t.factors[k], Factor::SixJ(_)))
+                    .any(|&k| !matches!(t.factors()[k], Factor::SixJ(_)))
             {
                 continue;
             }
@@ -633,7 +636,7 @@ fn graphical_route(
                 continue;
             }
             for &k in with_x.iter().rev() {
-                let Factor::SixJ(a) = &t.factors[k] else {
+                let Factor::SixJ(a) = &t.factors()[k] else {
                     continue;
                 };
                 let mut req = crate::algebra::unify::Subst::new();
@@ -756,13 +759,13 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
     // where the user wrote Clebsch-Gordan coefficients and no 3j, the 3j
     // left with free projections read better as CGs again
     let wrote_cg = input
-        .terms
+        .terms()
         .iter()
-        .any(|t| t.factors.iter().any(|f| matches!(f, Factor::Cg(_))));
+        .any(|t| t.factors().iter().any(|f| matches!(f, Factor::Cg(_))));
     let wrote_3j = input
-        .terms
+        .terms()
         .iter()
-        .any(|t| t.factors.iter().any(|f| matches!(f, Factor::ThreeJ(_))));
+        .any(|t| t.factors().iter().any(|f| matches!(f, Factor::ThreeJ(_))));
     if wrote_cg && !wrote_3j {
         if let Some(next) = crate::graph::reduce::with_3j_as_cg(&d.cur) {
             let r = crate::rules::rule("3j-to-cg");
@@ -775,7 +778,7 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
         }
     }
     let mut notes: Vec<String> = Vec::new();
-    for t in &d.cur.terms {
+    for t in d.cur.terms() {
         for n in Graph::of_term(t).notes {
             if !notes.contains(&n) {
                 notes.push(n);
@@ -783,7 +786,7 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
         }
         let kinds = t.kinds();
         let left: Vec<String> = t
-            .bound
+            .bound()
             .iter()
             .filter(|b| kinds.get(*b) == Some(&crate::expr::Kind::AngularMomentum))
             .map(|b| b.to_string())
@@ -831,7 +834,7 @@ pub fn expand_definition(d: &mut Derivation, rule_name: &str) -> Result<(), Simp
     let rule = crate::rules::rule(rule_name);
     let pattern = crate::rules::matcher::Pattern::new(rule)
         .ok_or_else(|| SimplifyError::Internal(format!("{rule_name} is not a pattern")))?;
-    let shape = &rule.lhs.terms[0].factors[0];
+    let shape = &rule.lhs.terms()[0].factors()[0];
     let names: Vec<crate::expr::Name> = shape
         .lins()
         .iter()
@@ -843,15 +846,15 @@ pub fn expand_definition(d: &mut Derivation, rule_name: &str) -> Result<(), Simp
     let same_kind = |f: &Factor| std::mem::discriminant(f) == std::mem::discriminant(shape);
     let mut left = d
         .current()
-        .terms
+        .terms()
         .iter()
-        .map(|t| t.factors.iter().filter(|f| same_kind(f)).count())
+        .map(|t| t.factors().iter().filter(|f| same_kind(f)).count())
         .sum::<usize>();
     while left > 0 {
         left -= 1;
         let cur = d.current().clone();
-        let found = cur.terms.iter().enumerate().find_map(|(i, t)| {
-            let f = t.factors.iter().find(|f| same_kind(f))?;
+        let found = cur.terms().iter().enumerate().find_map(|(i, t)| {
+            let f = t.factors().iter().find(|f| same_kind(f))?;
             let mut req = crate::algebra::unify::Subst::new();
             for (n, l) in names.iter().zip(f.lins()) {
                 req.insert(pattern.var(n.as_str()), l.clone());
@@ -862,7 +865,7 @@ pub fn expand_definition(d: &mut Derivation, rule_name: &str) -> Result<(), Simp
         let Some((i, m, replacement)) = found else {
             break;
         };
-        let t = &cur.terms[i];
+        let t = &cur.terms()[i];
         d.advance(Proposal {
             rule: rule.name.clone(),
             source: rule.source.clone(),
@@ -938,7 +941,7 @@ fn next_proposal(
     tried_graphical: &mut std::collections::HashSet<Term>,
 ) -> Option<Proposal> {
     for p in prepared {
-        for (i, t) in cur.terms.iter().enumerate() {
+        for (i, t) in cur.terms().iter().enumerate() {
             let Some(replacement) = p.rewrite(t, opts.regge) else {
                 continue;
             };
@@ -963,7 +966,7 @@ fn next_proposal(
         }
     }
     // the graph reduction of projection sums
-    for (i, t) in cur.terms.iter().enumerate() {
+    for (i, t) in cur.terms().iter().enumerate() {
         if let Some(r) = next_step_skipping(t, opts.regge, &opts.skip_rules) {
             return Some(Proposal {
                 rule: r.rule,

@@ -10,7 +10,7 @@
 //! other.
 
 use crate::algebra::normal::canonical_expr;
-use crate::expr::{Expr, Factor, Lin, Name, Q};
+use crate::expr::{Expr, Factor, Lin, Name, Term, Q};
 use crate::verify::spot::{compare_at, points, SpotSettings};
 
 /// A factor `tri(c, x, x)` (in any order) with its variable and `c`.
@@ -35,11 +35,11 @@ fn single_variable_triangle(f: &Factor) -> Option<(Name, i64)> {
 /// admissible.
 pub fn drop_one(e: &Expr, domain: &Expr) -> Option<(Expr, String)> {
     let mut candidates: Vec<&Factor> = Vec::new();
-    for t in &e.terms {
-        if !t.bound.is_empty() {
+    for t in e.terms() {
+        if !t.bound().is_empty() {
             continue;
         }
-        for f in &t.factors {
+        for f in t.factors() {
             if single_variable_triangle(f).is_some() && !candidates.contains(&f) {
                 candidates.push(f);
             }
@@ -47,23 +47,28 @@ pub fn drop_one(e: &Expr, domain: &Expr) -> Option<(Expr, String)> {
     }
     for f in candidates {
         let (x, c) = single_variable_triangle(f)?;
-        let carrying: Vec<usize> = (0..e.terms.len())
-            .filter(|&i| e.terms[i].bound.is_empty() && e.terms[i].factors.contains(f))
+        let carrying: Vec<usize> = (0..e.terms().len())
+            .filter(|&i| e.terms()[i].bound().is_empty() && e.terms()[i].factors().contains(f))
             .collect();
-        let mut without = e.clone();
-        for &i in &carrying {
-            let t = &mut without.terms[i];
-            let k = t.factors.iter().position(|g| g == f).expect("carried");
-            t.factors.remove(k);
-        }
-        let mut rest = Expr::zero();
-        for &i in &carrying {
-            rest.push(without.terms[i].clone());
-        }
+        let without: Vec<Term> = e
+            .terms()
+            .iter()
+            .enumerate()
+            .map(|(i, t)| {
+                if !carrying.contains(&i) {
+                    return t.clone();
+                }
+                let mut parts = t.parts();
+                let k = parts.factors.iter().position(|g| g == f).expect("carried");
+                parts.factors.remove(k);
+                parts.normalized()
+            })
+            .collect();
+        let rest = Expr::from_terms(carrying.iter().map(|&i| without[i].clone()));
         // a denominator that may vanish at a failing value keeps the factor:
         // it guards the division, which no other zero should hide
         let guards_division = carrying.iter().any(|&i| {
-            e.terms[i].factors.iter().any(|g| match g {
+            e.terms()[i].factors().iter().any(|g| match g {
                 Factor::Power(b, p) if *p < Q::from_integer(0) && b.has(&x) => {
                     (0..c).any(|twice| {
                         let at = b.substitute(&x, &Lin::constant(Q::new(twice, 2)));
@@ -81,10 +86,7 @@ pub fn drop_one(e: &Expr, domain: &Expr) -> Option<(Expr, String)> {
             vanishes_everywhere(&rest.substitute(&x, &at), &domain.substitute(&x, &at))
         });
         if vanishes {
-            let mut next = Expr::zero();
-            for t in without.terms {
-                next.push(t.normalized());
-            }
+            let next = Expr::from_terms(without);
             return Some((next, crate::syntax::print_factor(f)));
         }
     }

@@ -247,8 +247,8 @@ impl Ctx<'_> {
             ));
         }
         // powers of one base merge: the merged exponent obeys the limit too
-        for t in &e.terms {
-            for f in &t.factors {
+        for t in e.terms() {
+            for f in t.factors() {
                 if let Factor::Power(b, ex) = f {
                     if ex.abs() > Q::from_integer(MAX_POWER) {
                         return Err(self.err(
@@ -317,14 +317,15 @@ impl Ctx<'_> {
                 "only a product of numbers, powers, hats and phases can be divided by",
             ));
         }
-        let t = &e.terms[0];
-        if !t.bound.is_empty() {
+        let t = &e.terms()[0];
+        if !t.bound().is_empty() {
             return Err(self.err(at, "a sum cannot be divided by"));
         }
-        let mut out = Term::one();
-        out.set_scalar(&t.scalar().recip().expect("nonzero monomial"));
-        out.phase = -&t.phase;
-        for f in &t.factors {
+        let mut out = Term::constant(&t.scalar().recip().expect("nonzero monomial"))
+            .expect("the inverse of a monomial is a monomial")
+            .into_parts();
+        out.phase = -t.phase();
+        for f in t.factors() {
             match f {
                 Factor::Power(base, ex) => out.factors.push(Factor::Power(base.clone(), -*ex)),
                 other => {
@@ -429,7 +430,7 @@ impl Ctx<'_> {
                 let eat = inner.as_span().start();
                 let v = self.primary(inner)?;
                 let l = self.as_lin(v, eat, "the exponent of a phase")?;
-                Ok(Value::Expr(Expr::from_term(Term::phase(l))))
+                Ok(Value::Expr(Expr::from_term(Term::minus_one_to(l))))
             }
             Rule::group => {
                 let rows: Vec<Pair<Rule>> = p.into_inner().collect();
@@ -541,16 +542,17 @@ impl Ctx<'_> {
         let v = self.lower(body)?;
         let e = self.to_expr(v, bat)?;
         let mut out = Expr::zero();
-        for t in e.terms {
-            let mut t = t;
+        for t in e.terms() {
+            let mut t = t.clone();
             for n in &names {
-                if t.bound.contains(n) {
+                if t.bound().contains(n) {
                     // an inner sum over the same name: rename the inner one
                     t = t.freshen(&[n.clone()].into_iter().collect());
                 }
             }
-            t.bound.extend(names.iter().cloned());
-            out.push(t.normalized());
+            let mut parts = t.into_parts();
+            parts.bound.extend(names.iter().cloned());
+            out.push(parts.normalized());
         }
         Ok(Value::Expr(out))
     }
@@ -662,14 +664,13 @@ impl Ctx<'_> {
                 if e.len() != 1 {
                     return Err(bad());
                 }
-                let t = &e.terms[0];
-                if !t.bound.is_empty() || !t.phase.is_zero() {
+                let t = &e.terms()[0];
+                if !t.bound().is_empty() || !t.phase().is_zero() {
                     return Err(bad());
                 }
-                let mut out = Term::one();
                 let (neg, _) = t.scalar().as_signed_square().unwrap();
-                let mut factors = t.factors.clone();
-                let mut coef = t.coef.clone();
+                let mut factors = t.factors().to_vec();
+                let mut coef = t.coef().clone();
                 // the light normal form moves signs out of linear factors
                 // (b+c-a becomes -(a-b-c)), which is harmless in a product
                 // but not under a root: each odd power is turned back to
@@ -715,11 +716,13 @@ impl Ctx<'_> {
                     coef = -coef;
                 }
                 // sqrt(q sqrt(s)) needs s = 1
-                if !t.root.is_one() {
+                if !t.root().is_one() {
                     return Err(bad());
                 }
                 let r = Surd::signed_sqrt(false, &coef).map_err(|e| self.err(at, e.to_string()))?;
-                out.set_scalar(&r);
+                let mut out = Term::constant(&r)
+                    .expect("the root of a rational is a monomial")
+                    .into_parts();
                 for f in &factors {
                     match f {
                         Factor::Power(b, ex) => out
@@ -801,7 +804,7 @@ fn admissible_literal(l: &Lin, j: bool) -> Result<(), String> {
 /// The work of expanding `x * y`: every pair of terms, each costing the
 /// factors it combines.
 fn product_cost(x: &Expr, y: &Expr) -> usize {
-    let factors = |e: &Expr| e.terms.iter().map(|t| t.factors.len() + 1).sum::<usize>();
+    let factors = |e: &Expr| e.terms().iter().map(|t| t.factors().len() + 1).sum::<usize>();
     factors(x)
         .saturating_mul(y.len())
         .saturating_add(factors(y).saturating_mul(x.len()))

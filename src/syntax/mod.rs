@@ -122,8 +122,8 @@ pub fn parse_tree(input: &str) -> Result<CouplingTree, ParseError> {
 /// which the user may not have meant.
 pub fn literal_zero_notes(e: &Expr) -> Vec<String> {
     let mut out = Vec::new();
-    for t in &e.terms {
-        for f in &t.factors {
+    for t in e.terms() {
+        for f in t.factors() {
             for (j, m) in f.columns() {
                 if j.is_constant() && m.is_constant() && m.constant_part().abs() > j.constant_part()
                 {

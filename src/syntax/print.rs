@@ -225,12 +225,12 @@ fn print_product(
 /// One term in plain text.
 pub fn print_term(t: &Term) -> String {
     // a lone linear form prints as one: 5*x-1/2
-    if t.bound.is_empty() && t.phase.is_zero() && t.root.is_one() {
-        if let [Factor::Power(l, e)] = t.factors.as_slice() {
+    if t.bound().is_empty() && t.phase().is_zero() && t.root().is_one() {
+        if let [Factor::Power(l, e)] = t.factors() {
             if *e == Q::one() {
                 if let (Ok(n), Ok(d)) = (
-                    i64::try_from(t.coef.numer().clone()),
-                    i64::try_from(t.coef.denom().clone()),
+                    i64::try_from(t.coef().numer().clone()),
+                    i64::try_from(t.coef().denom().clone()),
                 ) {
                     return l.scale(Q::new(n, d)).to_string();
                 }
@@ -251,10 +251,10 @@ impl fmt::Display for Term {
 
 impl fmt::Display for Expr {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        if self.terms.is_empty() {
+        if self.terms().is_empty() {
             return f.write_str("0");
         }
-        for (i, t) in self.terms.iter().enumerate() {
+        for (i, t) in self.terms().iter().enumerate() {
             let s = print_term(t);
             if i == 0 {
                 f.write_str(&s)?;

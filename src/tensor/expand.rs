@@ -17,6 +17,7 @@ use crate::expr::element::{subtree, NodePath};
 use crate::expr::term::big_q;
 use crate::expr::{
     CouplingTree, Expr, Factor, Lin, MatrixElement, Name, Operator, OperatorName, State, Term,
+    TermParts,
 };
 use crate::rules::source::Source;
 use num_bigint::BigUint;
@@ -91,7 +92,7 @@ impl Build {
     }
 
     fn into_term(self) -> Term {
-        Term {
+        TermParts {
             coef: self.coef,
             root: BigUint::one(),
             phase: self.phase,
@@ -467,8 +468,8 @@ fn chain_term(
                 name => {
                     let entry = builtin(name).expect("every named operator is built in");
                     let rme = entry.instance(x, y, &c.rank, avoid);
-                    match rme.terms.as_slice() {
-                        [t] if t.bound.is_empty() => extra.push(t.clone()),
+                    match rme.terms() {
+                        [t] if t.bound().is_empty() => extra.push(t.clone()),
                         [] => b.coef = BigRational::from_integer(0.into()),
                         _ => {
                             return Err(ExpandError(

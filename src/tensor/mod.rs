@@ -18,8 +18,8 @@ use std::collections::BTreeSet;
 /// theorem, or a reduced matrix element expanded into a projection sum.
 /// Returns the rule's name, its source and the whole expression after.
 pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::ExpandError>> {
-    for (i, t) in e.terms.iter().enumerate() {
-        for (k, f) in t.factors.iter().enumerate() {
+    for (i, t) in e.terms().iter().enumerate() {
+        for (k, f) in t.factors().iter().enumerate() {
             let Factor::Element(m) = f else { continue };
             if m.is_irreducible() {
                 continue;
@@ -40,18 +40,21 @@ pub fn next_rewrite(e: &Expr) -> Option<Result<(String, Source, Expr), expand::E
                     }
                 }
             } else {
-                let avoid: BTreeSet<Name> = e.terms.iter().flat_map(|t| t.all_vars()).collect();
+                let avoid: BTreeSet<Name> = e.terms().iter().flat_map(|t| t.all_vars()).collect();
                 match expand::expand_reduced(m, &avoid) {
                     Ok(x) => ("reduced-matrix-element", expand::expansion_source(), x),
                     Err(err) => return Some(Err(err)),
                 }
             };
-            let mut rest = t.clone();
-            rest.factors.remove(k);
+            let rest = {
+                let mut parts = t.parts();
+                parts.factors.remove(k);
+                parts.normalized()
+            };
             let mut next = Expr::zero();
-            for (j, u) in e.terms.iter().enumerate() {
+            for (j, u) in e.terms().iter().enumerate() {
                 if j == i {
-                    for r in &replacement.terms {
+                    for r in replacement.terms() {
                         next.push(rest.mul_inside(r));
                     }
                 } else {
@@ -105,8 +108,8 @@ pub fn implied_integers(e: &Expr) -> Vec<Name> {
     }
     let free = e.free_vars();
     let mut out = Vec::new();
-    for t in &e.terms {
-        for f in &t.factors {
+    for t in e.terms() {
+        for f in t.factors() {
             if let Factor::Element(m) = f {
                 walk(&m.op, m, &mut out);
             }
@@ -140,8 +143,8 @@ pub fn with_implied_integers<R>(exprs: &[&Expr], f: impl FnOnce() -> R) -> R {
 /// The names of the opaque operators in an expression.
 pub fn opaque_names(e: &Expr) -> BTreeSet<String> {
     let mut out = BTreeSet::new();
-    for t in &e.terms {
-        for f in &t.factors {
+    for t in e.terms() {
+        for f in t.factors() {
             if let Factor::Element(m) = f {
                 for el in m.op.elementaries() {
                     if let crate::expr::Operator::Elementary {

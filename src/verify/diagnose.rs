@@ -10,7 +10,7 @@
 
 use super::sample::{Point, Sampler, Triad};
 use super::spot::{compare, compare_at, SpotReport, SpotSettings, SpotValue};
-use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, Q};
+use crate::expr::{Expr, Factor, Kind, Lin, Name, Term, TermParts, Q};
 use crate::numeric::Surd;
 use num_bigint::BigInt;
 use num_rational::BigRational;
@@ -45,13 +45,13 @@ pub enum Finding {
 /// not even, a factor when its coefficient, radical or factors are not 1.
 fn term_findings(t: &Term) -> Vec<Finding> {
     let mut out = Vec::new();
-    if !t.phase.is_zero() {
+    if !t.phase().is_zero() {
         out.push(Finding::Phase);
     }
-    if !t.coef.abs().is_one() || !t.root.is_one() || !t.factors.is_empty() {
+    if !t.coef().abs().is_one() || !t.root().is_one() || !t.factors().is_empty() {
         out.push(Finding::Factor);
     }
-    if t.coef < BigRational::from_integer(0.into()) && !out.contains(&Finding::Phase) {
+    if *t.coef() < BigRational::from_integer(0.into()) && !out.contains(&Finding::Phase) {
         out.insert(0, Finding::Phase);
     }
     out
@@ -169,7 +169,7 @@ fn missing_triangles(
         if !covered || chosen.is_empty() {
             continue;
         }
-        let mut factor = Term::one();
+        let mut factor = TermParts::default();
         for t in &chosen {
             factor.factors.push(Factor::Tri(t.forms().clone()));
         }
@@ -504,11 +504,13 @@ fn phase_and_factor(
     let (Some((k2, e)), Some(ph)) = (factor, phase) else {
         return Fit::NotFound;
     };
-    let mut t = Term::one();
     let Ok(k) = Surd::signed_sqrt(false, &k2) else {
         return Fit::NotFound;
     };
-    t.set_scalar(&k);
+    let Some(t) = Term::constant(&k) else {
+        return Fit::NotFound;
+    };
+    let mut t = t.into_parts();
     t.phase = ph;
     for (i, v) in jvars.iter().enumerate() {
         if e[i] != 0 {
@@ -524,7 +526,7 @@ fn phase_and_factor(
 /// Multiplies every term of `e` by a term.
 fn times(e: &Expr, t: &Term) -> Expr {
     let mut out = Expr::zero();
-    for u in &e.terms {
+    for u in e.terms() {
         out.push(u.mul(t));
     }
     out
@@ -601,8 +603,8 @@ fn diagnose_values(
     }
     // two arguments of one symbol swapped on the right
     let pts: Vec<Point> = report.values.iter().map(|(p, _, _)| p.clone()).collect();
-    for (ti, t) in rhs.terms.iter().enumerate() {
-        for (fi, f) in t.factors.iter().enumerate() {
+    for (ti, t) in rhs.terms().iter().enumerate() {
+        for (fi, f) in t.factors().iter().enumerate() {
             if !f.is_symbol() {
                 continue;
             }
@@ -613,9 +615,7 @@ fn diagnose_values(
                     if swapped == *f {
                         continue;
                     }
-                    let mut alt = rhs.clone();
-                    alt.terms[ti].factors[fi] = swapped.clone();
-                    alt.terms[ti] = alt.terms[ti].clone().normalized();
+                    let alt = rhs.with_term_edited(ti, |p| p.factors[fi] = swapped.clone());
                     let Ok(rep) = compare_at(lhs, &alt, &pts) else {
                         continue;
                     };

@@ -199,15 +199,15 @@ impl Sampler {
         let mut all = Constraints::default();
         let mut triads: BTreeSet<Triad> = BTreeSet::new();
         for e in exprs {
-            for t in &e.terms {
+            for t in e.terms() {
                 crate::limits::tick();
-                let bound: BTreeSet<Name> = t.bound.iter().cloned().collect();
+                let bound: BTreeSet<Name> = t.bound().iter().cloned().collect();
                 // the admissibility every formula assumes of its free
                 // projections: only columns whose projection holds one
                 // (a column like (-m, 0) is a selection rule, not a
                 // precondition)
                 let mut cols = Constraints::default();
-                for f in &t.factors {
+                for f in t.factors() {
                     for (j, m) in f.columns() {
                         let free_projection = m
                             .vars()
@@ -221,8 +221,8 @@ impl Sampler {
                 }
                 // a phase only means something where its exponent is an
                 // integer: that is part of every expression's domain
-                if !t.phase.is_zero() {
-                    cols.integral.push(t.phase.clone());
+                if !t.phase().is_zero() {
+                    cols.integral.push(t.phase().clone());
                 }
                 retain_free(&mut cols, &bound);
                 base.ge.extend(cols.ge);
@@ -232,7 +232,7 @@ impl Sampler {
                 base.integral.sort();
                 base.integral.dedup();
                 let mut mine = BTreeSet::new();
-                for f in &t.factors {
+                for f in t.factors() {
                     for tr in f.triads() {
                         let free = tr.iter().all(|l| !l.has_any(&bound));
                         let constant = tr.iter().all(|l| l.is_constant());
@@ -242,14 +242,14 @@ impl Sampler {
                     }
                 }
                 triads.extend(mine.iter().cloned());
-                let mut c = Constraints::of(&t.factors);
-                eliminate_bound(&mut c, &t.bound);
+                let mut c = Constraints::of(t.factors());
+                eliminate_bound(&mut c, t.bound());
                 retain_free(&mut c, &bound);
                 extend(&mut all, &c);
                 // a term of phases and powers only has no domain of its own
                 // (a closed formula holds where the other side's symbols do)
                 let has_rules = t
-                    .factors
+                    .factors()
                     .iter()
                     .any(|f| f.is_symbol() || matches!(f, Factor::Tri(_) | Factor::Delta(..)));
                 if has_rules {

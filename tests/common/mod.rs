@@ -7,7 +7,7 @@
 pub mod bare;
 
 use recoup::algebra::symmetry::classical_images;
-use recoup::expr::{Expr, Kind, Name, Term, Q};
+use recoup::expr::{Expr, Kind, Name, Q};
 use recoup::syntax::parse;
 use recoup::verify::rng::Rng;
 use recoup::verify::spot::SpotSettings;
@@ -16,7 +16,7 @@ use std::collections::BTreeMap;
 /// Renames every variable (`m…` to `q1, q2, …`, others to `k1, k2, …`).
 pub fn rename_all(e: &Expr) -> Expr {
     let mut out = Expr::zero();
-    for t in &e.terms {
+    for t in e.terms() {
         let vars: Vec<Name> = t.all_vars().into_iter().collect();
         let map: BTreeMap<Name, Name> = vars
             .iter()
@@ -39,11 +39,11 @@ pub fn rename_all(e: &Expr) -> Expr {
 /// phase), factors shuffled.
 pub fn respell(e: &Expr, rng: &mut Rng) -> Expr {
     let mut out = Expr::zero();
-    for t in &e.terms {
-        let mut u: Term = t.clone();
-        let mut phase = u.phase.clone();
+    for t in e.terms() {
+        let mut u = t.parts();
+        let mut phase = t.phase().clone();
         let mut fs = Vec::new();
-        for f in &u.factors {
+        for f in t.factors() {
             if f.is_symbol() {
                 let imgs = classical_images(f);
                 let img = &imgs[rng.below(imgs.len() as u64) as usize];
@@ -83,11 +83,11 @@ pub fn settings(seed: u64) -> SpotSettings {
 /// The most sums any term of `e` still has, over variables of `kind`
 /// (`None`: every kind).
 pub fn sums_left(e: &Expr, kind: Option<Kind>) -> usize {
-    e.terms
+    e.terms()
         .iter()
         .map(|t| {
             let k = t.kinds();
-            t.bound
+            t.bound()
                 .iter()
                 .filter(|b| kind.is_none() || k.get(*b) == kind.as_ref())
                 .count()
