@@ -656,6 +656,82 @@ fn json_errors_documents_and_latex_matrices() {
     assert_eq!(code, 0);
     assert_eq!(
         out.trim(),
-        "(-1)^(F+I+l+s) hat(G) hat(j) {l, s, j; I, F, G}"
+        "(-1)^(l+s+I+F) hat(G) hat(j) {l, s, j; I, F, G}"
     );
+}
+
+#[test]
+fn results_keep_the_users_orientation_of_symbols_with_free_projections() {
+    // The reduced matrix element of an operator on the first of two coupled
+    // angular momenta, written out as the projection sum of the Wigner–
+    // Eckart theorem in the Clebsch–Gordan convention: the textbook result
+    // (Edmonds 1957, eq. 7.1.7, from memory) carries the Clebsch–Gordan
+    // coefficient <j' m'; k q | j m> of the Wigner–Eckart theorem with
+    // hat(j') hat(j1) and a 6j; the canonical form turns it round to
+    // <j m; j' -m' | k q> / hat(k) with two more hats.
+    let we = |j1: &str, j1p: &str, j2: &str| {
+        format!(
+            "sum({j1}_m, m2, {j1p}_m: <{j1}, {j1}_m; {j2}, m2 | j, m> <{j1p}, {j1p}_m; {j2}, m2 | jp, mp> <{j1p}, {j1p}_m; k, q | {j1}, {j1}_m>)"
+        )
+    };
+    for (a, ap, b) in [("j1", "j1p", "j2"), ("la", "lb", "s"), ("x", "y", "z")] {
+        let text = we(a, ap, b);
+        let (code, out, err) = run(&["simplify", &text], None);
+        assert_eq!(code, 0, "{text}: {err}");
+        assert!(out.contains("<jp, mp; k, q | j, m>"), "{text}: {out}");
+        assert!(
+            !out.contains("/ hat") && !out.contains("-mp"),
+            "{text}: {out}"
+        );
+        let (code, out, _) = run(&["simplify", "--canonical", &text], None);
+        assert_eq!(code, 0);
+        assert!(!out.contains("<jp, mp; k, q | j, m>"), "{text}: {out}");
+    }
+    // a written coupling coefficient with free projections keeps its
+    // spelling when the normal form swaps its coupled pair (the swap costs
+    // (-1)^(j1+j2-J), Edmonds 1957, eq. 3.5.14, from memory)
+    let text = "<j2, m2; j1, m1 | J, M> sum(x: (2*x+1) {a, b, x; a, b, c})";
+    let (code, out, _) = run(&["simplify", text], None);
+    assert_eq!(code, 0);
+    assert_eq!(
+        out.trim(),
+        "(-1)^(2*c) tri(a, b, c) <j2, m2; j1, m1 | J, M>"
+    );
+    // compound projections keep the user's columns without a written -m
+    let text =
+        "sum(ma, mb, mc: <a, ma; b, mb | c, mc> <d, md; b, mb | f, mf> <d, md; e, me | a, ma>)";
+    let (code, out, _) = run(&["simplify", text], None);
+    assert_eq!(code, 0);
+    assert!(out.contains("<d, md; b, -md+mf | f, mf>"), "{out}");
+    // the echo of --steps is the text as typed (sums in the user's order)
+    let text = "sum(m2, m1: <j1, m1; j2, m2 | J, M> <j1, m1; j2, m2 | J', M'>)";
+    let (code, out, _) = run(&["simplify", "--steps", text], None);
+    assert_eq!(code, 0);
+    assert_eq!(out.lines().next(), Some(format!("input: {text}").as_str()));
+}
+
+#[test]
+fn an_orthogonality_sum_at_a_compound_projection_needs_a_guard() {
+    // sum over mb, mc of (a b c; M mb mc)^2 = tri(a, b, c)/(2a+1) for an
+    // admissible M (Edmonds 1957, eq. 3.7.8, from memory). With M = md+me
+    // it holds where another factor holds the column (a, ±(md+me)); alone
+    // it would lose the zeros at |md+me| > a, so it stays a sum.
+    let (code, out, _) = run(
+        &["simplify", "sum(mb, mc: (a, b, c; md+me, mb, mc) (a, b, c; md+me, mb, mc) (a, d, e; -md-me, md, me))"],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert_eq!(
+        out.trim(),
+        "tri(a, b, c) (a, d, e; -md-me, md, me) / (2*a+1)"
+    );
+    let (code, out, _) = run(
+        &[
+            "simplify",
+            "sum(mb, mc: (a, b, c; md+me, mb, mc) (a, b, c; md+me, mb, mc))",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert!(out.contains("sum(mb, mc:"), "{out}");
 }

@@ -211,17 +211,25 @@ impl Expression {
         opts.final_spot = spot_settings(&settings.max_j, settings.samples, opts.final_spot.seed)?;
         self.scoped(|| {
             let mut out = crate::simplify::simplify(&self.expr, &opts)?;
-            if !settings.canonical {
-                crate::simplify::arrange_for_reading(&mut out, &[&self.text], &opts)?;
+            if settings.canonical {
+                return Ok(Simplification::of(&out, self.declared_text()));
             }
-            Ok(Simplification::of(&out, self.declared_text()))
+            crate::simplify::arrange_for_reading(&mut out, &[&self.text], &opts)?;
+            let ranks = crate::render::arrange::ranks(&[&self.text]);
+            Ok(crate::expr::lin::with_reading_order(&ranks, || {
+                Simplification::of(&out, self.declared_text())
+            }))
         })
     }
 
     /// The simplified result as an expression.
     pub fn simplified(&self, settings: &SimplifySettings) -> Result<Expression, Error> {
         let s = self.simplify(settings)?;
-        Ok(self.derived(s.result_expr))
+        Ok(Expression {
+            text: s.result,
+            expr: s.result_expr,
+            declared: self.declared.clone(),
+        })
     }
 
     /// Checks `self = other` by exact evaluation at points; a difference
@@ -512,10 +520,14 @@ pub fn recouple(from: &str, to: &str, form: RecouplingForm) -> Result<Recoupling
     };
     let opts = crate::simplify::Options::default();
     let mut r = crate::recouple::recouple_as(&from, &to, &opts, form)?;
-    if !canonical {
-        crate::recouple::arrange_for_reading(&mut r, from_text, to_text, &opts)?;
+    if canonical {
+        return Ok(RecouplingReport::of(&r));
     }
-    Ok(RecouplingReport::of(&r))
+    crate::recouple::arrange_for_reading(&mut r, from_text, to_text, &opts)?;
+    let ranks = crate::render::arrange::ranks(&[from_text, to_text]);
+    Ok(crate::expr::lin::with_reading_order(&ranks, || {
+        RecouplingReport::of(&r)
+    }))
 }
 
 /// Runs `f` with a time limit in seconds (none: no limit); the limit

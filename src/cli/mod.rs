@@ -385,7 +385,7 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
                 let report = crate::api::report::LatexReport { input: text, latex };
                 outln!(io, "{}", json_text(&report)?)?;
             } else if document {
-                let body = crate::render::document::equation(None, &e);
+                let body = crate::render::document::equation(&[], &e);
                 out!(
                     io,
                     "{}",

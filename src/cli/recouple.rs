@@ -6,7 +6,7 @@ use super::eval::parse_assignment;
 use super::{out, outln, read_arg, Failure, Io};
 use crate::evaluate::Evaluator;
 use crate::numeric::Surd;
-use crate::recouple::{matrix, recouple_as, Form};
+use crate::recouple::{matrix, recouple_as, Form, Recoupling};
 use crate::render::latex;
 use crate::simplify::Options;
 use clap::Args;
@@ -80,9 +80,17 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     };
     let opts = Options::default();
     let mut r = recouple_as(&from, &to, &opts, form)?;
-    if !a.canonical {
-        crate::recouple::arrange_for_reading(&mut r, &from_text, &to_text, &opts)?;
+    if a.canonical {
+        return print_recoupling(&a, io, &r);
     }
+    crate::recouple::arrange_for_reading(&mut r, &from_text, &to_text, &opts)?;
+    let ranks = crate::render::arrange::ranks(&[&from_text, &to_text]);
+    crate::expr::lin::with_reading_order(&ranks, || print_recoupling(&a, io, &r))
+}
+
+/// Prints a recoupling coefficient (and its value at `--at`) as text,
+/// LaTeX or JSON.
+fn print_recoupling(a: &RecoupleArgs, io: &mut Io, r: &Recoupling) -> Result<(), Failure> {
     let result = r.outcome.result.clone();
     let value = match &a.at {
         Some(s) => {
@@ -93,7 +101,7 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         None => None,
     };
     if a.json {
-        let mut report = crate::api::RecouplingReport::of(&r);
+        let mut report = crate::api::RecouplingReport::of(r);
         if !a.steps {
             report.steps.clear();
         }
@@ -103,9 +111,10 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
     }
     if a.latex {
         let body = if a.steps {
-            super::simplify::latex_chain(&r.overlap, &r.outcome.steps)
+            super::simplify::latex_chain(&latex::expr(&r.overlap), &r.outcome.steps)
         } else if a.document {
-            crate::render::document::equation(Some(&r.overlap), &result)
+            let lhs = crate::render::document::term_lines(&r.overlap);
+            crate::render::document::equation(&lhs, &result)
         } else {
             format!("{}\n", latex::expr(&result))
         };

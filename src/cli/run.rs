@@ -222,7 +222,7 @@ fn latex_words(s: &str) -> String {
 }
 
 fn write_document(io: &mut Io, name: &str, items: &[Verified]) -> Result<(), Failure> {
-    use crate::render::document::{article, equation};
+    use crate::render::document::{article, equation, term_lines};
     let mut body = format!(
         "Every relation below was checked by exact evaluation (recoup, derivation file \\texttt{{{}}}).\n",
         latex_words(name)
@@ -239,8 +239,8 @@ fn write_document(io: &mut Io, name: &str, items: &[Verified]) -> Result<(), Fai
             .unwrap_or_else(|| format!("Relation {}", n + 1));
         body.push_str(&format!("\\paragraph{{{title}}}\n"));
         body.push_str(&match v {
-            Verified::Claim { lhs, rhs, .. } => equation(Some(lhs), rhs),
-            Verified::Simplified { input, result, .. } => equation(Some(input), result),
+            Verified::Claim { lhs, rhs, .. } => equation(&term_lines(lhs), rhs),
+            Verified::Simplified { input, result, .. } => equation(&term_lines(input), result),
         });
         body.push_str(&format!("Checked: {}.\n", latex_words(how)));
     }

@@ -40,7 +40,7 @@ pub struct SimplifyArgs {
 
 /// A derivation as an `align*` chain: the input, then each step's result
 /// labelled with its published source (the rule's name where it has none).
-pub fn latex_chain(input: &crate::expr::Expr, steps: &[crate::simplify::Step]) -> String {
+pub fn latex_chain(input: &str, steps: &[crate::simplify::Step]) -> String {
     let labelled: Vec<(crate::expr::Expr, String)> = steps
         .iter()
         .map(|s| {
@@ -61,6 +61,25 @@ pub fn declared_text() -> Option<String> {
     (!d.is_empty()).then(|| d.to_string())
 }
 
+/// The text as the user typed it, for the echo: blank lines (and the
+/// blanked comment lines of standard input) left out, later lines
+/// indented under the first.
+fn as_typed(text: &str) -> String {
+    text.lines()
+        .map(str::trim_end)
+        .filter(|l| !l.trim().is_empty())
+        .enumerate()
+        .map(|(i, l)| {
+            if i == 0 {
+                l.trim_start().to_string()
+            } else {
+                format!("  {l}")
+            }
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
 pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
     let text = read_arg(&a.expr, io)?;
     let e = parse_expr(&text)?;
@@ -70,19 +89,34 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
     };
     opts.final_spot = super::check::settings(&a.max_j, a.samples, false, opts.final_spot.seed)?;
     let mut out = simplify(&e, &opts)?;
-    if !a.canonical {
-        crate::simplify::arrange_for_reading(&mut out, &[&text], &opts)?;
+    if a.canonical {
+        return print_outcome(&a, io, &text, &out);
     }
+    crate::simplify::arrange_for_reading(&mut out, &[&text], &opts)?;
+    let ranks = crate::render::arrange::ranks(&[&text]);
+    crate::expr::lin::with_reading_order(&ranks, || print_outcome(&a, io, &text, &out))
+}
+
+/// Prints a simplification as text, LaTeX or JSON.
+fn print_outcome(
+    a: &SimplifyArgs,
+    io: &mut Io,
+    text: &str,
+    out: &crate::simplify::Outcome,
+) -> Result<(), Failure> {
     if a.json {
-        let report = crate::api::Simplification::of(&out, declared_text());
+        let report = crate::api::Simplification::of(out, declared_text());
         outln!(io, "{}", super::json_text(&report)?)?;
         return Ok(());
     }
     if a.latex {
+        let typed = crate::render::written::latex_as_written(text, &out.input);
         let body = if a.steps {
-            latex_chain(&out.input, &out.steps)
+            latex_chain(&typed, &out.steps)
         } else if a.document {
-            crate::render::document::equation(Some(&out.input), &out.result)
+            let lhs =
+                crate::render::document::packed_lines(&typed, crate::render::document::LINE_BUDGET);
+            crate::render::document::equation(&lhs, &out.result)
         } else {
             format!("{}\n", latex::expr(&out.result))
         };
@@ -93,7 +127,7 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
         return super::write_latex(io, &body, a.document, "Simplification", &note);
     }
     if a.steps {
-        outln!(io, "input: {}", out.input)?;
+        outln!(io, "input: {}", as_typed(text))?;
         if let Some(d) = declared_text() {
             outln!(io, "declared: {d}")?;
         }

@@ -232,39 +232,99 @@ pub fn fmt_q(q: &Q) -> String {
     }
 }
 
+thread_local! {
+    /// The order in which the user's text names its variables, while a
+    /// result is printed for reading (see `with_reading_order`).
+    static READING_ORDER: std::cell::RefCell<Option<BTreeMap<Name, usize>>> =
+        const { std::cell::RefCell::new(None) };
+}
+
+/// Runs `f` with phase exponents printed with their variables in the
+/// order of `ranks` (the order in which the user's text names them;
+/// variables it does not name come after, in name order). Only the
+/// printing of phases changes; values, normal forms and every other
+/// printed form stay as they are.
+pub fn with_reading_order<T>(ranks: &BTreeMap<Name, usize>, f: impl FnOnce() -> T) -> T {
+    struct Restore(Option<BTreeMap<Name, usize>>);
+    impl Drop for Restore {
+        fn drop(&mut self) {
+            let old = self.0.take();
+            READING_ORDER.with(|r| *r.borrow_mut() = old);
+        }
+    }
+    let old = READING_ORDER.with(|r| r.replace(Some(ranks.clone())));
+    let _restore = Restore(old);
+    f()
+}
+
+impl Lin {
+    /// The variables with their coefficients in the reading order in force
+    /// (name order outside `with_reading_order`): those with a positive
+    /// coefficient first (`j1+j2-J`, not `-J+j1+j2`), each group in the
+    /// order the user names them.
+    pub fn terms_for_reading(&self) -> Vec<(&Name, &Q)> {
+        let mut v: Vec<(&Name, &Q)> = self.coeffs.iter().collect();
+        READING_ORDER.with(|r| {
+            if let Some(ranks) = &*r.borrow() {
+                // stable: unnamed variables keep name order, at the end
+                v.sort_by_key(|(n, c)| {
+                    (c.is_negative(), ranks.get(*n).copied().unwrap_or(usize::MAX))
+                });
+            }
+        });
+        v
+    }
+
+    /// Plain text with the variables in the reading order in force (for a
+    /// phase exponent).
+    pub fn reading_text(&self) -> String {
+        let mut s = String::new();
+        write_form(&mut s, self.terms_for_reading(), &self.c0).expect("writing to a string");
+        s
+    }
+}
+
+/// Writes `Σ c v + c0` compactly: `j1+j2-j3`, `2*x+1`, `-m`, `x/2`, `j+1/2`.
+fn write_form<'a>(
+    f: &mut impl fmt::Write,
+    terms: impl IntoIterator<Item = (&'a Name, &'a Q)>,
+    c0: &Q,
+) -> fmt::Result {
+    let mut first = true;
+    for (v, c) in terms {
+        let neg = c.is_negative();
+        let a = c.abs();
+        if neg {
+            f.write_str("-")?;
+        } else if !first {
+            f.write_str("+")?;
+        }
+        if a.is_one() {
+            write!(f, "{v}")?;
+        } else if a.is_integer() {
+            write!(f, "{}*{v}", a.numer())?;
+        } else if a.numer().is_one() {
+            write!(f, "{v}/{}", a.denom())?;
+        } else {
+            write!(f, "{}*{v}/{}", a.numer(), a.denom())?;
+        }
+        first = false;
+    }
+    if !c0.is_zero() || first {
+        if c0.is_negative() {
+            f.write_str("-")?;
+        } else if !first {
+            f.write_str("+")?;
+        }
+        f.write_str(&fmt_q(&c0.abs()))?;
+    }
+    Ok(())
+}
+
 impl fmt::Display for Lin {
     /// Compact plain text: `j1+j2-j3`, `2*x+1`, `-m`, `x/2`, `j+1/2`.
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        let mut first = true;
-        for (v, c) in &self.coeffs {
-            let neg = c.is_negative();
-            let a = c.abs();
-            if neg {
-                f.write_str("-")?;
-            } else if !first {
-                f.write_str("+")?;
-            }
-            if a.is_one() {
-                write!(f, "{v}")?;
-            } else if a.is_integer() {
-                write!(f, "{}*{v}", a.numer())?;
-            } else if a.numer().is_one() {
-                write!(f, "{v}/{}", a.denom())?;
-            } else {
-                write!(f, "{}*{v}/{}", a.numer(), a.denom())?;
-            }
-            first = false;
-        }
-        if !self.c0.is_zero() || first {
-            let neg = self.c0.is_negative();
-            if neg {
-                f.write_str("-")?;
-            } else if !first {
-                f.write_str("+")?;
-            }
-            f.write_str(&fmt_q(&self.c0.abs()))?;
-        }
-        Ok(())
+        write_form(f, &self.coeffs, &self.c0)
     }
 }
 

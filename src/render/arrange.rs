@@ -12,7 +12,7 @@
 
 use crate::algebra::lattice::PhaseLattice;
 use crate::algebra::symmetry::classical_images;
-use crate::expr::{Expr, Factor, Lin, Name};
+use crate::expr::{Expr, Factor, Lin, Name, Term, TermParts, Q};
 use std::collections::BTreeMap;
 
 /// The order in which `texts` first name each variable (the first text
@@ -24,7 +24,7 @@ pub fn ranks(texts: &[&str]) -> BTreeMap<Name, usize> {
     let mut out = BTreeMap::new();
     for inside_braces_only in [true, false] {
         for text in texts {
-            let chars: Vec<char> = text.chars().collect();
+            let chars: Vec<char> = without_declarations(text).chars().collect();
             let mut depth = 0usize;
             let mut i = 0;
             while i < chars.len() {
@@ -56,6 +56,21 @@ pub fn ranks(texts: &[&str]) -> BTreeMap<Name, usize> {
     out
 }
 
+/// The text after its leading declarations (`integer k, q; half-odd s;`),
+/// which name variables in no reading order of their own.
+fn without_declarations(text: &str) -> &str {
+    let mut rest = text.trim_start();
+    loop {
+        let word = ["integer", "half-odd"]
+            .into_iter()
+            .find(|w| rest.starts_with(w) && !rest[w.len()..].starts_with(|c: char| c.is_alphanumeric() || c == '_'));
+        match (word, rest.find(';')) {
+            (Some(_), Some(end)) => rest = rest[end + 1..].trim_start(),
+            _ => return rest,
+        }
+    }
+}
+
 /// The reading key of one argument: its variable's rank when it is a
 /// single variable the text names, else after every named one (then by
 /// its printed form).
@@ -83,9 +98,69 @@ fn arrange_factor(f: &Factor, ranks: &BTreeMap<Name, usize>) -> (Factor, Lin) {
         .unwrap_or_else(|| (f.clone(), Lin::zero()))
 }
 
-/// `e` with every 6j and 9j arranged for reading by `ranks` (equal in
-/// value; phases reduced modulo integrality).
-pub fn for_reading(e: &Expr, ranks: &BTreeMap<Name, usize>) -> Expr {
+/// What the user wrote, for arranging a result: the order in which the
+/// text names its variables, and the 3j and Clebsch–Gordan symbols it
+/// spells out.
+#[derive(Clone, Debug, Default)]
+pub struct Written {
+    /// the order of first appearance (see `ranks`)
+    pub ranks: BTreeMap<Name, usize>,
+    /// the 3j and CG symbols of the texts that parse as expressions
+    pub symbols: Vec<Factor>,
+}
+
+impl Written {
+    /// Reads `texts` (expressions or coupling trees; a text that is not an
+    /// expression gives ranks only).
+    pub fn of_texts(texts: &[&str]) -> Written {
+        let mut symbols = Vec::new();
+        for text in texts {
+            if let Ok((_, e)) = crate::syntax::parse_declared(text) {
+                for t in e.terms() {
+                    for f in t.factors() {
+                        if matches!(f, Factor::ThreeJ(_) | Factor::Cg(_)) && !symbols.contains(f) {
+                            symbols.push(f.clone());
+                        }
+                    }
+                }
+            }
+        }
+        Written {
+            ranks: ranks(texts),
+            symbols,
+        }
+    }
+
+    /// How many columns of `f` hold an angular momentum or projection
+    /// variable in the same column of a written symbol of the same kind.
+    fn columns_in_place(&self, f: &Factor) -> usize {
+        let name = |l: &Lin| l.as_signed_var().map(|(v, _)| v.clone());
+        let same_kind = |g: &Factor| std::mem::discriminant(g) == std::mem::discriminant(f);
+        f.columns()
+            .iter()
+            .enumerate()
+            .map(|(k, (j, m))| {
+                [name(j), name(m)]
+                    .into_iter()
+                    .flatten()
+                    .filter(|v| {
+                        self.symbols.iter().filter(|g| same_kind(g)).any(|g| {
+                            g.columns().get(k).is_some_and(|(gj, gm)| {
+                                name(gj).as_ref() == Some(v) || name(gm).as_ref() == Some(v)
+                            })
+                        })
+                    })
+                    .count()
+            })
+            .sum()
+    }
+}
+
+/// `e` with every 6j and 9j arranged for reading by the written order,
+/// and every 3j and Clebsch–Gordan coefficient turned the way the user
+/// writes it (equal in value; phases reduced
+/// modulo integrality).
+pub fn for_reading(e: &Expr, written: &Written) -> Expr {
     Expr::from_terms(e.terms().iter().map(|t| {
         let mut parts = t.parts();
         let mut phase = t.phase().clone();
@@ -93,23 +168,145 @@ pub fn for_reading(e: &Expr, ranks: &BTreeMap<Name, usize>) -> Expr {
             .factors()
             .iter()
             .map(|f| {
-                let (g, p) = arrange_factor(f, ranks);
+                let (g, p) = arrange_factor(f, &written.ranks);
                 phase = &phase + &p;
                 g
             })
             .collect();
         parts.phase = phase;
-        let arranged = parts.normalized();
-        let lattice = PhaseLattice::of_term(&arranged);
-        let mut parts = arranged.into_parts();
-        parts.phase = lattice.reduce(&parts.phase);
-        parts.normalized()
+        let mut term = with_reduced_phase(parts);
+        let eligible: Vec<Factor> = (0..term.factors().len())
+            .filter(|&i| is_coupling_symbol(&term, i))
+            .map(|i| term.factors()[i].clone())
+            .collect();
+        for f in eligible {
+            // the factor's place after the earlier turns (normal form sorts)
+            if let Some(i) = term.factors().iter().position(|g| *g == f) {
+                term = oriented(&term, i, written);
+            }
+        }
+        term
     }))
+}
+
+/// The term of `parts` with its phase reduced by the term's lattice.
+fn with_reduced_phase(parts: TermParts) -> Term {
+    let term = parts.normalized();
+    let lattice = PhaseLattice::of_term(&term);
+    let mut parts = term.into_parts();
+    parts.phase = lattice.reduce(&parts.phase);
+    parts.normalized()
+}
+
+/// True when factor `i` is a 3j or CG.
+fn is_coupling_symbol(t: &Term, i: usize) -> bool {
+    matches!(t.factors()[i], Factor::ThreeJ(_) | Factor::Cg(_))
+}
+
+/// `hat(j)^(2 power)`: `(2j+1)^power`.
+fn hat_power(j: &Lin, power: Q) -> Factor {
+    Factor::Power(&j.scale(Q::from_integer(2)) + &Lin::int(1), power)
+}
+
+/// The term with factor `i` (a 3j or CG) replaced by each spelling its
+/// classical symmetries allow, through the 3j for a CG (Edmonds 1957, eq.
+/// 3.7.3: `<j1 m1; j2 m2 | J M> = (-1)^(j1-j2+M) hat(J) (j1, j2, J; m1, m2,
+/// -M)`, from memory), each with the phase and hats it costs.
+fn spellings(t: &Term, i: usize) -> Vec<(Term, Factor)> {
+    let f = &t.factors()[i];
+    let (three_j, to_three_j) = match f {
+        Factor::Cg([a, al, b, be, c, ga]) => (
+            Factor::ThreeJ([
+                a.clone(),
+                b.clone(),
+                c.clone(),
+                al.clone(),
+                be.clone(),
+                -ga,
+            ]),
+            Some((&(a - b) + ga, c.clone())),
+        ),
+        _ => (f.clone(), None),
+    };
+    let mut out = Vec::new();
+    for img in classical_images(&three_j) {
+        let mut parts = t.parts();
+        parts.phase = &parts.phase + &img.phase;
+        let replacement = match (&img.factor, &to_three_j) {
+            (Factor::ThreeJ([y1, y2, y3, m1, m2, m3]), Some((phase, coupled))) => {
+                // C = (-1)^phase hat(coupled) X, X = (-1)^img Y and
+                // Y = (-1)^(y1-y2-m3) <y1 m1; y2 m2 | y3, -m3> / hat(y3)
+                parts.phase = &(&parts.phase + phase) + &(&(y1 - y2) - m3);
+                parts.factors.push(hat_power(coupled, Q::new(1, 2)));
+                parts.factors.push(hat_power(y3, Q::new(-1, 2)));
+                Factor::Cg([
+                    y1.clone(),
+                    m1.clone(),
+                    y2.clone(),
+                    m2.clone(),
+                    y3.clone(),
+                    -m3,
+                ])
+            }
+            _ => img.factor.clone(),
+        };
+        parts.factors[i] = replacement.clone();
+        out.push((with_reduced_phase(parts), replacement));
+    }
+    out
+}
+
+/// The spelling of factor `i` a reader expects: the user's own when the
+/// text writes it, else no free projection written `-m`, columns where the
+/// user's symbols keep the same names, fewest hats in denominators, fewest
+/// hats, the shortest phase; ties keep the term as it is.
+fn oriented(t: &Term, i: usize, written: &Written) -> Term {
+    let key = |u: &Term, f: &Factor| {
+        let negated_free = f
+            .m_slots()
+            .iter()
+            .filter(|m| matches!(m.as_signed_var(), Some((v, true)) if !u.bound().contains(v)))
+            .count();
+        let hats: Vec<&Q> = u
+            .factors()
+            .iter()
+            .filter_map(|g| match g {
+                Factor::Power(_, e) if !e.is_integer() => Some(e),
+                _ => None,
+            })
+            .collect();
+        let denominators = hats.iter().filter(|e| ***e < Q::from_integer(0)).count();
+        (
+            !written.symbols.contains(f),
+            negated_free,
+            std::cmp::Reverse(written.columns_in_place(f)),
+            denominators,
+            hats.len(),
+            u.phase().terms().count(),
+        )
+    };
+    let mut best = t.clone();
+    let mut best_key = key(t, &t.factors()[i]);
+    for (u, f) in spellings(t, i) {
+        let k = key(&u, &f);
+        if k < best_key {
+            best = u;
+            best_key = k;
+        }
+    }
+    best
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn declarations_give_no_ranks() {
+        let r = ranks(&["integer k, q; half-odd s; sum(q: (-1)^(q+s) {a, b, k; a, b, s})"]);
+        assert_eq!(r[&Name::new("a")], 0);
+        assert!(r[&Name::new("q")] > r[&Name::new("s")]);
+    }
 
     #[test]
     fn ranks_follow_first_appearance() {

@@ -228,16 +228,14 @@ fn fits(latex: &str, budget: usize) -> bool {
 }
 
 /// `lhs = rhs` (or `rhs` alone) as a `multline*`, broken between terms.
-pub fn equation(lhs: Option<&Expr>, rhs: &Expr) -> String {
+pub fn equation(lhs: &[String], rhs: &Expr) -> String {
     let mut out = String::from("\\begin{multline*}\n");
-    if let Some(lhs) = lhs {
-        for l in term_lines(lhs) {
-            out.push_str(&format!("{l} \\\\\n"));
-        }
+    for l in lhs {
+        out.push_str(&format!("{l} \\\\\n"));
     }
     let right = term_lines(rhs);
     for (i, r) in right.iter().enumerate() {
-        let lead = if i == 0 && lhs.is_some() { "= " } else { "" };
+        let lead = if i == 0 && !lhs.is_empty() { "= " } else { "" };
         let end = if i + 1 < right.len() { " \\\\" } else { "" };
         out.push_str(&format!("{lead}{r}{end}\n"));
     }
@@ -271,10 +269,10 @@ pub fn article(title: &str, body: &str) -> String {
 /// then each step's result (broken between factors where long), each
 /// followed by its label (the published source) on a line of its own in
 /// small type.
-pub fn chain(input: &Expr, steps: &[(Expr, String)]) -> String {
+pub fn chain(input: &str, steps: &[(Expr, String)]) -> String {
     let mut out = String::from("\\begin{align*}\n");
-    let write = |out: &mut String, e: &Expr, lead: &str, label: Option<&str>, last: bool| {
-        let lines = packed_lines(&latex::expr(e), LINE_BUDGET - 14);
+    let write = |out: &mut String, e: &str, lead: &str, label: Option<&str>, last: bool| {
+        let lines = packed_lines(e, LINE_BUDGET - 14);
         for (i, l) in lines.iter().enumerate() {
             let head = if i == 0 { lead } else { "&\\quad " };
             let end = if i + 1 == lines.len() && label.is_none() && last {
@@ -293,7 +291,7 @@ pub fn chain(input: &Expr, steps: &[(Expr, String)]) -> String {
     };
     write(&mut out, input, "& ", None, steps.is_empty());
     for (i, (after, label)) in steps.iter().enumerate() {
-        write(&mut out, after, "&= ", Some(label), i + 1 == steps.len());
+        write(&mut out, &latex::expr(after), "&= ", Some(label), i + 1 == steps.len());
     }
     out.push_str("\\end{align*}\n");
     out

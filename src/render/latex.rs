@@ -81,9 +81,19 @@ fn frac(q: &Q) -> String {
 
 /// A linear form: `j_1+j_2-j_3`, `2x+1`, `j+\tfrac{1}{2}`.
 pub fn lin(l: &Lin) -> String {
+    lin_of_terms(l.terms(), l)
+}
+
+/// A phase exponent in LaTeX, its variables in the reading order in force
+/// (`expr::lin::with_reading_order`).
+fn phase_exponent(l: &Lin) -> String {
+    lin_of_terms(l.terms_for_reading(), l)
+}
+
+fn lin_of_terms<'a>(terms: impl IntoIterator<Item = (&'a Name, &'a Q)>, l: &Lin) -> String {
     let mut s = String::new();
     let mut first = true;
-    for (v, c) in l.terms() {
+    for (v, c) in terms {
         let a = c.abs();
         if c.is_negative() {
             s.push('-');
@@ -312,7 +322,7 @@ fn product(
     }
     if let Some(p) = phase {
         if !p.is_zero() {
-            num.push(format!("(-1)^{{{}}}", lin(p)));
+            num.push(format!("(-1)^{{{}}}", phase_exponent(p)));
         }
     }
     for f in fs {

@@ -4,6 +4,7 @@ pub mod arrange;
 pub mod document;
 pub mod latex;
 pub mod table;
+pub mod written;
 
 /// A float the way numeric codes read it: plain for moderate magnitudes,
 /// with an exponent otherwise (`8.267784316442887e-25`).

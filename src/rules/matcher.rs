@@ -269,7 +269,16 @@ impl Pattern {
                 });
             }
             if !l.is_constant() {
-                return false;
+                // a compound form (`md+me`) is admissible wherever another
+                // factor holds it, or its negative, in a column of the
+                // same angular momentum: that factor is zero elsewhere
+                let neg = -&l;
+                return t.factors().iter().enumerate().any(|(i, f)| {
+                    !m.factors.contains(&i)
+                        && f.columns()
+                            .iter()
+                            .any(|(cj, cm)| **cj == jv && (**cm == l || **cm == neg))
+                });
             }
             let c = l.constant_part();
             if jv.is_constant() {

@@ -876,8 +876,6 @@ pub fn expand_definition(d: &mut Derivation, rule_name: &str) -> Result<(), Simp
     Ok(())
 }
 
-/// The verification gate (see `verify::gate`) with the driver's budget,
-/// its failures as simplification errors.
 /// Writes `out.result` in the arrangement for reading: each 6j and 9j in
 /// the spelling whose entries follow the order in which `texts` name them
 /// (`render::arrange`). The arranged result passes the gate against the
@@ -888,14 +886,14 @@ pub fn arrange_for_reading(
     texts: &[&str],
     opts: &Options,
 ) -> Result<Option<Expr>, SimplifyError> {
-    let ranks = crate::render::arrange::ranks(texts);
-    let arranged = crate::render::arrange::for_reading(&out.result, &ranks);
+    let written = crate::render::arrange::Written::of_texts(texts);
+    let arranged = crate::render::arrange::for_reading(&out.result, &written);
     if arranged == out.result {
         return Ok(None);
     }
     let check = gate(&out.result, &arranged, &opts.final_spot)?;
     let source = Source::parse(
-        "edmonds1957 sections 6.2 and 6.4 -- the classical symmetries of the 6j and 9j symbols, each written in the order the input names its entries; from memory",
+        "edmonds1957 sections 3.7, 6.2 and 6.4 -- the classical symmetries of the 3j, Clebsch-Gordan, 6j and 9j symbols, each symbol spelled the way the input writes it; from memory",
     )
     .map_err(|e| SimplifyError::Internal(e.to_string()))?;
     let canonical = std::mem::replace(&mut out.result, arranged.clone());
@@ -910,6 +908,8 @@ pub fn arrange_for_reading(
     Ok(Some(canonical))
 }
 
+/// The verification gate (see `verify::gate`) with the driver's budget,
+/// its failures as simplification errors.
 pub fn gate(
     reference: &Expr,
     result: &Expr,

@@ -27,7 +27,7 @@ pub const MAX_POWER: i64 = 64;
 /// Largest magnitude of a numerator or denominator in a linear form.
 const LIN_LIMIT: i64 = 1 << 20;
 
-fn pratt() -> &'static PrattParser<Rule> {
+pub(super) fn pratt() -> &'static PrattParser<Rule> {
     static P: OnceLock<PrattParser<Rule>> = OnceLock::new();
     P.get_or_init(|| {
         PrattParser::new()
@@ -42,7 +42,7 @@ fn pratt() -> &'static PrattParser<Rule> {
 
 /// A linear form with big rational coefficients (before range checks).
 #[derive(Clone, Debug, Default)]
-struct BigLin {
+pub(super) struct BigLin {
     c0: BigRational,
     coeffs: BTreeMap<Name, BigRational>,
 }
@@ -97,7 +97,7 @@ fn small_q(q: &BigRational) -> Option<Q> {
 
 /// The value of a subexpression during lowering.
 #[derive(Clone, Debug)]
-enum Value {
+pub(super) enum Value {
     Lin(BigLin),
     Expr(Expr),
 }
@@ -125,7 +125,7 @@ impl Ctx<'_> {
         Ok(l)
     }
 
-    fn to_expr(&self, v: Value, pos: usize) -> R<Expr> {
+    pub(super) fn to_expr(&self, v: Value, pos: usize) -> R<Expr> {
         match v {
             Value::Expr(e) => Ok(e),
             Value::Lin(b) => {
@@ -416,7 +416,7 @@ impl Ctx<'_> {
         Ok(Value::Expr(Expr::from_term(Term::factor(f))))
     }
 
-    fn primary(&self, p: Pair<Rule>) -> R<Value> {
+    pub(super) fn primary(&self, p: Pair<Rule>) -> R<Value> {
         let at = p.as_span().start();
         match p.as_rule() {
             Rule::number => {

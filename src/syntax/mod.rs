@@ -6,6 +6,7 @@
 mod element;
 mod error;
 mod guard;
+mod layout;
 mod lower;
 mod print;
 
@@ -64,6 +65,23 @@ pub fn parse_declared(input: &str) -> Result<(Declarations, Expr), ParseError> {
         }
     }
     unreachable!("the grammar puts an expression in every input")
+}
+
+pub use layout::{Infix, Layout};
+
+/// The layout of an expression's text as written (declarations skipped),
+/// or `None` when the text does not parse.
+pub fn layout(input: &str) -> Option<Layout> {
+    let input = input.strip_prefix('\u{feff}').unwrap_or(input);
+    guard::check(input).ok()?;
+    let mut pairs = Grammar::parse(Rule::expression_input, input).ok()?;
+    let top = pairs.next()?;
+    let ctx = lower::Ctx {
+        input,
+        work: std::cell::Cell::new(0),
+    };
+    let expr = top.into_inner().find(|p| p.as_rule() == Rule::expr)?;
+    ctx.layout(expr).ok()
 }
 
 /// A phase as the user wrote it.

@@ -156,6 +156,7 @@ pub fn print_element(e: &MatrixElement) -> String {
 fn print_phase(p: &Lin) -> String {
     let simple = p.as_var().is_some()
         || (p.is_constant() && p.constant_part() >= Q::zero() && p.constant_part().is_integer());
+    let p = p.reading_text();
     if simple {
         format!("(-1)^{p}")
     } else {
