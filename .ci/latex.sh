@@ -24,6 +24,10 @@ $R recouple --latex --steps --document "$(line toy-schemes.txt 2)" "$(line toy-s
 $R recouple --latex --document "$(line toy-schemes.txt 2)" "$(line toy-schemes.txt 3)" > "$out/schemes.tex"
 $R recouple --latex --document --only-6j "((((a, b) p, c) q, d) r, e) J" "((((e, b) s, c) t, d) u, a) J" > "$out/five-leaves.tex"
 $R latex --document - < samples/toy-overlap.txt > "$out/overlap-input.tex"
+$R latex --as-written --document - < samples/toy-overlap.txt > "$out/overlap-as-written.tex"
+# a Wigner-Eckart projection sum: the input as written on the first line,
+# the result with the Clebsch-Gordan coefficient the way the input writes it
+$R simplify --latex --steps --document "sum(m1, m2, m1p: <j1, m1; j2, m2 | j, m> <j1p, m1p; j2, m2 | jp, mp> <j1p, m1p; k, q | j1, m1>)" > "$out/wigner-eckart-steps.tex"
 $R recouple --matrix --latex --document "((1/2, 1/2) a, 1) J" "(1/2, (1/2, 1) b) J" > "$out/matrix.tex"
 # the LaTeX snapshots of the test suite (single-line `latex` outputs,
 # which the user places in an environment of their own): compiled for TeX

@@ -578,6 +578,14 @@ fn half_integer_exponents() {
     assert_eq!((code, out.split('\t').next()), (0, Some("sqrt(8/3)")));
     let (code, out, _) = run(&["latex", "(2*j+1)^(-1/2)"], None);
     assert_eq!((code, out.trim()), (0, "\\frac{1}{\\hat{j}}"));
+    // --as-written keeps the text's own arrangement
+    let (code, out, _) = run(&["latex", "--as-written", "(2*j+1)^(-1/2)"], None);
+    assert_eq!((code, out.trim()), (0, "\\left(2 j + 1\\right)^{-1/2}"));
+    let (code, out, _) = run(&["latex", "--as-written", "sqrt(3)/4 sum(m2, m1: x)"], None);
+    assert_eq!(
+        (code, out.trim()),
+        (0, "\\frac{\\sqrt{3}}{4} \\sum_{m_2, m_1} x")
+    );
     // other fractions are refused at the exponent
     let (code, _, err) = run(&["eval", "x^(1/3)", "--at", "x=1"], None);
     assert_eq!(code, 2, "{err}");

@@ -311,6 +311,10 @@ enum Command {
         /// print JSON {"input", "latex"}
         #[arg(long)]
         json: bool,
+        /// keep the text's own arrangement (sums, factors and terms where
+        /// they stand, `a/b` as a fraction) instead of the normal form
+        #[arg(long)]
+        as_written: bool,
     },
 }
 
@@ -376,16 +380,29 @@ fn dispatch(command: Command, io: &mut Io, seconds: f64) -> Result<i32, Failure>
             expr,
             document,
             json,
+            as_written,
         } => {
             let text = read_arg(&expr, io)?;
             let e = parse_expr(&text)?;
             input::validate_literals(&e, &text, io)?;
-            let latex = crate::render::latex::expr(&e);
+            let latex = if as_written {
+                crate::render::written::latex_as_written(&text, &e)
+            } else {
+                crate::render::latex::expr(&e)
+            };
             if json {
                 let report = crate::api::report::LatexReport { input: text, latex };
                 outln!(io, "{}", json_text(&report)?)?;
             } else if document {
-                let body = crate::render::document::equation(&[], &e);
+                let body = if as_written {
+                    let lines = crate::render::document::packed_lines(
+                        &latex,
+                        crate::render::document::LINE_BUDGET,
+                    );
+                    crate::render::document::multline(&lines)
+                } else {
+                    crate::render::document::equation(&[], &e)
+                };
                 out!(
                     io,
                     "{}",

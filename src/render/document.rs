@@ -229,18 +229,20 @@ fn fits(latex: &str, budget: usize) -> bool {
 
 /// `lhs = rhs` (or `rhs` alone) as a `multline*`, broken between terms.
 pub fn equation(lhs: &[String], rhs: &Expr) -> String {
-    let mut out = String::from("\\begin{multline*}\n");
-    for l in lhs {
-        out.push_str(&format!("{l} \\\\\n"));
-    }
-    let right = term_lines(rhs);
-    for (i, r) in right.iter().enumerate() {
+    let mut lines = lhs.to_vec();
+    for (i, r) in term_lines(rhs).into_iter().enumerate() {
         let lead = if i == 0 && !lhs.is_empty() { "= " } else { "" };
-        let end = if i + 1 < right.len() { " \\\\" } else { "" };
-        out.push_str(&format!("{lead}{r}{end}\n"));
+        lines.push(format!("{lead}{r}"));
     }
-    out.push_str("\\end{multline*}\n");
-    out
+    multline(&lines)
+}
+
+/// Lines of LaTeX as a `multline*`.
+pub fn multline(lines: &[String]) -> String {
+    format!(
+        "\\begin{{multline*}}\n{}\n\\end{{multline*}}\n",
+        lines.join(" \\\\\n")
+    )
 }
 
 /// Plain text made safe for LaTeX's text mode.
