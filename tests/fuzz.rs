@@ -387,7 +387,8 @@ fn case(rng: &mut Rng, corpus: &[String]) -> (Vec<String>, Vec<u8>) {
             (vec![s("eval"), s("--batch")], input)
         }
         7 => (vec![s("eval"), s("-")], text(rng).into_bytes()),
-        8 | 9 => (vec![s("latex"), text(rng)], Vec::new()),
+        8 => (vec![s("latex"), text(rng)], Vec::new()),
+        9 => (vec![s("latex"), s("--as-written"), text(rng)], Vec::new()),
         10 | 11 => {
             let mut a = vec![s("graph"), text(rng)];
             if rng.below(2) == 0 {
