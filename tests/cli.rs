@@ -743,3 +743,15 @@ fn an_orthogonality_sum_at_a_compound_projection_needs_a_guard() {
     assert_eq!(code, 0);
     assert!(out.contains("sum(mb, mc:"), "{out}");
 }
+
+#[test]
+fn a_triangle_factor_dropped_on_the_inputs_domain_is_verified_there() {
+    // <j, m | J[1, 1] | j, m-1> with J[1, 1] = -J+/sqrt(2) and
+    // J+|j, m-1> = sqrt((j+m)(j-m+1)) |j, m> (Condon-Shortley phases;
+    // common practice, no source). tri(1, j, j) fails only at j = 0, where
+    // the input's projections leave no point; the step dropping it was
+    // checked at points outside that domain and refused (exit 4) before.
+    let (code, out, err) = run(&["simplify", "<j, m | J[1, 1] @ j | j, m - 1>"], None);
+    assert_eq!(code, 0, "{err}");
+    assert_eq!(out.trim(), "-sqrt(1/2) sqrt(j-m+1) sqrt(j+m)");
+}

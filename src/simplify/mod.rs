@@ -187,6 +187,34 @@ pub fn verified_step(
     s: &SpotSettings,
 ) -> Result<Step, SimplifyError> {
     let rep = compare(before, after, s)?;
+    step_of_report(rule, source, before, after, rep)
+}
+
+/// Verifies `after` against `before` at points of the input's domain only
+/// (its projections admissible): for a step that holds where the input
+/// is defined, such as dropping a triangle factor whose failing values
+/// the input's own projections rule out.
+pub fn verified_step_within(
+    rule: &str,
+    source: &Source,
+    before: &Expr,
+    after: &Expr,
+    domain: &Expr,
+    s: &SpotSettings,
+) -> Result<Step, SimplifyError> {
+    let pts = crate::verify::spot::points(&[domain, before, after], s);
+    let rep = crate::verify::spot::compare_at(before, after, &pts)?;
+    step_of_report(rule, source, before, after, rep)
+}
+
+/// The step a comparison report supports, or why it does not.
+fn step_of_report(
+    rule: &str,
+    source: &Source,
+    before: &Expr,
+    after: &Expr,
+    rep: crate::verify::spot::SpotReport,
+) -> Result<Step, SimplifyError> {
     if rep.checked == 0 {
         if let Some(why) = &rep.undefined_why {
             return Err(SimplifyError::Eval(EvalError::Arithmetic(format!(
@@ -269,18 +297,25 @@ impl<'a> Derivation<'a> {
     /// it has one, else the whole before and after), and the step
     /// recorded with exactly the expression the next step sees.
     pub fn advance(&mut self, p: Proposal) -> Result<(), SimplifyError> {
+        self.advance_checked(p, None)
+    }
+
+    /// `advance` for a step that holds on the input's domain (its
+    /// projections admissible), verified at points of that domain.
+    pub fn advance_within(&mut self, p: Proposal, domain: &Expr) -> Result<(), SimplifyError> {
+        self.advance_checked(p, Some(domain))
+    }
+
+    fn advance_checked(&mut self, p: Proposal, domain: Option<&Expr>) -> Result<(), SimplifyError> {
         check_size(&p.next)?;
         let next = self.tidy(&p.next);
-        let (checked, nonzero) = match &p.local {
-            Some((il, ir)) => {
-                let st = verified_step(&p.rule, &p.source, il, ir, &self.opts.step_spot)?;
-                (st.checked, st.nonzero)
-            }
-            None => {
-                let st = verified_step(&p.rule, &p.source, &self.cur, &next, &self.opts.step_spot)?;
-                (st.checked, st.nonzero)
-            }
+        let s = &self.opts.step_spot;
+        let st = match (&p.local, domain) {
+            (Some((il, ir)), _) => verified_step(&p.rule, &p.source, il, ir, s)?,
+            (None, Some(d)) => verified_step_within(&p.rule, &p.source, &self.cur, &next, d, s)?,
+            (None, None) => verified_step(&p.rule, &p.source, &self.cur, &next, s)?,
         };
+        let (checked, nonzero) = (st.checked, st.nonzero);
         self.steps.push(Step {
             rule: p.rule,
             source: p.source,
@@ -747,14 +782,17 @@ fn simplify_declared(input: &Expr, opts: &Options) -> Result<Outcome, SimplifyEr
         if d.tidy(&next) == d.cur {
             break;
         }
-        d.advance(Proposal {
-            rule: "vacuous-triangle".into(),
-            source: Source::default().noted(&format!(
-                "{text} fails only where the terms that carry it sum to zero (checked at each such value; common practice, no source)"
-            )),
-            next,
-            local: None,
-        })?;
+        d.advance_within(
+            Proposal {
+                rule: "vacuous-triangle".into(),
+                source: Source::default().noted(&format!(
+                    "{text} fails only where the terms that carry it sum to zero (checked at each such value; common practice, no source)"
+                )),
+                next,
+                local: None,
+            },
+            input,
+        )?;
     }
     // where the user wrote Clebsch-Gordan coefficients and no 3j, the 3j
     // left with free projections read better as CGs again
