@@ -755,3 +755,25 @@ fn a_triangle_factor_dropped_on_the_inputs_domain_is_verified_there() {
     assert_eq!(code, 0, "{err}");
     assert_eq!(out.trim(), "-sqrt(1/2) sqrt(j-m+1) sqrt(j+m)");
 }
+
+#[test]
+fn a_delta_cancels_the_names_on_both_sides() {
+    // sum over m1, m2 of two CGs of the same pair is delta(j12, k12)
+    // delta(m12, n12) (Edmonds 1957, eq. 3.5.4, from memory); the sum
+    // over m12 then leaves the projections of the outer pair equal, which
+    // reads delta(M, N), not delta(M+n12-N, n12)
+    let (code, out, _) = run(
+        &["simplify", "sum(m1, m2, m12, m3: <j1, m1; j2, m2 | j12, m12> <j12, m12; j3, m3 | J, M> <j1, m1; j2, m2 | k12, n12> <k12, n12; j3, m3 | K, N>)"],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert!(out.contains("delta(M, N)"), "{out}");
+    for (input, shown) in [
+        ("delta(2, a)", "delta(a, 2)"),
+        ("delta(m1+m2, 0)", "delta(m1, -m2)"),
+        ("delta(x - y + 1, 0)", "delta(x+1, y)"),
+    ] {
+        let (code, out, _) = run(&["simplify", input], None);
+        assert_eq!((code, out.trim()), (0, shown));
+    }
+}

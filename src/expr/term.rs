@@ -459,6 +459,9 @@ impl Term {
                         }
                         return self.zeroed();
                     }
+                    // the names on both sides cancel: delta(M+n-N, n) is
+                    // delta(M, N), read off the difference's signs
+                    let (a, b) = delta_sides(&d);
                     // canonical spelling among delta(a,b), delta(b,a),
                     // delta(-a,-b), delta(-b,-a): no leading minus first
                     let forms = [
@@ -610,6 +613,41 @@ impl Term {
             && self.factors == other.factors
             && self.bound == other.bound
     }
+}
+
+/// The two sides of `delta(a, b)` for a nonconstant difference `d = a -
+/// b` with no name on both sides: the terms of `d` with positive
+/// coefficients (and a positive constant) on the left, the others negated
+/// on the right; when one side would be empty, the last name of the other
+/// moves across (`delta(m1, -m2)`, not `delta(m1+m2, 0)`).
+fn delta_sides(d: &Lin) -> (Lin, Lin) {
+    let (mut left, mut right) = (Lin::zero(), Lin::zero());
+    for (v, c) in d.terms() {
+        let term = Lin::var(v.clone()).scale(*c);
+        if *c > Q::zero() {
+            left = &left + &term;
+        } else {
+            right = &right - &term;
+        }
+    }
+    let c0 = d.constant_part();
+    if c0 > Q::zero() {
+        left = &left + &Lin::constant(c0);
+    } else {
+        right = &right - &Lin::constant(c0);
+    }
+    for _ in 0..2 {
+        if left.is_zero() {
+            let Some((v, c)) = right.terms().last().map(|(v, c)| (v.clone(), *c)) else {
+                break;
+            };
+            let term = Lin::var(v).scale(c);
+            right = &right - &term;
+            left = &left - &term;
+        }
+        std::mem::swap(&mut left, &mut right);
+    }
+    (left, right)
 }
 
 /// `2q` as an integer, when it is one.
