@@ -777,3 +777,24 @@ fn a_delta_cancels_the_names_on_both_sides() {
         assert_eq!((code, out.trim()), (0, shown));
     }
 }
+
+#[test]
+fn a_nine_j_result_is_spelled_without_the_phase_an_odd_permutation_costs() {
+    // <(j1 j2) J || [T(k1) x U(k2)](k) || (j1' j2') J'> = hat(J) hat(J')
+    // hat(k) {j1 j1' k1; j2 j2' k2; J J' k} <j1||T||j1'> <j2||U||j2'>
+    // (Edmonds 1957, eq. 7.1.5, from memory): no phase; the 9j is printed
+    // as the transpose of the textbook's (rows in the order the input
+    // names them), not with an odd row order and (-1)^(sum of the nine)
+    let (code, out, _) = run(
+        &[
+            "simplify",
+            "<(j1, j2) J || [T[k1] @ j1 x U[k2] @ j2][k] || (j1', j2') J'>",
+        ],
+        None,
+    );
+    assert_eq!(code, 0);
+    assert_eq!(
+        out.trim(),
+        "hat(J) hat(J') hat(k) {j1, j2, J; j1', j2', J'; k1, k2, k} <j1 || T[k1] || j1'> <j2 || U[k2] || j2'>"
+    );
+}

@@ -81,20 +81,34 @@ fn key(l: &Lin, ranks: &BTreeMap<Name, usize>) -> (usize, String) {
     }
 }
 
-/// The spelling of a 6j or 9j that reads in the order of `ranks`, with
-/// the phase exponent it costs; other factors as they are.
-fn arrange_factor(f: &Factor, ranks: &BTreeMap<Name, usize>) -> (Factor, Lin) {
+/// The spelling of a 6j or 9j that leaves the term's phase (`phase`, then
+/// the image's cost, reduced by `lattice`) shortest and, among those,
+/// reads in the order of `ranks`, with the phase exponent it costs; other
+/// factors as they are. (Only a 9j's odd permutations cost a phase: a
+/// result carrying `(-1)^(sum of the nine)` reads better as the other
+/// parity of rows, as the textbooks print it.)
+fn arrange_factor(
+    f: &Factor,
+    ranks: &BTreeMap<Name, usize>,
+    phase: &Lin,
+    lattice: &PhaseLattice,
+) -> (Factor, Lin) {
     if !matches!(f, Factor::SixJ(_) | Factor::NineJ(_)) {
         return (f.clone(), Lin::zero());
     }
     let reading = |g: &Factor| -> Vec<(usize, String)> {
         g.lins().into_iter().map(|l| key(l, ranks)).collect()
     };
+    let phase_terms = |p: &Lin| {
+        let r = lattice.reduce(&(phase + p));
+        r.terms().count() + usize::from(r.constant_part() != Q::from_integer(0))
+    };
     classical_images(f)
         .into_iter()
+        .map(|img| ((phase_terms(&img.phase), reading(&img.factor)), img))
         // ties (equal keys) keep the first image, the identity among them
-        .min_by(|a, b| reading(&a.factor).cmp(&reading(&b.factor)))
-        .map(|img| (img.factor, img.phase))
+        .min_by(|a, b| a.0.cmp(&b.0))
+        .map(|(_, img)| (img.factor, img.phase))
         .unwrap_or_else(|| (f.clone(), Lin::zero()))
 }
 
@@ -164,11 +178,12 @@ pub fn for_reading(e: &Expr, written: &Written) -> Expr {
     Expr::from_terms(e.terms().iter().map(|t| {
         let mut parts = t.parts();
         let mut phase = t.phase().clone();
+        let lattice = PhaseLattice::of_term(t);
         parts.factors = t
             .factors()
             .iter()
             .map(|f| {
-                let (g, p) = arrange_factor(f, &written.ranks);
+                let (g, p) = arrange_factor(f, &written.ranks, &phase, &lattice);
                 phase = &phase + &p;
                 g
             })
