@@ -215,10 +215,10 @@ impl Expression {
                 return Ok(Simplification::of(&out, self.declared_text()));
             }
             crate::simplify::arrange_for_reading(&mut out, &[&self.text], &opts)?;
-            let ranks = crate::render::arrange::ranks(&[&self.text]);
-            Ok(crate::expr::lin::with_reading_order(&ranks, || {
-                Simplification::of(&out, self.declared_text())
-            }))
+            Ok(crate::render::arrange::in_reading_order(
+                &[&self.text],
+                || Simplification::of(&out, self.declared_text()),
+            ))
         })
     }
 
@@ -524,10 +524,10 @@ pub fn recouple(from: &str, to: &str, form: RecouplingForm) -> Result<Recoupling
         return Ok(RecouplingReport::of(&r));
     }
     crate::recouple::arrange_for_reading(&mut r, from_text, to_text, &opts)?;
-    let ranks = crate::render::arrange::ranks(&[from_text, to_text]);
-    Ok(crate::expr::lin::with_reading_order(&ranks, || {
-        RecouplingReport::of(&r)
-    }))
+    Ok(crate::render::arrange::in_reading_order(
+        &[from_text, to_text],
+        || RecouplingReport::of(&r),
+    ))
 }
 
 /// Runs `f` with a time limit in seconds (none: no limit); the limit

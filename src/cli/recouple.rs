@@ -84,8 +84,9 @@ pub fn run(a: RecoupleArgs, io: &mut Io) -> Result<(), Failure> {
         return print_recoupling(&a, io, &r);
     }
     crate::recouple::arrange_for_reading(&mut r, &from_text, &to_text, &opts)?;
-    let ranks = crate::render::arrange::ranks(&[&from_text, &to_text]);
-    crate::expr::lin::with_reading_order(&ranks, || print_recoupling(&a, io, &r))
+    crate::render::arrange::in_reading_order(&[&from_text, &to_text], || {
+        print_recoupling(&a, io, &r)
+    })
 }
 
 /// Prints a recoupling coefficient (and its value at `--at`) as text,

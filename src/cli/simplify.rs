@@ -26,8 +26,8 @@ pub struct SimplifyArgs {
     /// let canonical forms use Regge's symmetries
     #[arg(long)]
     regge: bool,
-    /// print 6j and 9j symbols in recoup's canonical form rather than in
-    /// the order the input names their entries
+    /// print the result in recoup's canonical form rather than in the
+    /// input's arrangement (symbol spellings and phase order)
     #[arg(long)]
     canonical: bool,
     /// points for the final verification
@@ -93,8 +93,7 @@ pub fn run(a: SimplifyArgs, io: &mut Io) -> Result<(), Failure> {
         return print_outcome(&a, io, &text, &out);
     }
     crate::simplify::arrange_for_reading(&mut out, &[&text], &opts)?;
-    let ranks = crate::render::arrange::ranks(&[&text]);
-    crate::expr::lin::with_reading_order(&ranks, || print_outcome(&a, io, &text, &out))
+    crate::render::arrange::in_reading_order(&[&text], || print_outcome(&a, io, &text, &out))
 }
 
 /// Prints a simplification as text, LaTeX or JSON.

@@ -72,6 +72,20 @@ impl TermParts {
     }
 }
 
+impl TermParts {
+    /// The product of two sets of parts, pieces side by side: summed names
+    /// are not renamed apart (the caller keeps them apart).
+    pub fn times(&self, other: &TermParts) -> TermParts {
+        let mut p = self.clone();
+        p.coef = &p.coef * &other.coef;
+        p.root = &p.root * &other.root;
+        p.phase = &p.phase + &other.phase;
+        p.factors.extend(other.factors.iter().cloned());
+        p.bound.extend(other.bound.iter().cloned());
+        p
+    }
+}
+
 impl Default for TermParts {
     fn default() -> Self {
         Term::one().into_parts()
@@ -173,16 +187,6 @@ impl Term {
             factors: self.factors,
             bound: self.bound,
         }
-    }
-
-    /// The same term with the rational coefficient `c`.
-    pub fn with_coef(&self, c: BigRational) -> Term {
-        if c.is_zero() {
-            return self.clone().zeroed();
-        }
-        let mut t = self.clone();
-        t.coef = c;
-        t
     }
 
     /// The negated term.

@@ -1,7 +1,8 @@
 //! Arrangement for reading. Canonical forms are for matching; a printed
 //! result shows each 6j and 9j symbol in the spelling, among those its
 //! classical symmetries allow, whose arguments come in the order the
-//! user's text first names them. For a recoupling coefficient that is the
+//! user's text first names them, and each 3j and Clebsch–Gordan
+//! coefficient turned the way the user writes it. For a recoupling coefficient that is the
 //! literature's arrangement: `{j1 j2 j12; j3 J j23}` for
 //! `((j1, j2) j12, j3) J -> (j1, (j2, j3) j23) J`, `{l1 l2 L; s1 s2 S; j1
 //! j2 J}` for LS to jj coupling (Edmonds 1957, eqs. 6.1.5 and 6.4.2, from
@@ -24,7 +25,7 @@ pub fn ranks(texts: &[&str]) -> BTreeMap<Name, usize> {
     let mut out = BTreeMap::new();
     for inside_braces_only in [true, false] {
         for text in texts {
-            let chars: Vec<char> = without_declarations(text).chars().collect();
+            let chars: Vec<char> = crate::syntax::without_declarations(text).chars().collect();
             let mut depth = 0usize;
             let mut i = 0;
             while i < chars.len() {
@@ -56,19 +57,10 @@ pub fn ranks(texts: &[&str]) -> BTreeMap<Name, usize> {
     out
 }
 
-/// The text after its leading declarations (`integer k, q; half-odd s;`),
-/// which name variables in no reading order of their own.
-fn without_declarations(text: &str) -> &str {
-    let mut rest = text.trim_start();
-    loop {
-        let word = ["integer", "half-odd"]
-            .into_iter()
-            .find(|w| rest.starts_with(w) && !rest[w.len()..].starts_with(|c: char| c.is_alphanumeric() || c == '_'));
-        match (word, rest.find(';')) {
-            (Some(_), Some(end)) => rest = rest[end + 1..].trim_start(),
-            _ => return rest,
-        }
-    }
+/// Runs `f` (the printing of an arranged result) with phases listing
+/// their names in the order `texts` name them.
+pub fn in_reading_order<T>(texts: &[&str], f: impl FnOnce() -> T) -> T {
+    crate::expr::lin::with_reading_order(&ranks(texts), f)
 }
 
 /// The reading key of one argument: its variable's rank when it is a
@@ -172,8 +164,7 @@ impl Written {
 
 /// `e` with every 6j and 9j arranged for reading by the written order,
 /// and every 3j and Clebsch–Gordan coefficient turned the way the user
-/// writes it (equal in value; phases reduced
-/// modulo integrality).
+/// writes it (equal in value; phases reduced modulo integrality).
 pub fn for_reading(e: &Expr, written: &Written) -> Expr {
     Expr::from_terms(e.terms().iter().map(|t| {
         let mut parts = t.parts();
@@ -190,9 +181,11 @@ pub fn for_reading(e: &Expr, written: &Written) -> Expr {
             .collect();
         parts.phase = phase;
         let mut term = with_reduced_phase(parts);
-        let eligible: Vec<Factor> = (0..term.factors().len())
-            .filter(|&i| is_coupling_symbol(&term, i))
-            .map(|i| term.factors()[i].clone())
+        let eligible: Vec<Factor> = term
+            .factors()
+            .iter()
+            .filter(|f| matches!(f, Factor::ThreeJ(_) | Factor::Cg(_)))
+            .cloned()
             .collect();
         for f in eligible {
             // the factor's place after the earlier turns (normal form sorts)
@@ -211,11 +204,6 @@ fn with_reduced_phase(parts: TermParts) -> Term {
     let mut parts = term.into_parts();
     parts.phase = lattice.reduce(&parts.phase);
     parts.normalized()
-}
-
-/// True when factor `i` is a 3j or CG.
-fn is_coupling_symbol(t: &Term, i: usize) -> bool {
-    matches!(t.factors()[i], Factor::ThreeJ(_) | Factor::Cg(_))
 }
 
 /// `hat(j)^(2 power)`: `(2j+1)^power`.

@@ -43,7 +43,7 @@ fn render(l: &Layout) -> String {
         }
         Layout::Power(base, e) => {
             let b = render(base);
-            let simple = matches!(&**base, Layout::Operand(x) if is_atom(x));
+            let simple = matches!(&**base, Layout::Operand(x) if x.len() == 1) && is_atom(&b);
             let b = if simple || matches!(&**base, Layout::Parenthesised(_)) {
                 b
             } else {
@@ -74,10 +74,10 @@ fn is_additive(l: &Layout) -> bool {
     matches!(l, Layout::Infix(_, Infix::Add | Infix::Sub, _))
 }
 
-/// True for a name, a number or a symbol: a power needs no parentheses.
-fn is_atom(e: &Expr) -> bool {
-    let s = latex::expr(e);
-    e.len() == 1 && !s.contains(' ') && !s.starts_with('-') && !s.contains("\\frac")
+/// True for the LaTeX of a name, a number or a call such as `\\hat{j}`
+/// (no spaces, sign or fraction): a power needs no parentheses.
+fn is_atom(latex: &str) -> bool {
+    !latex.contains(' ') && !latex.starts_with('-') && !latex.contains("\\frac")
 }
 
 #[cfg(test)]

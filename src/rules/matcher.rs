@@ -250,6 +250,18 @@ impl Pattern {
     /// number against a symbolic j) could lose a zero of the left side.
     fn projections_admissible(&self, t: &Term, m: &Match) -> bool {
         let mut lattice: Option<PhaseLattice> = None;
+        // another factor holds the projection, or its negative, in a
+        // column of the same angular momentum: it is zero wherever the
+        // projection does not fit
+        let held_elsewhere = |l: &Lin, jv: &Lin| {
+            let neg = -l;
+            t.factors().iter().enumerate().any(|(i, f)| {
+                !m.factors.contains(&i)
+                    && f.columns()
+                        .iter()
+                        .any(|(cj, cm)| *cj == jv && (*cm == l || **cm == neg))
+            })
+        };
         self.unguarded.iter().all(|(p, j)| {
             let l = apply(&Lin::var(p.clone()), &m.subst);
             let jv = apply(j, &m.subst);
@@ -261,24 +273,10 @@ impl Pattern {
                 if !t.bound().contains(v) && !jv.vars().any(|x| t.bound().contains(x)) {
                     return true;
                 }
-                return t.factors().iter().enumerate().any(|(i, f)| {
-                    !m.factors.contains(&i)
-                        && f.columns().iter().any(|(cj, cm)| {
-                            **cj == jv && cm.as_signed_var().map(|x| x.0) == Some(v)
-                        })
-                });
             }
             if !l.is_constant() {
-                // a compound form (`md+me`) is admissible wherever another
-                // factor holds it, or its negative, in a column of the
-                // same angular momentum: that factor is zero elsewhere
-                let neg = -&l;
-                return t.factors().iter().enumerate().any(|(i, f)| {
-                    !m.factors.contains(&i)
-                        && f.columns()
-                            .iter()
-                            .any(|(cj, cm)| **cj == jv && (**cm == l || **cm == neg))
-                });
+                // a summed projection or a compound form (`md+me`)
+                return held_elsewhere(&l, &jv);
             }
             let c = l.constant_part();
             if jv.is_constant() {

@@ -48,20 +48,8 @@ impl Ctx<'_> {
             .map_primary(|p| self.layout_operand(p))
             .map_prefix(|_, rhs| Ok(Layout::Negated(Box::new(rhs?))))
             .map_postfix(|lhs, op| {
-                let at = op.as_span().start();
-                let txt: String = op
-                    .into_inner()
-                    .next()
-                    .unwrap()
-                    .as_str()
-                    .chars()
-                    .filter(|c| *c != '(' && *c != ')' && !c.is_whitespace())
-                    .collect();
-                let (num, den) = txt.split_once('/').unwrap_or((&txt, "1"));
-                let exponent = match (num.parse::<i64>(), den.parse::<i64>()) {
-                    (Ok(n), Ok(d)) if d == 1 || d == 2 => Q::new(n, d),
-                    _ => return Err(self.err(at, "an exponent is an integer or half an integer")),
-                };
+                let (n, halves) = self.power_exponent(op)?;
+                let exponent = Q::new(n, if halves { 2 } else { 1 });
                 Ok(Layout::Power(Box::new(lhs?), exponent))
             })
             .map_infix(|lhs, op, rhs| {

@@ -165,27 +165,13 @@ impl Ctx<'_> {
             .map_postfix(|lhs, op| {
                 let lhs = lhs?;
                 let at = op.as_span().start();
-                let ex = op.into_inner().next().unwrap();
-                let txt: String = ex
-                    .as_str()
-                    .chars()
-                    .filter(|c| *c != '(' && *c != ')' && !c.is_whitespace())
-                    .collect();
-                let (num, den) = txt.split_once('/').unwrap_or((&txt, "1"));
-                let n: i64 = num
-                    .parse()
-                    .map_err(|_| self.err(at, "this exponent is too large"))?;
-                match den {
-                    "1" => self.power(lhs, n, at),
+                let (n, halves) = self.power_exponent(op)?;
+                if halves {
                     // x^(p/2) = sqrt(x)^p
-                    "2" => {
-                        let root = self.sqrt(lhs, at)?;
-                        self.power(root, n, at)
-                    }
-                    _ => Err(self.err(
-                        at,
-                        "an exponent is an integer or half an integer, such as (-1/2) or (3/2)",
-                    )),
+                    let root = self.sqrt(lhs, at)?;
+                    self.power(root, n, at)
+                } else {
+                    self.power(lhs, n, at)
                 }
             })
             .map_infix(|lhs, op, rhs| {
@@ -201,6 +187,30 @@ impl Ctx<'_> {
                 }
             })
             .parse(pair.into_inner())
+    }
+
+    /// The exponent of a `power` pair: `n` and whether it counts halves
+    /// (`x^(n/2)`); other denominators are refused.
+    pub(super) fn power_exponent(&self, op: Pair<Rule>) -> R<(i64, bool)> {
+        let at = op.as_span().start();
+        let ex = op.into_inner().next().unwrap();
+        let txt: String = ex
+            .as_str()
+            .chars()
+            .filter(|c| *c != '(' && *c != ')' && !c.is_whitespace())
+            .collect();
+        let (num, den) = txt.split_once('/').unwrap_or((&txt, "1"));
+        let n: i64 = num
+            .parse()
+            .map_err(|_| self.err(at, "this exponent is too large"))?;
+        match den {
+            "1" => Ok((n, false)),
+            "2" => Ok((n, true)),
+            _ => Err(self.err(
+                at,
+                "an exponent is an integer or half an integer, such as (-1/2) or (3/2)",
+            )),
+        }
     }
 
     fn add(&self, a: Value, b: Value, sub: bool, at: usize) -> R<Value> {

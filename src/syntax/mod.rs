@@ -84,6 +84,23 @@ pub fn layout(input: &str) -> Option<Layout> {
     ctx.layout(expr).ok()
 }
 
+/// The text after its leading declarations (`integer k, q; half-odd s;`);
+/// the whole text when it declares nothing or does not parse.
+pub fn without_declarations(input: &str) -> &str {
+    let Ok(mut pairs) = Grammar::parse(Rule::expression_input, input) else {
+        return input;
+    };
+    let end = pairs
+        .next()
+        .into_iter()
+        .flat_map(|top| top.into_inner())
+        .filter(|p| p.as_rule() == Rule::declaration)
+        .map(|p| p.as_span().end())
+        .max()
+        .unwrap_or(0);
+    &input[end..]
+}
+
 /// A phase as the user wrote it.
 #[derive(Clone, Debug)]
 pub struct WrittenPhase {

@@ -20,9 +20,7 @@ use crate::expr::{
     TermParts,
 };
 use crate::rules::source::Source;
-use num_bigint::BigUint;
 use num_rational::BigRational;
-use num_traits::One;
 use std::collections::BTreeSet;
 
 /// Why a matrix element cannot be written as a projection sum.
@@ -63,45 +61,6 @@ impl Fresh {
     }
 }
 
-/// A product under construction: coefficient, phase, factors, sums.
-#[derive(Clone)]
-struct Build {
-    coef: BigRational,
-    phase: Lin,
-    factors: Vec<Factor>,
-    bound: Vec<Name>,
-}
-
-impl Build {
-    fn one() -> Build {
-        Build {
-            coef: BigRational::one(),
-            phase: Lin::zero(),
-            factors: Vec::new(),
-            bound: Vec::new(),
-        }
-    }
-
-    fn times(&self, o: &Build) -> Build {
-        let mut b = self.clone();
-        b.coef = &b.coef * &o.coef;
-        b.phase = &b.phase + &o.phase;
-        b.factors.extend(o.factors.iter().cloned());
-        b.bound.extend(o.bound.iter().cloned());
-        b
-    }
-
-    fn into_term(self) -> Term {
-        TermParts {
-            coef: self.coef,
-            root: BigUint::one(),
-            phase: self.phase,
-            factors: self.factors,
-            bound: self.bound,
-        }
-        .normalized()
-    }
-}
 
 /// One elementary operator's component inside a product.
 #[derive(Clone)]
@@ -116,7 +75,7 @@ struct Component {
 /// coefficient.
 #[derive(Clone)]
 struct Chain {
-    weight: Build,
+    weight: TermParts,
     ops: Vec<Component>,
 }
 
@@ -132,7 +91,7 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
                 .or(component.as_ref())
                 .ok_or_else(|| ExpandError("an operator needs a component here".into()))?;
             Ok(vec![Chain {
-                weight: Build::one(),
+                weight: TermParts::default(),
                 ops: vec![Component {
                     name: name.clone(),
                     rank: rank.clone(),
@@ -165,7 +124,7 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
             let q2l = Lin::var(q2.clone());
             let ls = chains(left, Some(&q1l), fresh)?;
             let rs = chains(right, Some(&q2l), fresh)?;
-            let mut coupling = Build::one();
+            let mut coupling = TermParts::default();
             coupling.factors.push(Factor::Cg([
                 k1,
                 q1l.clone(),
@@ -183,8 +142,10 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
             let pl = Lin::var(p.clone());
             let ls = chains(a, Some(&pl), fresh)?;
             let rs = chains(b, Some(&-&pl), fresh)?;
-            let mut coupling = Build::one();
-            coupling.phase = pl.clone();
+            let mut coupling = TermParts {
+                phase: pl.clone(),
+                ..Default::default()
+            };
             coupling.bound.push(p);
             Ok(product(&coupling, &ls, &rs))
         }
@@ -201,7 +162,7 @@ fn chains(op: &Operator, q: Option<&Lin>, fresh: &mut Fresh) -> Result<Vec<Chain
     }
 }
 
-fn product(coupling: &Build, ls: &[Chain], rs: &[Chain]) -> Vec<Chain> {
+fn product(coupling: &TermParts, ls: &[Chain], rs: &[Chain]) -> Vec<Chain> {
     let mut out = Vec::new();
     for l in ls {
         for r in rs {
@@ -291,7 +252,7 @@ fn chain_term(
     // active node lies strictly below it
     struct Walk<'a> {
         active: Vec<&'a NodePath>,
-        b: Build,
+        b: TermParts,
         fresh: &'a mut Fresh,
         frontier: Vec<(NodePath, Lin, Lin)>,
     }
@@ -384,7 +345,7 @@ fn chain_term(
     }
     let mut w = Walk {
         active,
-        b: Build::one(),
+        b: TermParts::default(),
         fresh,
         frontier: Vec::new(),
     };
@@ -494,7 +455,7 @@ fn chain_term(
             }
         }
     }
-    let mut t = b.into_term();
+    let mut t = b.normalized();
     for x in &extra {
         t = t.mul_inside(x);
     }
@@ -525,9 +486,11 @@ pub fn expand_reduced(e: &MatrixElement, avoid: &BTreeSet<Name>) -> Result<Expr,
         Lin::var(big_mk.clone()),
         Lin::var(q.clone()),
     );
-    let mut outer = Build::one();
     // (-1)^(J-M) (J, k, J'; -M, q, M')
-    outer.phase = e.bra.tree.label() - &lm;
+    let mut outer = TermParts {
+        phase: e.bra.tree.label() - &lm,
+        ..Default::default()
+    };
     outer.factors.push(Factor::ThreeJ([
         e.bra.tree.label().clone(),
         k,
@@ -563,7 +526,7 @@ pub fn expand_reduced(e: &MatrixElement, avoid: &BTreeSet<Name>) -> Result<Expr,
                 &all_avoid,
                 &mut fresh,
             )?;
-            out.push(outer.clone().into_term().mul_inside(&t));
+            out.push(outer.clone().normalized().mul_inside(&t));
         }
     }
     Ok(out)
@@ -587,8 +550,10 @@ pub fn wigner_eckart(e: &MatrixElement) -> Option<Expr> {
             projection: None,
         },
     };
-    let mut t = Build::one();
-    t.phase = e.bra.tree.label() - m;
+    let mut t = TermParts {
+        phase: e.bra.tree.label() - m,
+        ..Default::default()
+    };
     t.factors.push(Factor::ThreeJ([
         e.bra.tree.label().clone(),
         k,
@@ -598,7 +563,7 @@ pub fn wigner_eckart(e: &MatrixElement) -> Option<Expr> {
         mk.clone(),
     ]));
     t.factors.push(Factor::Element(Box::new(reduced)));
-    Some(Expr::from_term(t.into_term()))
+    Some(Expr::from_term(t.normalized()))
 }
 
 /// A full matrix element of a sum whose terms differ in rank or component:
@@ -612,14 +577,16 @@ pub fn split_sum(e: &MatrixElement) -> Option<Expr> {
     };
     let mut out = Expr::zero();
     for (c, o) in terms {
-        let mut b = Build::one();
-        b.coef = big_q(*c);
+        let mut b = TermParts {
+            coef: big_q(*c),
+            ..Default::default()
+        };
         b.factors.push(Factor::Element(Box::new(MatrixElement {
             bra: e.bra.clone(),
             op: o.clone(),
             ket: e.ket.clone(),
         })));
-        out.push(b.into_term());
+        out.push(b.normalized());
     }
     Some(out)
 }
