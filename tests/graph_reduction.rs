@@ -15,6 +15,7 @@ use recoup::syntax::parse;
 use recoup::verify::check::{check, Verdict};
 use recoup::verify::rng::Rng;
 use recoup::verify::spot::SpotSettings;
+use std::collections::BTreeMap;
 
 fn projection_sums_left(e: &Expr) -> usize {
     common::sums_left(e, Some(Kind::Projection))
@@ -329,4 +330,85 @@ fn sums_of_6j_match_the_fewest_over_every_order_up_to_12_vertices() {
         report.join("\n")
     );
     assert_eq!(matched, total, "{}", report.join("\n"));
+}
+
+#[test]
+fn every_connected_cubic_graph_is_enumerated_once() {
+    // OEIS A002851 (connected 3-regular simple graphs): 1, 2, 5, 19, 85
+    // on 4, 6, 8, 10, 12 vertices (from memory). The generator reaches
+    // every graph and merges only isomorphic ones, so equal counts mean
+    // one graph per class.
+    let counts: Vec<usize> = [4, 6, 8, 10, 12]
+        .iter()
+        .map(|&n| common::cubic::connected_cubic_graphs(n).len())
+        .collect();
+    assert_eq!(counts, vec![1, 2, 5, 19, 85]);
+}
+
+/// Both measures on one graph: (interchanges, fewest interchanges) with
+/// 9j kept, and (sums of 6j, fewest sums of 6j) with 9j written out.
+fn both_measures(n: usize, edges: &[(usize, usize)]) -> ((usize, usize), (usize, usize)) {
+    let e = parse(&graph_expr(n, edges)).unwrap();
+    let mut o = Options::default();
+    o.final_spot.samples = 6;
+    let out = simplify(&e, &o).unwrap_or_else(|err| panic!("V={n} {edges:?}: {err}"));
+    assert_eq!(
+        projection_sums_left(&out.result),
+        0,
+        "V={n}: {}",
+        out.result
+    );
+    let ours = interchanges(&out);
+    let bare = Bare::from_edges(n, edges);
+    let best = fewest_sums(&bare, ours + 2).unwrap();
+    let out6 = simplify(&e, &six_j_only()).unwrap_or_else(|err| panic!("V={n} {edges:?}: {err}"));
+    assert_eq!(
+        projection_sums_left(&out6.result),
+        0,
+        "V={n}: {}",
+        out6.result
+    );
+    let ours6 = momentum_sums_left(&out6.result);
+    let best6 = fewest_six_j_sums(&bare, ours6 + 1).unwrap();
+    ((ours, best), (ours6, best6))
+}
+
+#[test]
+fn every_cubic_graph_up_to_12_vertices_against_the_fewest_over_every_order() {
+    // every connected simple cubic graph on 4..12 vertices (112 graphs),
+    // each reduced twice (9j kept; 9j written as sums of 6j) and compared
+    // with the independent search over every reduction order
+    let mut report = Vec::new();
+    let mut tally = BTreeMap::new();
+    // (vertices, measure, fewest) -> graphs
+    let mut spread: BTreeMap<(usize, &str, usize), usize> = BTreeMap::new();
+    for n in [4usize, 6, 8, 10, 12] {
+        for (i, edges) in common::cubic::connected_cubic_graphs(n).iter().enumerate() {
+            let ((ours, best), (ours6, best6)) = both_measures(n, edges);
+            assert!(
+                ours >= best && ours6 >= best6,
+                "V={n} {edges:?}: below the fewest"
+            );
+            let entry = tally.entry(n).or_insert([0usize; 3]);
+            entry[0] += 1;
+            entry[1] += usize::from(ours == best);
+            entry[2] += usize::from(ours6 == best6);
+            *spread.entry((n, "interchanges", best)).or_default() += 1;
+            *spread.entry((n, "6j sums", best6)).or_default() += 1;
+            if ours != best || ours6 != best6 {
+                report.push(format!(
+                    "V={n} #{i} {edges:?}: interchanges {ours} (fewest {best}), 6j sums {ours6} (fewest {best6})"
+                ));
+            }
+        }
+    }
+    for (n, [all, at, at6]) in &tally {
+        eprintln!(
+            "V={n}: {all} graphs; interchanges at the fewest {at}; 6j sums at the fewest {at6}"
+        );
+    }
+    for ((n, measure, k), count) in &spread {
+        eprintln!("V={n}: {count} graphs need {k} {measure}");
+    }
+    assert!(report.is_empty(), "{}", report.join("\n"));
 }

@@ -5,6 +5,7 @@
 #![allow(dead_code)]
 
 pub mod bare;
+pub mod cubic;
 
 use recoup::algebra::symmetry::classical_images;
 use recoup::expr::{Expr, Kind, Name, Q};
