@@ -12,8 +12,8 @@ use std::time::Instant;
 
 fn main() {
     let mut rng = Rng::new(99);
-    println!("| leaves | median time | max time | median sums | max sums |");
-    println!("|---|---|---|---|---|");
+    println!("| leaves | median time | max time | median sums | max sums | all sums |");
+    println!("|---|---|---|---|---|---|");
     for n in [4usize, 6, 8, 10, 12, 14, 16] {
         let pairs = if n >= 14 { 5 } else { 11 };
         let mut times = Vec::new();
@@ -29,11 +29,12 @@ fn main() {
         times.sort_by(|a, b| a.partial_cmp(b).unwrap());
         sums.sort();
         println!(
-            "| {n} | {:.3} s | {:.3} s | {} | {} |",
+            "| {n} | {:.3} s | {:.3} s | {} | {} | {} |",
             times[pairs / 2],
             times[pairs - 1],
             sums[pairs / 2],
-            sums[pairs - 1]
+            sums[pairs - 1],
+            sums.iter().sum::<usize>()
         );
     }
 }

@@ -91,9 +91,17 @@ fn arrange_factor(
     let reading = |g: &Factor| -> Vec<(usize, String)> {
         g.lins().into_iter().map(|l| key(l, ranks)).collect()
     };
-    let phase_terms = |p: &Lin| {
+    // images share few phases (none for a 6j, two for a 9j): each
+    // distinct one is reduced once
+    let mut reduced: Vec<(Lin, usize)> = Vec::new();
+    let mut phase_terms = |p: &Lin| {
+        if let Some((_, n)) = reduced.iter().find(|(q, _)| q == p) {
+            return *n;
+        }
         let r = lattice.reduce(&(phase + p));
-        r.terms().count() + usize::from(r.constant_part() != Q::from_integer(0))
+        let n = r.terms().count() + usize::from(r.constant_part() != Q::from_integer(0));
+        reduced.push((p.clone(), n));
+        n
     };
     classical_images(f)
         .into_iter()

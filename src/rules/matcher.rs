@@ -411,12 +411,39 @@ impl Pattern {
         // images only for the factors the pattern can use
         let kinds: Vec<std::mem::Discriminant<Factor>> =
             self.symbols.iter().map(std::mem::discriminant).collect();
+        // a factor can stand for a pattern symbol only if it holds, for
+        // each summed variable of that symbol, a summed term variable
+        // found in exactly as many symbols
+        let counts = |names: &[Name], symbols: &mut dyn Iterator<Item = &Factor>| {
+            let symbols: Vec<&Factor> = symbols.collect();
+            names
+                .iter()
+                .map(|b| (b.clone(), symbols.iter().filter(|f| f.has(b)).count()))
+                .collect::<BTreeMap<Name, usize>>()
+        };
+        let need_of = counts(&self.bound, &mut self.symbols.iter());
+        let have_of = counts(
+            t.bound(),
+            &mut t.factors().iter().filter(|f| f.is_symbol()),
+        );
+        let could_stand_for = |f: &Factor, pat: &Factor| {
+            std::mem::discriminant(f) == std::mem::discriminant(pat)
+                && self.bound.iter().filter(|b| pat.has(b)).all(|b| {
+                    have_of
+                        .iter()
+                        .any(|(v, n)| *n == need_of[b] && f.has(v))
+                })
+        };
         let images: Vec<Vec<Image>> = t
             .factors()
             .iter()
             .enumerate()
             .map(|(i, f)| {
-                if f.is_symbol() && !used[i] && kinds.contains(&std::mem::discriminant(f)) {
+                if f.is_symbol()
+                    && !used[i]
+                    && kinds.contains(&std::mem::discriminant(f))
+                    && self.symbols.iter().any(|pat| could_stand_for(f, pat))
+                {
                     if regge {
                         regge_images(f)
                     } else {
@@ -463,8 +490,21 @@ impl Pattern {
             return;
         }
         let pat = &self.symbols[k];
+        // the term variables this symbol's summed variables already stand
+        // for: a factor without one of them cannot be its image
+        let held: Vec<&Name> = self
+            .bound
+            .iter()
+            .filter(|b| pat.has(b))
+            .filter_map(|b| solver.subst.get(b).and_then(|l| l.as_signed_var()))
+            .map(|(v, _)| v)
+            .collect();
         for (i, f) in t.factors().iter().enumerate() {
-            if used[i] || std::mem::discriminant(f) != std::mem::discriminant(pat) {
+            if used[i]
+                || std::mem::discriminant(f) != std::mem::discriminant(pat)
+                || images[i].is_empty()
+                || held.iter().any(|v| !f.has(v))
+            {
                 continue;
             }
             for img in &images[i] {

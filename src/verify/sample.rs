@@ -388,6 +388,9 @@ impl Sampler {
             remaining -= 1;
         }
         while remaining > 0 {
+            // drawing a point over hundreds of names is long work: the
+            // time limit may stop it
+            crate::limits::tick();
             // the most constrained variable next
             let mut best: Option<(usize, u64)> = None;
             for i in (0..n).filter(|&i| left[i]) {

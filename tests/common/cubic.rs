@@ -16,13 +16,13 @@ use std::collections::BTreeMap;
 /// Edges of every connected simple cubic graph on `n` vertices (n even,
 /// 4..=12 in practice), one per isomorphism class, in a fixed order.
 pub fn connected_cubic_graphs(n: usize) -> Vec<Vec<(usize, usize)>> {
-    assert!(n >= 4 && n % 2 == 0);
+    assert!(n >= 4 && n.is_multiple_of(2));
     let mut adj = vec![Vec::with_capacity(3); n];
     let mut kept: BTreeMap<Vec<Vec<u64>>, Vec<Vec<Vec<usize>>>> = BTreeMap::new();
     let mut order = Vec::new();
     adj[0] = vec![1, 2, 3];
-    for v in 1..=3 {
-        adj[v].push(0);
+    for row in &mut adj[1..=3] {
+        row.push(0);
     }
     extend(&mut adj, 1, 4, &mut |g: &Vec<Vec<usize>>| {
         let key = invariant(g);
