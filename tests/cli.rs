@@ -798,3 +798,26 @@ fn a_nine_j_result_is_spelled_without_the_phase_an_odd_permutation_costs() {
         "hat(J) hat(J') hat(k) {j1, j2, J; j1', j2', J'; k1, k2, k} <j1 || T[k1] || j1'> <j2 || U[k2] || j2'>"
     );
 }
+
+#[test]
+fn stretched_six_j_with_an_entry_three_halves_or_two_close_in_any_spelling() {
+    // {a, b, c; k, c-k, b-k} and {a, b, c; k, c-k, b+k} for k = 3/2, 2
+    // (Edmonds 1957 Table 5, from memory; each catalog entry checked at
+    // every admissible point up to 6), written in other symmetric
+    // spellings and with other names: no 6j may be left
+    for input in [
+        "{q-2, p-2, r; p, q, 2}",
+        "{r, p+3/2, q-3/2; 3/2, q, p}",
+        "{x-3/2, y, z; y-3/2, x, 3/2}",
+        "{u, 2, w; w+2, v, u-2}",
+    ] {
+        let (code, out, err) = run(&["simplify", input], None);
+        assert_eq!(code, 0, "{input}: {err}");
+        if input.starts_with("{u, 2") {
+            // not stretched (the triad (u, 2, w) is free): it stays a 6j
+            assert!(out.contains('{'), "{input}: {out}");
+        } else {
+            assert!(!out.contains('{') && out.contains("sqrt("), "{input}: {out}");
+        }
+    }
+}
