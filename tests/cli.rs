@@ -817,7 +817,10 @@ fn stretched_six_j_with_an_entry_three_halves_or_two_close_in_any_spelling() {
             // not stretched (the triad (u, 2, w) is free): it stays a 6j
             assert!(out.contains('{'), "{input}: {out}");
         } else {
-            assert!(!out.contains('{') && out.contains("sqrt("), "{input}: {out}");
+            assert!(
+                !out.contains('{') && out.contains("sqrt("),
+                "{input}: {out}"
+            );
         }
     }
 }
