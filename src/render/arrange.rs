@@ -174,35 +174,39 @@ impl Written {
 /// and every 3j and Clebsch–Gordan coefficient turned the way the user
 /// writes it (equal in value; phases reduced modulo integrality).
 pub fn for_reading(e: &Expr, written: &Written) -> Expr {
-    Expr::from_terms(e.terms().iter().map(|t| {
-        let mut parts = t.parts();
-        let mut phase = t.phase().clone();
-        let lattice = PhaseLattice::of_term(t);
-        parts.factors = t
-            .factors()
-            .iter()
-            .map(|f| {
-                let (g, p) = arrange_factor(f, &written.ranks, &phase, &lattice);
-                phase = &phase + &p;
-                g
-            })
-            .collect();
-        parts.phase = phase;
-        let mut term = with_reduced_phase(parts);
-        let eligible: Vec<Factor> = term
-            .factors()
-            .iter()
-            .filter(|f| matches!(f, Factor::ThreeJ(_) | Factor::Cg(_)))
-            .cloned()
-            .collect();
-        for f in eligible {
-            // the factor's place after the earlier turns (normal form sorts)
-            if let Some(i) = term.factors().iter().position(|g| *g == f) {
-                term = oriented(&term, i, written);
-            }
+    Expr::from_terms(e.terms().iter().map(|t| term_for_reading(t, written)))
+}
+
+/// One term of `for_reading`: its sums kept as they are, its symbols
+/// turned and its phase rewritten.
+pub fn term_for_reading(t: &Term, written: &Written) -> Term {
+    let mut parts = t.parts();
+    let mut phase = t.phase().clone();
+    let lattice = PhaseLattice::of_term(t);
+    parts.factors = t
+        .factors()
+        .iter()
+        .map(|f| {
+            let (g, p) = arrange_factor(f, &written.ranks, &phase, &lattice);
+            phase = &phase + &p;
+            g
+        })
+        .collect();
+    parts.phase = phase;
+    let mut term = with_reduced_phase(parts);
+    let eligible: Vec<Factor> = term
+        .factors()
+        .iter()
+        .filter(|f| matches!(f, Factor::ThreeJ(_) | Factor::Cg(_)))
+        .cloned()
+        .collect();
+    for f in eligible {
+        // the factor's place after the earlier turns (normal form sorts)
+        if let Some(i) = term.factors().iter().position(|g| *g == f) {
+            term = oriented(&term, i, written);
         }
-        term
-    }))
+    }
+    term
 }
 
 /// The term of `parts` with its phase reduced by the term's lattice.

@@ -374,23 +374,14 @@ impl Pattern {
                 return;
             }
         }
-        // each summed pattern variable needs a summed term variable found in
-        // exactly as many symbols (it may appear in no others)
-        let mut need: Vec<usize> = self
-            .bound
-            .iter()
-            .map(|b| self.symbols.iter().filter(|f| f.has(b)).count())
-            .collect();
-        let mut have: Vec<usize> = t
-            .bound()
-            .iter()
-            .map(|b| {
-                t.factors()
-                    .iter()
-                    .filter(|f| f.is_symbol() && f.has(b))
-                    .count()
-            })
-            .collect();
+        // how many symbols hold each summed variable, of the pattern and of
+        // the term: each summed pattern variable needs a summed term
+        // variable found in exactly as many symbols (it may appear in no
+        // others)
+        let need_of = symbols_holding(&self.bound, &self.symbols);
+        let have_of = symbols_holding(t.bound(), t.factors());
+        let mut need: Vec<usize> = need_of.values().copied().collect();
+        let mut have: Vec<usize> = have_of.values().copied().collect();
         need.sort_unstable();
         have.sort_unstable();
         for n in need {
@@ -414,18 +405,6 @@ impl Pattern {
         // a factor can stand for a pattern symbol only if it holds, for
         // each summed variable of that symbol, a summed term variable
         // found in exactly as many symbols
-        let counts = |names: &[Name], symbols: &mut dyn Iterator<Item = &Factor>| {
-            let symbols: Vec<&Factor> = symbols.collect();
-            names
-                .iter()
-                .map(|b| (b.clone(), symbols.iter().filter(|f| f.has(b)).count()))
-                .collect::<BTreeMap<Name, usize>>()
-        };
-        let need_of = counts(&self.bound, &mut self.symbols.iter());
-        let have_of = counts(
-            t.bound(),
-            &mut t.factors().iter().filter(|f| f.is_symbol()),
-        );
         let could_stand_for = |f: &Factor, pat: &Factor| {
             std::mem::discriminant(f) == std::mem::discriminant(pat)
                 && self.bound.iter().filter(|b| pat.has(b)).all(|b| {
@@ -781,4 +760,15 @@ impl Pattern {
         let rhs = Expr::merged(rhs.terms().iter().map(readable_bound));
         (Expr::from_term(lhs.normalized()), rhs)
     }
+}
+
+/// For each of `names`, how many symbols among `factors` hold it.
+fn symbols_holding(names: &[Name], factors: &[Factor]) -> BTreeMap<Name, usize> {
+    names
+        .iter()
+        .map(|b| {
+            let n = factors.iter().filter(|f| f.is_symbol() && f.has(b)).count();
+            (b.clone(), n)
+        })
+        .collect()
 }

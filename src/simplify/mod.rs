@@ -214,14 +214,37 @@ fn opened(t: &Term) -> Expr {
     Expr::from_terms([parts.normalized()])
 }
 
+/// Compares term pairs summand by summand: each pair must have the same
+/// summed names, and its two terms are compared with their sums opened
+/// (the summed names free) by `compare_pair`, which gives the points
+/// checked and those nonzero, or `None`. Summands equal at every point
+/// give equal sums: a stronger statement than the equality of the two
+/// sums, checked without evaluating any nested sum. `None` when a pair
+/// differs in its summed names, disagrees somewhere or shows no nonzero
+/// point: the caller then compares the two sides themselves.
+fn summandwise<'t>(
+    pairs: impl Iterator<Item = (&'t Term, &'t Term)>,
+    compare_pair: impl Fn(&Expr, &Expr) -> Option<(usize, usize)>,
+) -> Option<(usize, usize)> {
+    let (mut checked, mut nonzero) = (0, 0);
+    for (x, y) in pairs {
+        if x.bound() != y.bound() {
+            return None;
+        }
+        let (c, n) = compare_pair(&opened(x), &opened(y))?;
+        if n == 0 {
+            return None;
+        }
+        checked += c;
+        nonzero += n;
+    }
+    Some((checked, nonzero))
+}
+
 /// Verifies a rewrite that keeps every sum (same terms in the same order,
-/// each with the same summed names) summand by summand: each term after
-/// against the term before with their sums opened. Summands equal at every
-/// point give equal sums, so this checks a stronger statement than the
-/// step itself, without evaluating any nested sum (the cost of comparing
-/// a long unreduced product of symbols). `None` when the step does not
-/// have that shape, a summand pair disagrees somewhere or no nonzero
-/// point was found: the caller then compares the two sides themselves.
+/// each with the same summed names) summand by summand (`summandwise`):
+/// the cost of comparing a long unreduced product of symbols whose
+/// normal form was taken, without its nested sums.
 fn summandwise_step(
     rule: &str,
     source: &Source,
@@ -233,18 +256,10 @@ fn summandwise_step(
     if b.len() != a.len() || b.iter().all(|t| t.bound().is_empty()) {
         return None;
     }
-    let (mut checked, mut nonzero) = (0, 0);
-    for (x, y) in b.iter().zip(a) {
-        if x.bound() != y.bound() {
-            return None;
-        }
-        let rep = compare(&opened(x), &opened(y), s).ok()?;
-        if rep.mismatch_count > 0 || rep.nonzero == 0 {
-            return None;
-        }
-        checked += rep.checked;
-        nonzero += rep.nonzero;
-    }
+    let (checked, nonzero) = summandwise(b.iter().zip(a), |x, y| {
+        let rep = compare(x, y, s).ok()?;
+        (rep.mismatch_count == 0).then_some((rep.checked, rep.nonzero))
+    })?;
     Some(Step {
         rule: rule.to_string(),
         source: source.clone(),
@@ -995,20 +1010,29 @@ pub fn arrange_for_reading(
     opts: &Options,
 ) -> Result<Option<Expr>, SimplifyError> {
     let written = crate::render::arrange::Written::of_texts(texts);
-    // term by term (the arrangement maps each term on its own)
-    let pieces: Vec<Expr> = out
+    // term by term: the arrangement keeps every sum, so it is verified
+    // summand by summand, through the gate on the whole when that fails
+    let pieces: Vec<Term> = out
         .result
         .terms()
         .iter()
-        .map(|t| crate::render::arrange::for_reading(&Expr::from_terms([t.clone()]), &written))
+        .map(|t| crate::render::arrange::term_for_reading(t, &written))
         .collect();
-    let arranged = Expr::from_terms(pieces.iter().flat_map(|p| p.terms().iter().cloned()));
+    let arranged = Expr::from_terms(pieces.iter().cloned());
     if arranged == out.result {
         return Ok(None);
     }
-    let check = match summandwise_gate(&out.result, &pieces, &opts.final_spot) {
-        Some(c) => c,
-        None => gate(&out.result, &arranged, &opts.final_spot)?,
+    let s = &opts.final_spot;
+    let summands = summandwise(out.result.terms().iter().zip(&pieces), |x, y| {
+        let c = certify(x, y, s, FINAL_BUDGET).ok()?;
+        c.compared.then_some((c.checked, c.nonzero))
+    });
+    let (checked, nonzero) = match summands {
+        Some(counts) => counts,
+        None => {
+            let c = gate(&out.result, &arranged, s)?;
+            (c.checked, c.nonzero)
+        }
     };
     let source = Source::parse(
         "edmonds1957 sections 3.7, 6.2 and 6.4 -- the classical symmetries of the 3j, Clebsch-Gordan, 6j and 9j symbols, each symbol spelled the way the input writes it; from memory",
@@ -1020,42 +1044,10 @@ pub fn arrange_for_reading(
         source,
         before: canonical.clone(),
         after: arranged,
-        checked: check.checked,
-        nonzero: check.nonzero,
+        checked,
+        nonzero,
     });
     Ok(Some(canonical))
-}
-
-/// Verifies the arrangement of `canonical` term by term, each arranged
-/// term (`pieces`, in the order of the terms) against the term it came from with their sums opened (the summed
-/// names free). The arrangement keeps every sum as it is (it turns symbols
-/// and rewrites phases inside a term), so summands equal at every point
-/// give equal sums: a stronger statement than the equality of the two
-/// results, and cheap where the result keeps several sums (no nested sum
-/// is evaluated). `None` when a term's summands do not agree or cannot be
-/// compared: the caller then compares the two results themselves.
-fn summandwise_gate(canonical: &Expr, pieces: &[Expr], s: &SpotSettings) -> Option<Certificate> {
-    let mut total: Option<Certificate> = None;
-    for (t, arranged) in canonical.terms().iter().zip(pieces) {
-        let [a] = arranged.terms() else { return None };
-        if a.bound() != t.bound() {
-            return None;
-        }
-        let c = certify(&opened(t), &opened(a), s, FINAL_BUDGET).ok()?;
-        if !c.compared || c.nonzero == 0 {
-            return None;
-        }
-        total = Some(match total {
-            None => c,
-            Some(acc) => Certificate {
-                checked: acc.checked + c.checked,
-                nonzero: acc.nonzero + c.nonzero,
-                max_j: acc.max_j.max(c.max_j),
-                compared: true,
-            },
-        });
-    }
-    total
 }
 
 /// The verification gate (see `verify::gate`) with the driver's budget,
